@@ -1,0 +1,25 @@
+"""The small exception hierarchy of holeshape.
+
+Every error a user can cause derives from :class:`HoleshapeError`; each subclass is also the matching builtin
+so callers that catch ``ValueError`` or ``RuntimeError`` keep working. Library code raises, only the CLI prints.
+"""
+
+
+class HoleshapeError(Exception):
+    """Root of every error holeshape raises on purpose."""
+
+
+class StudyError(HoleshapeError, ValueError):
+    """A study file (or the values in it) breaks a rule; the message names the field, the value and the rule."""
+
+
+class GeometryError(HoleshapeError, ValueError):
+    """A cutout or panel geometry that cannot be built (self-crossing, outside the panel, degenerate)."""
+
+
+class MeshError(HoleshapeError, RuntimeError):
+    """The mesher failed on a geometry that passed the checks."""
+
+
+class SolveError(HoleshapeError, RuntimeError):
+    """The linear solve failed or its result cannot be trusted (singular or ill-conditioned system)."""

@@ -1,0 +1,330 @@
+"""Mesh layer: a panel with one cutout -> curved quadratic triangle mesh (scikit-fem ``MeshTri2``).
+
+How the mesh is made (all lengths mm):
+
+1. Nodes are placed on the cutout at arc-length spacing ``h(s) = radius_of_curvature(s) / boundary_ratio``,
+   capped, and graded along the curve so neighbouring spacings grow by at most ``growth`` per mm.
+2. gmsh (built-in kernel) meshes the panel minus the polygon through those nodes; every cutout segment is one
+   element edge, and the size inside grows linearly with distance from the cutout (``h_node + growth * d``).
+3. The linear mesh becomes a ``MeshTri2`` whose cutout mid-side nodes are moved onto the exact analytic curve at
+   the arc-length midpoint of their segment (centred, as quadratic elements need), so the boundary the solver
+   sees is the true curve to O(h^3), not a polygon with re-entrant kinks.
+
+A reduced model (half or quarter panel) uses the exact arc of the cutout between its symmetry points.
+gmsh is one global instance per process and is not thread-safe: call from one thread; use processes to parallelise.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from holeshape.errors import MeshError
+from holeshape.geometry import Cutout
+
+
+@dataclass(frozen=True)
+class MeshSpec:
+    """Mesh density. ``boundary_ratio``: local radius of curvature / element size on the cutout; ``growth``:
+    size increase per unit distance from the cutout; ``max_fraction``: largest element / smaller panel side."""
+
+    boundary_ratio: float = 16.0
+    growth: float = 0.1
+    max_fraction: float = 0.1
+    min_segments: int = 48  # on a full cutout outline (fewer on a reduced arc, in proportion)
+
+    def coarsened(self, factor: float = 2.0) -> MeshSpec:
+        """The same mesh family with every size multiplied by ``factor`` (the second level of a check)."""
+        return MeshSpec(self.boundary_ratio / factor, self.growth * factor, self.max_fraction * factor,
+                        max(8, int(round(self.min_segments / factor))))
+
+
+@dataclass(frozen=True)
+class Region:
+    """The part of the panel that is modelled. ``mirror_h``: symmetric about the horizontal line y = cy (model
+    y >= cy); ``mirror_v``: symmetric about the vertical line x = cx (model x >= cx)."""
+
+    width: float
+    height: float
+    mirror_h: bool = False
+    mirror_v: bool = False
+
+    @property
+    def x0(self) -> float:
+        return self.width / 2 if self.mirror_v else 0.0
+
+    @property
+    def y0(self) -> float:
+        return self.height / 2 if self.mirror_h else 0.0
+
+    @property
+    def fraction(self) -> float:
+        return (0.5 if self.mirror_h else 1.0) * (0.5 if self.mirror_v else 1.0)
+
+    @property
+    def name(self) -> str:
+        return {(False, False): "full", (True, True): "quarter"}.get((self.mirror_h, self.mirror_v), "half")
+
+
+@dataclass(frozen=True)
+class PanelMesh:
+    """The mesh and where its boundaries are.
+
+    ``mesh``: MeshTri2 (points (2, n), quadratic mapping). ``boundaries``: facet indices per name: "left", "right",
+    "bottom", "top" (panel edges), "mirror_h" (on y = cy, uy = 0), "mirror_v" (on x = cx, ux = 0), "cutout".
+    ``cutout_facets`` (m,) in order along the modelled cutout arc (counter-clockwise around the cutout);
+    ``cutout_flip`` (m,) True where the facet's vertex order runs against that direction;
+    ``cutout_s`` (m + 1,) arc length of the segment ends, mm, measured from the start of the arc, and
+    ``cutout_t`` the matching curve parameters.
+    """
+
+    mesh: object = field(repr=False)
+    boundaries: dict = field(repr=False)
+    cutout_facets: np.ndarray = field(repr=False)
+    cutout_flip: np.ndarray = field(repr=False)
+    cutout_s: np.ndarray = field(repr=False)
+    cutout_t: np.ndarray = field(repr=False)
+    region: Region
+    closed: bool
+
+    @property
+    def n_elements(self) -> int:
+        return int(self.mesh.t.shape[1])
+
+
+def _graded_spacing(s: np.ndarray, h: np.ndarray, growth: float, periodic: bool) -> np.ndarray:
+    """Smallest spacing field h'(s) <= h(s) with |dh'/ds| <= growth (a 1-D distance transform, O(n))."""
+    if periodic:  # unroll three turns so the wrap-around grading is seen from both sides
+        period = s[-1] + (s[1] - s[0])
+        s3 = np.concatenate([s - period, s, s + period])
+        return _graded_spacing(s3, np.tile(h, 3), growth, False)[len(s):2 * len(s)]
+    fwd = growth * s + np.minimum.accumulate(h - growth * s)
+    bwd = -growth * s + np.minimum.accumulate((h + growth * s)[::-1])[::-1]
+    return np.minimum(fwd, bwd)
+
+
+def cutout_nodes(cutout: Cutout, spec: MeshSpec, t_start: float, t_span: float, h_cap: float) -> np.ndarray:
+    """Curve parameters of the cutout nodes from ``t_start`` over ``t_span`` (2 pi for the full outline)."""
+    smp = cutout.sampling
+    full = math.isclose(t_span, 2 * math.pi)
+    n_dense = 4096
+    t = t_start + np.linspace(0.0, t_span, n_dense, endpoint=not full)
+    s0 = smp.arclength_at_t(np.array([t_start]))[0]
+    s = smp.arclength_at_t(t) - s0
+    tt = np.concatenate([smp.t, [2 * math.pi]])
+    kappa = np.abs(np.interp(np.mod(t, 2 * math.pi), tt, np.concatenate([smp.curvature, smp.curvature[:1]])))
+    perimeter = smp.perimeter
+    h_floor = 2e-4 * perimeter
+    h_cap = min(h_cap, perimeter / spec.min_segments)
+    with np.errstate(divide="ignore"):
+        h = np.clip(1.0 / (kappa * spec.boundary_ratio), h_floor, h_cap)
+    h = _graded_spacing(s, h, spec.growth, periodic=full)
+    # node count from the integral of ds / h, then equal steps in that integral
+    length = s[-1] + (s[1] - s[0] if full else 0.0)
+    s_ext = np.concatenate([s, [length]]) if full else s
+    h_ext = np.concatenate([h, h[:1]]) if full else h
+    dens = np.concatenate([[0.0], np.cumsum(np.diff(s_ext) * 0.5 * (1 / h_ext[1:] + 1 / h_ext[:-1]))])
+    least = max(4, int(math.ceil(spec.min_segments * t_span / (2 * math.pi))))
+    n_seg = max(least, int(math.ceil(dens[-1])))
+    targets = np.linspace(0.0, dens[-1], n_seg + 1)
+    s_nodes = np.interp(targets, dens, s_ext)
+    return smp.t_at_arclength(s_nodes + s0)
+
+
+_GMSH_READY = False
+
+
+def _gmsh():
+    global _GMSH_READY
+    import gmsh
+
+    if not _GMSH_READY:
+        gmsh.initialize(interruptible=False)  # no signal handler: Ctrl-C and SIGTERM stay ours
+        gmsh.option.setNumber("General.Terminal", 0)
+        gmsh.option.setNumber("General.NumThreads", 1)
+        _GMSH_READY = True
+    return gmsh
+
+
+def _arc_range(cutout: Cutout, region: Region) -> tuple[float, float]:
+    """Curve parameter at the start of the modelled arc and the arc's span (radians)."""
+    rot = math.radians(cutout.rotation)
+    if region.mirror_h and region.mirror_v:
+        return (0.0 - rot) % (2 * math.pi), math.pi / 2
+    if region.mirror_h:
+        return (0.0 - rot) % (2 * math.pi), math.pi
+    if region.mirror_v:
+        return (1.5 * math.pi - rot) % (2 * math.pi), math.pi
+    return 0.0, 2 * math.pi
+
+
+def mesh_panel(width: float, height: float, cutout: Cutout, region: Region, spec: MeshSpec) -> PanelMesh:
+    """Mesh the modelled region of a ``width`` x ``height`` panel (origin at its lower-left corner) minus ``cutout``.
+
+    The caller has checked that the cutout lies inside the panel and that ``region`` matches its symmetry.
+    """
+    from skfem import MeshTri1, MeshTri2
+
+    h_max = spec.max_fraction * min(width, height)
+    t_start, t_span = _arc_range(cutout, region)
+    closed = region.name == "full"
+    t_nodes = cutout_nodes(cutout, spec, t_start, t_span, h_cap=h_max)
+    xy = cutout.xy(t_nodes)  # (2, n)
+    if closed:
+        xy_ring, t_ring = xy[:, :-1], t_nodes[:-1]
+    else:
+        xy_ring, t_ring = xy, t_nodes
+        # the arc ends sit exactly on the symmetry lines
+        if region.mirror_h:
+            if region.mirror_v:
+                xy_ring[1, 0] = region.y0
+                xy_ring[0, -1] = region.x0
+            else:
+                xy_ring[1, 0] = xy_ring[1, -1] = region.y0
+        else:
+            xy_ring[0, 0] = xy_ring[0, -1] = region.x0
+    seg_len = np.hypot(*np.diff(np.concatenate([xy_ring, xy_ring[:, :1]], axis=1) if closed else xy_ring, axis=1))
+    node_h = np.minimum(np.concatenate([seg_len, seg_len[-1:]])[: xy_ring.shape[1]],
+                        np.concatenate([seg_len[:1], seg_len])[: xy_ring.shape[1]])
+
+    gmsh = _gmsh()
+    gmsh.clear()
+    gmsh.model.add("panel")
+    geo = gmsh.model.geo
+    cut_pts = [geo.addPoint(float(x), float(y), 0.0) for x, y in xy_ring.T]
+    x0, y0, x1, y1 = region.x0, region.y0, width, height
+    try:
+        if closed:
+            corners = [geo.addPoint(x0, y0, 0), geo.addPoint(x1, y0, 0), geo.addPoint(x1, y1, 0),
+                       geo.addPoint(x0, y1, 0)]
+            outer = [geo.addLine(corners[i], corners[(i + 1) % 4]) for i in range(4)]
+            ring = [geo.addLine(cut_pts[i], cut_pts[(i + 1) % len(cut_pts)]) for i in range(len(cut_pts))]
+            loops = [geo.addCurveLoop(outer), geo.addCurveLoop(ring)]
+        else:
+            ring = [geo.addLine(cut_pts[i], cut_pts[i + 1]) for i in range(len(cut_pts) - 1)]
+            first, last = cut_pts[0], cut_pts[-1]
+            if region.mirror_h and region.mirror_v:
+                # arc from its point on y = y0 to its point on x = x0
+                corners = [(x1, y0), (x1, y1), (x0, y1)]
+            elif region.mirror_h:
+                # arc from its right point on y = y0 over the top to its left point on y = y0
+                corners = [(x1, y0), (x1, y1), (x0, y1), (x0, y0)]
+            else:
+                # arc from its bottom point on x = x0 round the right side to its top point on x = x0
+                corners = [(x0, y0), (x1, y0), (x1, y1), (x0, y1)]
+            pts = [first] + [geo.addPoint(cx, cy, 0) for cx, cy in corners] + [last]
+            # counter-clockwise round the domain: panel corners, then the arc back to where the loop began
+            outer = [geo.addLine(pts[i], pts[i + 1]) for i in range(len(pts) - 1)] + [-r for r in reversed(ring)]
+            loops = [geo.addCurveLoop(outer)]
+        surface = geo.addPlaneSurface(loops)
+        geo.synchronize()
+        for line in ring:
+            gmsh.model.mesh.setTransfiniteCurve(line, 2)
+        _size_field(gmsh, cut_pts, node_h, spec.growth, h_max)
+        gmsh.option.setNumber("Mesh.MeshSizeFromPoints", 0)
+        gmsh.option.setNumber("Mesh.MeshSizeFromCurvature", 0)
+        gmsh.option.setNumber("Mesh.MeshSizeExtendFromBoundary", 0)
+        gmsh.option.setNumber("Mesh.MeshSizeMax", h_max)
+        gmsh.option.setNumber("Mesh.Algorithm", 6)
+        gmsh.model.mesh.generate(2)
+        node_tags, coords, _ = gmsh.model.mesh.getNodes(2, surface, includeBoundary=True)
+        etypes, _, enodes = gmsh.model.mesh.getElements(2, surface)
+    except Exception as err:  # gmsh raises bare Exception
+        raise MeshError(f"gmsh could not mesh the panel around the {cutout.family} cutout: {err}") from err
+    finally:
+        gmsh.clear()
+    if len(etypes) != 1 or etypes[0] != 2:
+        raise MeshError(f"gmsh returned element types {list(etypes)}, expected 3-node triangles only")
+    # gmsh arrays are flat: coords (3n,), triangle node tags (3m,); scikit-fem wants p (2, n), t (3, m)
+    order = np.argsort(node_tags)
+    tags_sorted = node_tags[order]
+    tri = order[np.searchsorted(tags_sorted, enodes[0])].reshape(-1, 3).T
+    used = np.unique(tri)  # compact: no orphan nodes in the stiffness matrix
+    remap = np.full(node_tags.size, -1, dtype=np.int64)
+    remap[used] = np.arange(used.size)
+    p = coords.reshape(-1, 3)[used, :2].T.copy()
+    t = remap[tri]
+    # counter-clockwise triangles
+    d = (p[0, t[1]] - p[0, t[0]]) * (p[1, t[2]] - p[1, t[0]]) - (p[1, t[1]] - p[1, t[0]]) * (p[0, t[2]] - p[0, t[0]])
+    t[[1, 2]] = np.where(d < 0, t[[2, 1]], t[[1, 2]])
+    linear = MeshTri1(p, t)
+    return _curve_cutout(linear, MeshTri2, cutout, xy_ring, t_ring, closed, region, width, height)
+
+
+def _size_field(gmsh, points: list[int], node_h: np.ndarray, growth: float, h_max: float) -> None:
+    """Background size min_j(h_j + growth * distance to cutout node group j), groups of similar spacing."""
+    fld = gmsh.model.mesh.field
+    edges = np.exp(np.arange(np.log(node_h.min()), np.log(node_h.max()) + 0.4, 0.4))  # bins of ratio ~1.5
+    groups = np.clip(np.searchsorted(edges, node_h, side="right") - 1, 0, len(edges) - 1)
+    evals = []
+    for g in np.unique(groups):
+        members = [points[i] for i in np.flatnonzero(groups == g)]
+        h_g = float(node_h[groups == g].min())
+        dist = fld.add("Distance")
+        fld.setNumbers(dist, "PointsList", members)
+        ev = fld.add("MathEval")
+        fld.setString(ev, "F", f"{h_g!r} + {growth!r} * F{dist}")
+        evals.append(ev)
+    cap = fld.add("MathEval")
+    fld.setString(cap, "F", f"{h_max!r}")
+    low = fld.add("Min")
+    fld.setNumbers(low, "FieldsList", evals + [cap])
+    fld.setAsBackgroundMesh(low)
+
+
+def _curve_cutout(linear, mesh_cls, cutout: Cutout, xy_ring, t_ring, closed, region, width, height) -> PanelMesh:
+    from scipy.spatial import cKDTree
+
+    p = linear.p
+    n_nodes = xy_ring.shape[1]
+    dist, vid = cKDTree(p.T).query(xy_ring.T)
+    scale = max(width, height)
+    if dist.max() > 1e-9 * scale:
+        raise MeshError("gmsh moved a cutout node; the mesh does not follow the cutout outline")
+    a = vid
+    b = np.roll(vid, -1) if closed else vid[1:]
+    a = a if closed else vid[:-1]
+    facets = linear.facets  # (2, nf), each column sorted
+    key = facets[0].astype(np.int64) * p.shape[1] + facets[1]
+    order = np.argsort(key)
+    lo, hi = np.minimum(a, b), np.maximum(a, b)
+    pos = np.searchsorted(key[order], lo.astype(np.int64) * p.shape[1] + hi)
+    cut_facets = order[pos]
+    if not np.array_equal(key[cut_facets], lo.astype(np.int64) * p.shape[1] + hi):
+        raise MeshError("a cutout segment is not an element edge of the mesh")
+    flip = facets[0, cut_facets] != a
+
+    smp = cutout.sampling
+    t_nodes = np.concatenate([t_ring, [t_ring[0] + 2 * math.pi]]) if closed else t_ring
+    # unwrap so arc length increases along the arc
+    t_nodes = t_nodes[0] + np.mod(t_nodes - t_nodes[0], 2 * math.pi)
+    if closed:
+        t_nodes[-1] = t_nodes[0] + 2 * math.pi
+    s_nodes = smp.arclength_at_t(t_nodes)
+    s_mid = 0.5 * (s_nodes[:-1] + s_nodes[1:])
+    mid_xy = cutout.xy(smp.t_at_arclength(s_mid))
+
+    quad = mesh_cls.from_mesh(linear)
+    doflocs = quad.doflocs.copy()
+    mid_dofs = quad.dofs.facet_dofs[0, cut_facets]  # the one mid-side DOF of each P2 facet
+    doflocs[:, mid_dofs] = mid_xy
+    from dataclasses import replace
+
+    quad = replace(quad, doflocs=doflocs)
+
+    mid = p[:, facets].mean(axis=1)  # (2, nf) midpoints of straight facets
+    bnd = quad.boundary_facets()
+    tol = 1e-9 * scale
+    names = {
+        "left": bnd[np.abs(mid[0, bnd] - 0.0) < tol] if not region.mirror_v else np.array([], dtype=np.int64),
+        "right": bnd[np.abs(mid[0, bnd] - width) < tol],
+        "bottom": bnd[np.abs(mid[1, bnd] - 0.0) < tol] if not region.mirror_h else np.array([], dtype=np.int64),
+        "top": bnd[np.abs(mid[1, bnd] - height) < tol],
+        "mirror_h": bnd[np.abs(mid[1, bnd] - region.y0) < tol] if region.mirror_h else np.array([], dtype=np.int64),
+        "mirror_v": bnd[np.abs(mid[0, bnd] - region.x0) < tol] if region.mirror_v else np.array([], dtype=np.int64),
+        "cutout": np.sort(cut_facets),
+    }
+    return PanelMesh(mesh=quad, boundaries=names, cutout_facets=cut_facets, cutout_flip=flip,
+                     cutout_s=s_nodes - s_nodes[0], cutout_t=t_nodes, region=region, closed=closed)

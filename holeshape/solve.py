@@ -1,0 +1,358 @@
+"""Solve layer: linear-elastic plane stress on a curved quadratic mesh, and stress recovery on a boundary.
+
+Units: mm, N, MPa. Displacements in mm. Stress components are ordered (sxx, syy, sxy) everywhere in this module.
+Array layouts follow scikit-fem: points (2, n); per-facet samples (..., n_facets, n_points_per_facet).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from holeshape.errors import SolveError
+
+# Sampling of each boundary facet for stress recovery, in the facet's reference coordinate [0, 1]. The ends are
+# shared with the neighbouring facets and averaged there; the interior points catch a peak between nodes.
+FACET_SAMPLES = np.linspace(0.0, 1.0, 5)
+QUAD_ORDER = 4  # P2 stiffness on quadratic geometry: degree-2 integrand on straight cells; 4 covers the curved ones
+
+
+def plane_stress_constants(youngs_modulus: float, poisson_ratio: float) -> tuple[float, float]:
+    """Plane-stress Lame constants (lambda*, mu) in MPa.
+
+    Written out here on purpose: scikit-fem 12.0.2 changed ``plane_stress()`` to return these directly, so the
+    older idiom ``lame_parameters(*plane_stress(E, nu))`` silently gives wrong stresses (a Kt regression test
+    guards this).
+    """
+    e, nu = youngs_modulus, poisson_ratio
+    return e * nu / (1.0 - nu * nu), e / (2.0 * (1.0 + nu))
+
+
+def vector_basis(mesh):
+    """P2 vector basis on a (curved) quadratic triangle mesh."""
+    from skfem import Basis, ElementTriP2, ElementVector
+
+    return Basis(mesh, ElementVector(ElementTriP2()), intorder=QUAD_ORDER)
+
+
+def stiffness(basis, youngs_modulus: float, poisson_ratio: float):
+    from skfem import BilinearForm
+    from skfem.helpers import ddot, sym_grad, trace, eye
+
+    lam, mu = plane_stress_constants(youngs_modulus, poisson_ratio)
+
+    @BilinearForm
+    def form(u, v, w):
+        e = sym_grad(u)
+        return ddot(2.0 * mu * e + lam * eye(trace(e), 2), sym_grad(v))
+
+    return form.assemble(basis)
+
+
+def traction_load(mesh, facets: np.ndarray, stress_field) -> np.ndarray:
+    """Load vector of the traction sigma . n on ``facets`` for a stress field.
+
+    ``stress_field(x, y)`` returns (sxx, syy, sxy), each broadcastable to x (MPa); n is the outward normal.
+    """
+    from skfem import ElementTriP2, ElementVector, FacetBasis, LinearForm
+
+    fb = FacetBasis(mesh, ElementVector(ElementTriP2()), facets=facets, intorder=QUAD_ORDER)
+
+    @LinearForm
+    def form(v, w):
+        sxx, syy, sxy = (np.broadcast_to(c, w.x[0].shape) for c in stress_field(w.x[0], w.x[1]))
+        n = w.n
+        return (sxx * n[0] + sxy * n[1]) * v[0] + (sxy * n[0] + syy * n[1]) * v[1]
+
+    return form.assemble(fb)
+
+
+@dataclass
+class FactorisedSystem:
+    """K with Dirichlet DOFs removed, factorised once; solves any number of load cases.
+
+    ``fixed`` (k,) DOF indices with prescribed values; ``free`` the rest.
+    """
+
+    K: object = field(repr=False)
+    fixed: np.ndarray
+    free: np.ndarray = field(init=False)
+    _lu: object = field(init=False, repr=False)
+
+    def __post_init__(self):
+        from scipy.sparse.linalg import splu
+
+        n = self.K.shape[0]
+        mask = np.ones(n, dtype=bool)
+        mask[self.fixed] = False
+        self.free = np.flatnonzero(mask)
+        K = self.K.tocsr()
+        self._Kff = K[self.free][:, self.free].tocsc()
+        self._Kfd = K[self.free][:, self.fixed]
+        try:
+            # K is symmetric positive definite: a symmetric ordering (minimum degree on A^T + A) with no pivoting
+            # fills in least; partial pivoting was 10x slower on full-panel models (measured)
+            self._lu = splu(self._Kff, permc_spec="MMD_AT_PLUS_A", diag_pivot_thresh=0.0,
+                            options={"SymmetricMode": True})
+        except RuntimeError as err:
+            raise SolveError(f"the stiffness matrix is singular (a part of the panel is not held): {err}") from err
+        diag = np.abs(self._lu.U.diagonal())
+        if not np.all(np.isfinite(diag)) or diag.min() <= 1e-13 * diag.max():
+            raise SolveError(
+                f"the stiffness matrix is near-singular (pivot ratio {diag.min() / diag.max():.1e}); "
+                "the result would not be trustworthy"
+            )
+
+    def solve(self, loads: np.ndarray, prescribed: np.ndarray | None = None) -> np.ndarray:
+        """``loads`` (n, m) load vectors; ``prescribed`` (k, m) values at ``fixed``. Returns displacements (n, m)."""
+        loads = np.atleast_2d(loads.T).T
+        m = loads.shape[1]
+        u = np.zeros((self.K.shape[0], m))
+        rhs = loads[self.free]
+        if prescribed is not None:
+            u[self.fixed] = prescribed
+            rhs = rhs - self._Kfd @ prescribed
+        u[self.free] = self._lu.solve(np.ascontiguousarray(rhs))
+        if not np.all(np.isfinite(u)):
+            raise SolveError("the solve produced non-finite displacements")
+        return u
+
+
+@dataclass(frozen=True)
+class BoundaryStress:
+    """Stress sampled along a boundary arc, in order.
+
+    ``s`` (n,) arc length, mm; ``xy`` (2, n) points, mm; ``tangent`` (2, n) unit tangents along the arc;
+    ``sigma`` (3, n, m) stress components (sxx, syy, sxy) in MPa for m load cases.
+    """
+
+    s: np.ndarray
+    xy: np.ndarray
+    tangent: np.ndarray
+    sigma: np.ndarray
+
+    @property
+    def hoop(self) -> np.ndarray:
+        """Tangential (hoop) stress t . sigma . t, (n, m) MPa; independent of the tangent's sign."""
+        tx, ty = self.tangent[0][:, None], self.tangent[1][:, None]
+        sxx, syy, sxy = self.sigma
+        return sxx * tx * tx + syy * ty * ty + 2 * sxy * tx * ty
+
+    @property
+    def von_mises(self) -> np.ndarray:
+        sxx, syy, sxy = self.sigma
+        return np.sqrt(np.maximum(sxx * sxx - sxx * syy + syy * syy + 3 * sxy * sxy, 0.0))
+
+    @property
+    def max_principal(self) -> np.ndarray:
+        sxx, syy, sxy = self.sigma
+        return 0.5 * (sxx + syy) + np.hypot(0.5 * (sxx - syy), sxy)
+
+    @property
+    def min_principal(self) -> np.ndarray:
+        sxx, syy, sxy = self.sigma
+        return 0.5 * (sxx + syy) - np.hypot(0.5 * (sxx - syy), sxy)
+
+
+def stress_from_gradient(grad: np.ndarray, youngs_modulus: float, poisson_ratio: float) -> np.ndarray:
+    """(sxx, syy, sxy) from displacement gradients grad[i, j] = du_i/dx_j (any trailing shape)."""
+    lam, mu = plane_stress_constants(youngs_modulus, poisson_ratio)
+    exx, eyy, exy = grad[0, 0], grad[1, 1], 0.5 * (grad[0, 1] + grad[1, 0])
+    tr = exx + eyy
+    return np.array([2 * mu * exx + lam * tr, 2 * mu * eyy + lam * tr, 2 * mu * exy])
+
+
+_REF_VERTICES = np.array([[0.0, 0.0], [1.0, 0.0], [0.0, 1.0]])  # scikit-fem's reference triangle
+
+
+def boundary_stress(mesh, u: np.ndarray, facets: np.ndarray, youngs_modulus: float, poisson_ratio: float,
+                    closed: bool, s_nodes: np.ndarray | None = None) -> BoundaryStress:
+    """Recover the stress along a chain of boundary facets without smoothing the peak.
+
+    The displacement gradient is evaluated inside each boundary element, at points of its boundary edge given
+    directly in the element's reference coordinates (the element's own polynomial: no projection to nodes, no
+    inverse mapping); at a node shared by two facets the two one-sided values are averaged. ``facets`` (k,) must be
+    in chain order; ``u`` (n_dofs, m). ``s_nodes`` (k + 1,) arc length of the chain's nodes (else chord lengths).
+    """
+    from skfem import Basis, ElementTriP2, ElementVector
+
+    k, q, m = len(facets), len(FACET_SAMPLES), u.shape[1]
+    fv = mesh.facets[:, facets]  # (2, k) vertex indices
+    nxt = np.roll(np.arange(k), -1)
+    to_next = np.where((fv[0] == fv[0, nxt]) | (fv[0] == fv[1, nxt]), fv[0], fv[1])
+    start = fv[0] + fv[1] - to_next
+    if not closed and k > 1:
+        start[k - 1] = to_next[k - 2]
+        to_next[k - 1] = fv[0, k - 1] + fv[1, k - 1] - start[k - 1]
+    elem = mesh.f2t[0, facets]
+    tri = mesh.t[:, elem]  # (3, k)
+    ia = np.argmax(tri == start[None, :], axis=0)
+    ib = np.argmax(tri == to_next[None, :], axis=0)
+    x = np.empty((2, k, q))
+    tangent = np.empty((2, k, q))
+    sig = np.empty((3, k, q, m))
+    velem = ElementVector(ElementTriP2())
+    for a in range(3):
+        for b in range(3):
+            sel = np.flatnonzero((ia == a) & (ib == b))
+            if a == b or sel.size == 0:
+                continue
+            ref = _REF_VERTICES[a][:, None] + FACET_SAMPLES[None, :] * (_REF_VERTICES[b] - _REF_VERTICES[a])[:, None]
+            cb = Basis(mesh, velem, elements=elem[sel], quadrature=(ref, np.full(q, 1.0 / q)))
+            x[:, sel] = np.asarray(cb.global_coordinates())
+            J = cb.mapping.DF(ref, tind=elem[sel])  # (2, 2, len(sel), q)
+            d = _REF_VERTICES[b] - _REF_VERTICES[a]
+            tangent[:, sel] = J[:, 0] * d[0] + J[:, 1] * d[1]
+            for c in range(m):
+                grad = np.asarray(cb.interpolate(u[:, c]).grad)  # (2, 2, len(sel), q)
+                sig[..., c][:, sel] = stress_from_gradient(grad, youngs_modulus, poisson_ratio)
+    tangent /= np.linalg.norm(tangent, axis=0)
+    # chain: node i is the start of facet i; average the one-sided values at shared nodes
+    n_nodes = k if closed else k + 1
+    starts = np.arange(k)
+    ends = (starts + 1) % n_nodes
+    node_sig = 0.5 * (sig[:, starts, 0] + sig[:, np.roll(starts, 1), -1])
+    node_t = tangent[:, starts, 0] + tangent[:, np.roll(starts, 1), -1]
+    if not closed:
+        node_sig[:, 0] = sig[:, 0, 0]
+        node_t[:, 0] = tangent[:, 0, 0]
+        node_sig = np.concatenate([node_sig, sig[:, -1:, -1]], axis=1)
+        node_t = np.concatenate([node_t, tangent[:, -1:, -1]], axis=1)
+    del ends
+    node_x = np.concatenate([x[:, :, 0], x[:, -1:, -1]], axis=1)[:, :n_nodes]
+    # the ordered sequence: node, interior samples of its facet, next node, ...
+    sig_all = np.concatenate([node_sig[:, :k, None], sig[:, :, 1:-1]], axis=2).reshape(3, k * (q - 1), m)
+    x_all = np.concatenate([node_x[:, :k, None], x[:, :, 1:-1]], axis=2).reshape(2, k * (q - 1))
+    t_all = np.concatenate([node_t[:, :k, None], tangent[:, :, 1:-1]], axis=2).reshape(2, k * (q - 1))
+    if s_nodes is None:
+        s_nodes = np.concatenate([[0.0], np.cumsum(np.linalg.norm(x[:, :, -1] - x[:, :, 0], axis=0))])
+    s_all = (s_nodes[:-1, None] + FACET_SAMPLES[None, :-1] * np.diff(s_nodes)[:, None]).reshape(-1)
+    if not closed:
+        sig_all = np.concatenate([sig_all, node_sig[:, -1:]], axis=1)
+        x_all = np.concatenate([x_all, node_x[:, -1:]], axis=1)
+        t_all = np.concatenate([t_all, node_t[:, -1:]], axis=1)
+        s_all = np.concatenate([s_all, s_nodes[-1:]])
+    t_all = t_all / np.linalg.norm(t_all, axis=0)
+    return BoundaryStress(s=s_all, xy=x_all, tangent=t_all, sigma=sig_all)
+
+
+def peak_along(s: np.ndarray, values: np.ndarray, closed: bool) -> tuple[float, int]:
+    """Largest value of a sampled curve, refined by a parabola through the best sample and its neighbours.
+
+    Returns (peak, index of the best sample). The refinement never lowers the sampled maximum.
+    """
+    i = int(np.argmax(values))
+    n = len(values)
+    best = float(values[i])
+    if closed or 0 < i < n - 1:
+        j0, j2 = (i - 1) % n, (i + 1) % n
+        y0, y1, y2 = values[j0], values[i], values[j2]
+        h0 = s[i] - s[j0] if i > 0 else s[i] - (s[j0] - s[-1] - (s[1] - s[0]))
+        h2 = s[j2] - s[i] if j2 > i else (s[1] - s[0])
+        if h0 > 0 and h2 > 0:
+            # parabola through (-h0, y0), (0, y1), (h2, y2)
+            a = ((y2 - y1) / h2 + (y0 - y1) / h0) / (h0 + h2)
+            b = (y2 - y1) / h2 - a * h2
+            if a < 0:
+                xs = -b / (2 * a)
+                if -h0 <= xs <= h2:
+                    best = max(best, float(y1 + b * xs + a * xs * xs))
+    if not math.isfinite(best):
+        raise SolveError("the recovered boundary stress is not finite")
+    return best, i
+
+
+@dataclass(frozen=True)
+class PanelSolution:
+    """Displacements of every load case and the stress along the modelled cutout arc.
+
+    ``u`` (n_dofs, m) mm; ``cutout`` the boundary stress; ``basis`` the P2 vector basis (for field plots).
+    """
+
+    basis: object = field(repr=False)
+    u: np.ndarray = field(repr=False)
+    cutout: BoundaryStress = field(repr=False)
+    youngs_modulus: float
+    poisson_ratio: float
+
+    @property
+    def dofs(self) -> int:
+        return int(self.u.shape[0])
+
+
+EDGE_CONDITIONS = ("traction", "displacement")
+
+
+def solve_panel(pm, youngs_modulus: float, poisson_ratio: float, remote: np.ndarray, edges: str,
+                width: float, height: float) -> PanelSolution:
+    """Solve a panel mesh (``holeshape.mesh.PanelMesh``) for m uniform remote stress states.
+
+    ``remote`` (m, 3): (sigma_x, sigma_y, tau_xy) MPa per load case. ``edges``: "traction" applies sigma . n on
+    the panel edges (rigid-body modes removed by three point constraints, which carry no load because the
+    tractions are self-equilibrated); "displacement" imposes the remote strain field on the panel edges.
+    Mirror lines get zero normal displacement. One factorisation serves every load case.
+    """
+    remote = np.atleast_2d(np.asarray(remote, dtype=float))
+    mesh = pm.mesh
+    basis = vector_basis(mesh)
+    K = stiffness(basis, youngs_modulus, poisson_ratio)
+    bnd = pm.boundaries
+    edge_facets = np.concatenate([bnd[k] for k in ("left", "right", "bottom", "top")])
+    fixed_parts = []
+    if len(bnd["mirror_h"]):
+        fixed_parts.append(basis.get_dofs(bnd["mirror_h"]).all("u^2"))
+    if len(bnd["mirror_v"]):
+        fixed_parts.append(basis.get_dofs(bnd["mirror_v"]).all("u^1"))
+    cx, cy = width / 2, height / 2
+    m = remote.shape[0]
+    if edges == "displacement":
+        ux_dofs = basis.get_dofs(edge_facets).all("u^1")
+        uy_dofs = basis.get_dofs(edge_facets).all("u^2")
+        lam, mu = plane_stress_constants(youngs_modulus, poisson_ratio)
+        e, nu = youngs_modulus, poisson_ratio
+        sx, sy, txy = remote.T
+        ex, ey, gxy = (sx - nu * sy) / e, (sy - nu * sx) / e, txy / mu
+        X = basis.doflocs
+        vx = ex[None, :] * (X[0, ux_dofs] - cx)[:, None] + 0.5 * gxy[None, :] * (X[1, ux_dofs] - cy)[:, None]
+        vy = 0.5 * gxy[None, :] * (X[0, uy_dofs] - cx)[:, None] + ey[None, :] * (X[1, uy_dofs] - cy)[:, None]
+        fixed_parts = [ux_dofs, uy_dofs] + fixed_parts
+        fixed = np.concatenate(fixed_parts)
+        values = np.concatenate([vx, vy] + [np.zeros((len(f), m)) for f in fixed_parts[2:]], axis=0)
+        fixed, first = np.unique(fixed, return_index=True)
+        values = values[first]
+        loads = np.zeros((K.shape[0], m))
+    elif edges == "traction":
+        unit = [traction_load(mesh, edge_facets, lambda x, y, c=c: tuple(float(i == c) for i in range(3)))
+                for c in range(3)]
+        loads = np.stack(unit, axis=1) @ remote.T  # (n, 3) @ (3, m)
+        fixed_parts += _rigid_body_constraints(basis, pm, width, height)
+        fixed = np.unique(np.concatenate(fixed_parts)) if fixed_parts else np.array([], dtype=np.int64)
+        values = None
+    else:
+        raise ValueError(f"edges must be one of {EDGE_CONDITIONS}, got {edges!r}")
+    system = FactorisedSystem(K, fixed)
+    u = system.solve(loads, values)
+    cut = boundary_stress(mesh, u, pm.cutout_facets, youngs_modulus, poisson_ratio, closed=pm.closed,
+                          s_nodes=pm.cutout_s)
+    return PanelSolution(basis=basis, u=u, cutout=cut, youngs_modulus=youngs_modulus, poisson_ratio=poisson_ratio)
+
+
+def _rigid_body_constraints(basis, pm, width: float, height: float) -> list[np.ndarray]:
+    """DOFs that remove exactly the rigid-body modes a traction-loaded (reduced) panel still has."""
+    p = pm.mesh.p
+    region = pm.region
+
+    def vertex(x, y):
+        return int(np.argmin((p[0] - x) ** 2 + (p[1] - y) ** 2))
+
+    nd = basis.nodal_dofs  # (2, n_vertices): ux, uy
+    if region.mirror_h and region.mirror_v:
+        return []
+    if region.mirror_h:  # uy and rotation held by the mirror line; x translation free
+        return [np.array([nd[0, vertex(0.0, region.y0)]])]
+    if region.mirror_v:  # ux and rotation held; y translation free
+        return [np.array([nd[1, vertex(region.x0, 0.0)]])]
+    a, b = vertex(0.0, 0.0), vertex(width, 0.0)
+    return [np.array([nd[0, a], nd[1, a], nd[1, b]])]
