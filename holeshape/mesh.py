@@ -328,3 +328,25 @@ def _curve_cutout(linear, mesh_cls, cutout: Cutout, xy_ring, t_ring, closed, reg
     }
     return PanelMesh(mesh=quad, boundaries=names, cutout_facets=cut_facets, cutout_flip=flip,
                      cutout_s=s_nodes - s_nodes[0], cutout_t=t_nodes, region=region, closed=closed)
+
+
+def mesh_from_gmsh(gmsh, surface: int):
+    """``MeshTri2`` from the current gmsh model after ``generate(2)`` and ``setOrder(2)`` (6-node triangles).
+
+    For domains built directly with gmsh's own curved geometry (the panel meshes above use exact analytic
+    outlines instead). Built straight from gmsh's flat arrays: reading through meshio drops the 3-node boundary
+    lines. Only nodes of the surface's triangles are kept (no orphans).
+    """
+    from skfem import MeshTri2
+
+    tags, coords, _ = gmsh.model.mesh.getNodes(2, surface, includeBoundary=True)
+    etypes, _, enodes = gmsh.model.mesh.getElements(2, surface)
+    if list(etypes) != [9]:
+        raise MeshError(f"expected 6-node triangles (gmsh type 9), got types {list(etypes)}")
+    order = np.argsort(tags)
+    tri = order[np.searchsorted(tags[order], enodes[0])].reshape(-1, 6).T
+    used = np.unique(tri)
+    remap = np.full(tags.size, -1, dtype=np.int64)
+    remap[used] = np.arange(used.size)
+    p = coords.reshape(-1, 3)[used, :2].T.copy()
+    return MeshTri2(p, remap[tri])

@@ -341,7 +341,7 @@ def solve_panel(pm, youngs_modulus: float, poisson_ratio: float, remote: np.ndar
 
 def _rigid_body_constraints(basis, pm, width: float, height: float) -> list[np.ndarray]:
     """DOFs that remove exactly the rigid-body modes a traction-loaded (reduced) panel still has."""
-    p = pm.mesh.p
+    p = pm.mesh.p[:, :pm.mesh.nvertices]
     region = pm.region
 
     def vertex(x, y):

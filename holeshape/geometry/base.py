@@ -42,7 +42,9 @@ class Shape:
 
     def parameters(self) -> dict[str, object]:
         """The family's parameters by their study-file names."""
-        return {name: getattr(self, name) for name in self.__dataclass_fields__}
+        from dataclasses import fields
+
+        return {f.name: getattr(self, f.name) for f in fields(self)}
 
     # ----- derived quantities, computed from a dense sampling of the boundary -------------------------------
     @cached_property

@@ -1,0 +1,126 @@
+"""Command line: ``holeshape check STUDY [--json] [--plots DIR]``.
+
+``main(argv=None) -> int`` so tests call it in-process. Errors become one line on stderr and an exit code:
+2 for bad input (study file, geometry), 3 for a mesh or solver failure, 1 for anything unexpected.
+Tracebacks only with ``--debug``.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import logging
+import sys
+import traceback
+from pathlib import Path
+
+from holeshape import CAUTIONS, __version__
+from holeshape.errors import GeometryError, HoleshapeError, StudyError
+
+EXIT_INPUT, EXIT_COMPUTE, EXIT_INTERNAL = 2, 3, 1
+
+EDGE_NOTES = {
+    "traction": "remote stress applied as edge tractions",
+    "displacement": "remote strain imposed on the panel edges",
+}
+
+
+def _parser() -> argparse.ArgumentParser:
+    common = argparse.ArgumentParser(add_help=False)
+    common.add_argument("--debug", action="store_true", help="show tracebacks on errors")
+    common.add_argument("-v", "--verbose", action="store_true", help="log progress to stderr")
+    common.add_argument("-q", "--quiet", action="store_true", help="print only the result")
+    ap = argparse.ArgumentParser(prog="holeshape", description="Lowest-peak-stress cutouts in thin loaded plates "
+                                 "(linear-elastic plane stress; mm, N, MPa).", parents=[common])
+    ap.add_argument("--version", action="version", version=f"holeshape {__version__}")
+    sub = ap.add_subparsers(dest="command", required=True, metavar="COMMAND")
+    ck = sub.add_parser("check", parents=[common], help="verified peak stress of the study's cutout",
+                        description="Peak stress on the cutout edge for every load case, with a mesh-convergence "
+                        "error estimate.")
+    ck.add_argument("study", help="study file (TOML)")
+    ck.add_argument("--json", action="store_true", help="machine-readable result on stdout")
+    ck.add_argument("--plots", metavar="DIR", help="write PNG plots to DIR")
+    ck.add_argument("--accuracy", choices=("draft", "standard", "fine"), help="override [measure] accuracy")
+    return ap
+
+
+def main(argv: list[str] | None = None) -> int:
+    args = _parser().parse_args(argv)
+    level = logging.DEBUG if args.verbose else logging.WARNING
+    logging.basicConfig(level=level, format="holeshape: %(message)s", stream=sys.stderr)
+    logging.getLogger("skfem").setLevel(logging.ERROR)  # its info/warnings are not for our users
+    try:
+        if args.command == "check":
+            return _check(args)
+        raise AssertionError(args.command)
+    except (StudyError, GeometryError) as err:
+        return _fail(args, err, EXIT_INPUT)
+    except HoleshapeError as err:
+        return _fail(args, err, EXIT_COMPUTE)
+    except KeyboardInterrupt:
+        print("holeshape: interrupted", file=sys.stderr)
+        return 130
+    except Exception as err:  # noqa: BLE001 - the one place that turns surprises into one line
+        return _fail(args, err, EXIT_INTERNAL, internal=True)
+
+
+def _fail(args, err: BaseException, code: int, internal: bool = False) -> int:
+    if args.debug:
+        traceback.print_exc()
+    msg = " ".join(str(err).split()) or type(err).__name__
+    if internal:
+        msg = f"internal error ({type(err).__name__}): {msg} (rerun with --debug for details)"
+    print(f"holeshape: error: {msg}", file=sys.stderr)
+    return code
+
+
+def _check(args) -> int:
+    from dataclasses import replace
+
+    from holeshape.evaluate import evaluate
+    from holeshape.study import load_study
+
+    study = load_study(args.study)
+    measure = replace(study.measure, accuracy=args.accuracy) if args.accuracy else study.measure
+    cutout = study.cutout.build()
+    want_fields = bool(args.plots)
+    if args.plots:
+        plot_dir = Path(args.plots)
+        try:
+            plot_dir.mkdir(parents=True, exist_ok=True)
+        except OSError as err:
+            raise StudyError(f"--plots {args.plots!r} cannot be created: {err.strerror}") from err
+    out = evaluate(study.panel, study.material, study.load_cases, cutout, measure, keep_fields=want_fields)
+    ev, fields = out if want_fields else (out, None)
+    plots: list[str] = []
+    if fields is not None:
+        from holeshape.output import plots as P
+
+        gov = [r.name for r in ev.load_cases].index(ev.governing_load_case)
+        size = (study.panel.width, study.panel.height)
+        outline = cutout.polygon(720).T
+        plots = [str(p) for p in (
+            P.plot_stress_field(plot_dir / "stress_field.png", ev, fields, outline, gov, size, study.title),
+            P.plot_boundary_stress(plot_dir / "boundary_stress.png", ev, fields, study.material.allowable_stress,
+                                   study.title),
+            P.plot_mesh(plot_dir / "mesh_near_cutout.png", fields, cutout.bounds, study.title),
+        )]
+    if args.json:
+        d = ev.to_dict()
+        d.update({"title": study.title, "shape": cutout.family, "params": cutout.parameters(),
+                  "holeshape_version": __version__, "plots": plots, "cautions": CAUTIONS})
+        print(json.dumps(d, indent=2))
+    else:
+        from holeshape.output.text import check_summary
+
+        if not args.quiet:
+            print(check_summary(study.title, cutout.family, cutout.parameters(), ev, EDGE_NOTES[study.panel.edges]))
+            for p in plots:
+                print(f"  plot          {p}")
+        else:
+            print(f"{ev.peak_stress_mpa:.3f} MPa (Kt {ev.kt:.4f}, error estimate {ev.error_estimate_pct:.3f} %)")
+    return 0
+
+
+if __name__ == "__main__":  # pragma: no cover
+    sys.exit(main())

@@ -1,0 +1,1 @@
+"""Output layer: human-readable summaries, JSON, plots (matplotlib loaded only when plotting)."""

@@ -1,0 +1,142 @@
+"""Plots for engineers: stress field with the cutout outline, boundary stress against arc length, mesh close-up.
+
+All axes in mm or MPa. Written as PNG. matplotlib is imported here only.
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import numpy as np
+
+from holeshape.evaluate import STRESS_LABELS, Evaluation, EvaluationFields, measure_values
+
+
+def _mpl():
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+
+    return plt
+
+
+def vertex_stress(fields: EvaluationFields) -> np.ndarray:
+    """Stress (3, n_vertices, m) at the mesh vertices for display: each element's own value at its corners,
+    averaged over the elements sharing a vertex (a picture, not the peak read-out)."""
+    from skfem import Basis
+
+    from holeshape.solve import stress_from_gradient
+
+    sol, mesh = fields.solution, fields.panel_mesh.mesh
+    ref = np.array([[0.0, 1.0, 0.0], [0.0, 0.0, 1.0]])
+    cb = Basis(mesh, sol.basis.elem, quadrature=(ref, np.full(3, 1 / 3)))
+    nv = mesh.nvertices  # MeshTri2.p holds the mid-side nodes too, after the vertices
+    out = np.zeros((3, nv, sol.u.shape[1]))
+    count = np.bincount(mesh.t.ravel(), minlength=nv).astype(float)
+    for c in range(sol.u.shape[1]):
+        s = stress_from_gradient(np.asarray(cb.interpolate(sol.u[:, c]).grad), sol.youngs_modulus,
+                                 sol.poisson_ratio)  # (3, nt, 3)
+        for k in range(3):
+            np.add.at(out[k, :, c], mesh.t.T.ravel(), s[k].ravel())
+    return out / count[None, :, None]
+
+
+def _mirrored_triangulation(fields: EvaluationFields, values: np.ndarray):
+    """Triangles and values of the whole panel from a reduced model (for display)."""
+    mesh, region = fields.panel_mesh.mesh, fields.panel_mesh.region
+    p, t, v = mesh.p[:, :mesh.nvertices].copy(), mesh.t.copy(), values.copy()
+    cx, cy = region.width / 2, region.height / 2
+    for flag, axis, c in ((region.mirror_v, 0, cx), (region.mirror_h, 1, cy)):
+        if flag:
+            q = p.copy()
+            q[axis] = 2 * c - q[axis]
+            t = np.concatenate([t, t + p.shape[1]], axis=1)
+            p = np.concatenate([p, q], axis=1)
+            v = np.concatenate([v, v])
+    return p, t, v
+
+
+def field_values(stress: np.ndarray, measure: str, tangent_free: bool = False) -> np.ndarray:
+    sxx, syy, sxy = stress
+    if measure == "von_mises":
+        return np.sqrt(np.maximum(sxx**2 - sxx * syy + syy**2 + 3 * sxy**2, 0))
+    return 0.5 * (sxx + syy) + np.hypot(0.5 * (sxx - syy), sxy)
+
+
+def plot_stress_field(path: Path, ev: Evaluation, fields: EvaluationFields, cutout_xy: np.ndarray,
+                      case_index: int, panel_size: tuple[float, float], title: str) -> Path:
+    plt = _mpl()
+    measure = ev.stress_measure if ev.stress_measure != "hoop" else "von_mises"
+    vs = vertex_stress(fields)[:, :, case_index]
+    vals = field_values(vs, measure)
+    p, t, v = _mirrored_triangulation(fields, vals)
+    fig, ax = plt.subplots(figsize=(8, 8 * panel_size[1] / panel_size[0] + 0.8))
+    top = max(float(np.percentile(v, 99.9)), ev.load_cases[case_index].peak_stress_mpa)
+    tpc = ax.tripcolor(p[0], p[1], t.T, v, shading="gouraud", cmap="viridis", vmin=0, vmax=top)
+    ax.plot(*np.concatenate([cutout_xy, cutout_xy[:, :1]], axis=1), color="white", lw=1.2)
+    r = ev.load_cases[case_index]
+    ax.plot([r.x_mm], [r.y_mm], marker="x", color="red", ms=10, mew=2)
+    ax.annotate(f"peak {r.peak_stress_mpa:.1f} MPa", (r.x_mm, r.y_mm), xytext=(8, 8), textcoords="offset points",
+                color="red", fontsize=9, weight="bold")
+    ax.set_aspect("equal")
+    ax.set_xlim(0, panel_size[0])
+    ax.set_ylim(0, panel_size[1])
+    ax.set_xlabel("x (mm)")
+    ax.set_ylabel("y (mm)")
+    label = "von Mises stress" if measure == "von_mises" else "max principal stress"
+    fig.colorbar(tpc, ax=ax, shrink=0.8, label=f"{label} (MPa)")
+    ax.set_title(f"{title}\n{r.name}: {label}")
+    fig.tight_layout()
+    fig.savefig(path, dpi=130)
+    plt.close(fig)
+    return path
+
+
+def plot_boundary_stress(path: Path, ev: Evaluation, fields: EvaluationFields, allowable: float | None,
+                         title: str) -> Path:
+    plt = _mpl()
+    bs = fields.boundary
+    vals = measure_values(bs, ev.stress_measure)
+    fig, ax = plt.subplots(figsize=(9, 4.8))
+    styles = ["-", "--", "-.", ":"]
+    for j, r in enumerate(ev.load_cases):
+        ax.plot(bs.s, vals[:, j], styles[j % 4], lw=1.6, label=f"{r.name} (peak {r.peak_stress_mpa:.1f} MPa)")
+    if allowable:
+        ax.axhline(allowable, color="black", lw=1.0, ls=(0, (6, 3)), label=f"allowable {allowable:g} MPa")
+    ax.set_xlabel("arc length round the cutout, counter-clockwise (mm)")
+    ax.set_ylabel(f"{STRESS_LABELS[ev.stress_measure]} (MPa)")
+    ax.set_xlim(bs.s[0], bs.s[-1])
+    ax.grid(True, alpha=0.3)
+    ax.legend(fontsize=8)
+    ax.set_title(f"{title}: stress along the cutout edge")
+    fig.tight_layout()
+    fig.savefig(path, dpi=130)
+    plt.close(fig)
+    return path
+
+
+def plot_mesh(path: Path, fields: EvaluationFields, cutout_bounds: tuple[float, float, float, float],
+              title: str) -> Path:
+    plt = _mpl()
+    mesh = fields.panel_mesh.mesh
+    x0, y0, x1, y1 = cutout_bounds
+    pad = 0.35 * max(x1 - x0, y1 - y0)
+    fig, ax = plt.subplots(figsize=(7, 7))
+    ax.triplot(mesh.p[0, :mesh.nvertices], mesh.p[1, :mesh.nvertices], mesh.t.T, color="0.3", lw=0.35)
+    cut = fields.panel_mesh.cutout_facets
+    dofs = mesh.doflocs
+    mids = dofs[:, mesh.nvertices + cut]
+    ax.plot(mids[0], mids[1], ".", color="C3", ms=2, label="curved mid-side nodes on the exact outline")
+    ax.set_xlim(x0 - pad, x1 + pad)
+    ax.set_ylim(y0 - pad, y1 + pad)
+    ax.set_aspect("equal")
+    ax.set_xlabel("x (mm)")
+    ax.set_ylabel("y (mm)")
+    ax.legend(fontsize=8, loc="upper right")
+    ax.set_title(f"{title}\nmesh near the cutout ({fields.panel_mesh.region.name} model, "
+                 f"{fields.panel_mesh.n_elements} elements)")
+    fig.tight_layout()
+    fig.savefig(path, dpi=130)
+    plt.close(fig)
+    return path
