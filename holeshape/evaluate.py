@@ -324,9 +324,15 @@ def stress_at_points(pm, sol: PanelSolution, xy: np.ndarray) -> np.ndarray:
         q[1] = np.where(flip, 2 * region.y0 - q[1], q[1])
         sign = np.where(flip, -sign, sign)
     mesh, basis = pm.mesh, sol.basis
-    # the quadratic mesh has no point finder: locate on its straight-sided twin, then invert the curved map
+    # the quadratic mesh has no point finder: locate on its straight-sided twin, start from that element's affine
+    # inverse and polish with Newton steps on the curved map (no clipping, so points on an edge stay exact)
     cells = MeshTri1(mesh.p, mesh.t).element_finder()(q[0], q[1])
-    X = basis.mapping.invF(q[:, :, None], tind=cells)  # (2, n, 1)
+    v = mesh.p[:, mesh.t[:, cells]]  # (2, 3, n)
+    A = np.stack([v[:, 1] - v[:, 0], v[:, 2] - v[:, 0]], axis=1)  # (2, 2, n)
+    X = np.linalg.solve(A.transpose(2, 0, 1), (q - v[:, 0]).T[:, :, None])[:, :, 0].T[:, :, None]  # (2, n, 1)
+    for _ in range(6):
+        F = basis.mapping.F(X, tind=cells)
+        X = X + np.einsum("ijkl,jkl->ikl", basis.mapping.invDF(X, tind=cells), q[:, :, None] - F)
     m = sol.u.shape[1]
     out = np.empty((3, q.shape[1], m))
     grads = [basis.elem.gbasis(basis.mapping, X, j, tind=cells)[0].grad for j in range(basis.Nbfun)]

@@ -122,7 +122,7 @@ class FactorisedSystem:
 
 @dataclass(frozen=True)
 class BoundaryStress:
-    """Stress sampled along a boundary arc, in order.
+    """Stress sampled along a boundary arc, in order (a closed outline repeats its first sample at the end).
 
     ``s`` (n,) arc length, mm; ``xy`` (2, n) points, mm; ``tangent`` (2, n) unit tangents along the arc;
     ``sigma`` (3, n, m) stress components (sxx, syy, sxy) in MPa for m load cases.
@@ -229,11 +229,12 @@ def boundary_stress(mesh, u: np.ndarray, facets: np.ndarray, youngs_modulus: flo
     if s_nodes is None:
         s_nodes = np.concatenate([[0.0], np.cumsum(np.linalg.norm(x[:, :, -1] - x[:, :, 0], axis=0))])
     s_all = (s_nodes[:-1, None] + FACET_SAMPLES[None, :-1] * np.diff(s_nodes)[:, None]).reshape(-1)
-    if not closed:
-        sig_all = np.concatenate([sig_all, node_sig[:, -1:]], axis=1)
-        x_all = np.concatenate([x_all, node_x[:, -1:]], axis=1)
-        t_all = np.concatenate([t_all, node_t[:, -1:]], axis=1)
-        s_all = np.concatenate([s_all, s_nodes[-1:]])
+    # the last node (for a closed chain: the first node again, so the curve closes at s = perimeter)
+    last = 0 if closed else -1
+    sig_all = np.concatenate([sig_all, node_sig[:, last:][:, :1]], axis=1)
+    x_all = np.concatenate([x_all, node_x[:, last:][:, :1]], axis=1)
+    t_all = np.concatenate([t_all, node_t[:, last:][:, :1]], axis=1)
+    s_all = np.concatenate([s_all, s_nodes[-1:]])
     t_all = t_all / np.linalg.norm(t_all, axis=0)
     return BoundaryStress(s=s_all, xy=x_all, tangent=t_all, sigma=sig_all)
 
@@ -241,16 +242,19 @@ def boundary_stress(mesh, u: np.ndarray, facets: np.ndarray, youngs_modulus: flo
 def peak_along(s: np.ndarray, values: np.ndarray, closed: bool) -> tuple[float, int]:
     """Largest value of a sampled curve, refined by a parabola through the best sample and its neighbours.
 
-    Returns (peak, index of the best sample). The refinement never lowers the sampled maximum.
+    ``closed``: the samples go once round a closed outline and the last repeats the first. Returns (peak, index of
+    the best sample). The refinement never lowers the sampled maximum.
     """
-    i = int(np.argmax(values))
-    n = len(values)
-    best = float(values[i])
+    n = len(values) - 1 if closed else len(values)
+    v, x = values[:n], s[:n]
+    period = s[-1] - s[0]
+    i = int(np.argmax(v))
+    best = float(v[i])
     if closed or 0 < i < n - 1:
         j0, j2 = (i - 1) % n, (i + 1) % n
-        y0, y1, y2 = values[j0], values[i], values[j2]
-        h0 = s[i] - s[j0] if i > 0 else s[i] - (s[j0] - s[-1] - (s[1] - s[0]))
-        h2 = s[j2] - s[i] if j2 > i else (s[1] - s[0])
+        h0 = (x[i] - x[j0]) % period if closed else x[i] - x[j0]
+        h2 = (x[j2] - x[i]) % period if closed else x[j2] - x[i]
+        y0, y1, y2 = v[j0], v[i], v[j2]
         if h0 > 0 and h2 > 0:
             # parabola through (-h0, y0), (0, y1), (h2, y2)
             a = ((y2 - y1) / h2 + (y0 - y1) / h0) / (h0 + h2)
