@@ -1,0 +1,61 @@
+"""NAFEMS LE1 (elliptic membrane) through the solve layer's own API, on gmsh's curved geometry.
+
+Source: The Standard NAFEMS Benchmarks, Rev. 3 (1990), test LE1: quarter of the region between the ellipses
+x^2/2^2 + y^2/1^2 = 1 and x^2/3.25^2 + y^2/2.75^2 = 1 (metres; modelled here in mm), E = 210 GPa, nu = 0.3,
+uniform outward pressure 10 MPa on the outer edge, symmetry on both axes. Target sigma_yy = 92.7 MPa at D = (2, 0).
+Tolerance 1 % (the issue's requirement; the published target is given to 3 figures).
+"""
+
+import numpy as np
+import pytest
+
+from holeshape.mesh import _gmsh, mesh_from_gmsh
+from holeshape.solve import FactorisedSystem, boundary_stress, stiffness, traction_load, vector_basis
+
+
+def le1_mesh(size_mm: float):
+    gmsh = _gmsh()
+    gmsh.clear()
+    gmsh.model.add("le1")
+    g = gmsh.model.geo
+    c = g.addPoint(0, 0, 0)
+    a_in, b_in, a_out, b_out = 2000.0, 1000.0, 3250.0, 2750.0
+    p1, p2 = g.addPoint(a_in, 0, 0), g.addPoint(0, b_in, 0)
+    p3, p4 = g.addPoint(a_out, 0, 0), g.addPoint(0, b_out, 0)
+    inner = g.addEllipseArc(p1, c, p1, p2)
+    outer = g.addEllipseArc(p3, c, p3, p4)
+    bottom, left = g.addLine(p1, p3), g.addLine(p4, p2)
+    s = g.addPlaneSurface([g.addCurveLoop([bottom, outer, left, -inner])])
+    g.synchronize()
+    gmsh.option.setNumber("Mesh.MeshSizeMax", size_mm)
+    gmsh.option.setNumber("Mesh.MeshSizeMin", size_mm / 4)
+    gmsh.model.mesh.setSize([(0, p1)], size_mm / 4)
+    gmsh.option.setNumber("Mesh.MeshSizeFromPoints", 1)
+    gmsh.option.setNumber("Mesh.MeshSizeExtendFromBoundary", 1)
+    gmsh.model.mesh.generate(2)
+    gmsh.model.mesh.setOrder(2)  # mid-side nodes on the exact ellipses
+    mesh = mesh_from_gmsh(gmsh, s)
+    gmsh.clear()
+    return mesh
+
+
+@pytest.mark.parametrize("size_mm", [125.0, 60.0])
+def test_le1_sigma_yy_at_d(size_mm):
+    mesh = le1_mesh(size_mm)
+    bf = mesh.boundary_facets()
+    mid = mesh.p[:, mesh.facets[:, bf]].mean(axis=1)
+    on_x, on_y = np.abs(mid[1]) < 1e-6, np.abs(mid[0]) < 1e-6
+    r_out = (mid[0] / 3250.0) ** 2 + (mid[1] / 2750.0) ** 2
+    r_in = (mid[0] / 2000.0) ** 2 + (mid[1] / 1000.0) ** 2
+    outer, inner = bf[np.abs(r_out - 1) < 0.02], bf[np.abs(r_in - 1) < 0.02]
+    basis = vector_basis(mesh)
+    K = stiffness(basis, 210000.0, 0.3)
+    F = traction_load(mesh, outer, lambda x, y: (10.0, 10.0, 0.0))  # sigma = 10 I: traction 10 n, outward
+    fixed = np.concatenate([basis.get_dofs(bf[on_x]).all("u^2"), basis.get_dofs(bf[on_y]).all("u^1")])
+    u = FactorisedSystem(K, fixed).solve(F[:, None])
+    # chain the inner facets from D = (2000, 0) towards (0, 1000)
+    ang = np.arctan2(mesh.p[1, mesh.facets[:, inner]].mean(axis=0), mesh.p[0, mesh.facets[:, inner]].mean(axis=0))
+    bs = boundary_stress(mesh, u, inner[np.argsort(ang)], 210000.0, 0.3, closed=False)
+    assert bs.xy[:, 0] == pytest.approx([2000.0, 0.0], abs=1e-6)
+    sigma_yy_d = bs.sigma[1, 0, 0]
+    assert sigma_yy_d == pytest.approx(92.7, rel=0.01)  # NAFEMS LE1 target, 1 % (see module docstring)
