@@ -34,11 +34,12 @@ class MeshSpec:
     growth: float = 0.1
     max_fraction: float = 0.1
     min_segments: int = 48  # on a full cutout outline (fewer on a reduced arc, in proportion)
+    curved: bool = True  # False leaves straight-sided elements on the cutout (only for comparisons in benchmarks/)
 
     def coarsened(self, factor: float = 2.0) -> MeshSpec:
         """The same mesh family with every size multiplied by ``factor`` (the second level of a check)."""
         return MeshSpec(self.boundary_ratio / factor, self.growth * factor, self.max_fraction * factor,
-                        max(8, int(round(self.min_segments / factor))))
+                        max(8, int(round(self.min_segments / factor))), self.curved)
 
 
 @dataclass(frozen=True)
@@ -249,8 +250,8 @@ def mesh_panel(width: float, height: float, cutout: Cutout, region: Region, spec
     # counter-clockwise triangles
     d = (p[0, t[1]] - p[0, t[0]]) * (p[1, t[2]] - p[1, t[0]]) - (p[1, t[1]] - p[1, t[0]]) * (p[0, t[2]] - p[0, t[0]])
     t[[1, 2]] = np.where(d < 0, t[[2, 1]], t[[1, 2]])
-    linear = MeshTri1(p, t)
-    return _curve_cutout(linear, MeshTri2, cutout, xy_ring, t_ring, closed, region, width, height)
+    linear = MeshTri1(p, np.ascontiguousarray(t))
+    return _curve_cutout(linear, MeshTri2, cutout, xy_ring, t_ring, closed, region, width, height, spec.curved)
 
 
 def _size_field(gmsh, points: list[int], node_h: np.ndarray, growth: float, h_max: float) -> None:
@@ -274,11 +275,11 @@ def _size_field(gmsh, points: list[int], node_h: np.ndarray, growth: float, h_ma
     fld.setAsBackgroundMesh(low)
 
 
-def _curve_cutout(linear, mesh_cls, cutout: Cutout, xy_ring, t_ring, closed, region, width, height) -> PanelMesh:
+def _curve_cutout(linear, mesh_cls, cutout: Cutout, xy_ring, t_ring, closed, region, width, height,
+                  curved: bool = True) -> PanelMesh:
     from scipy.spatial import cKDTree
 
     p = linear.p
-    n_nodes = xy_ring.shape[1]
     dist, vid = cKDTree(p.T).query(xy_ring.T)
     scale = max(width, height)
     if dist.max() > 1e-9 * scale:
@@ -309,7 +310,8 @@ def _curve_cutout(linear, mesh_cls, cutout: Cutout, xy_ring, t_ring, closed, reg
     quad = mesh_cls.from_mesh(linear)
     doflocs = quad.doflocs.copy()
     mid_dofs = quad.dofs.facet_dofs[0, cut_facets]  # the one mid-side DOF of each P2 facet
-    doflocs[:, mid_dofs] = mid_xy
+    if curved:
+        doflocs[:, mid_dofs] = mid_xy
     from dataclasses import replace
 
     quad = replace(quad, doflocs=doflocs)
@@ -349,4 +351,4 @@ def mesh_from_gmsh(gmsh, surface: int):
     remap = np.full(tags.size, -1, dtype=np.int64)
     remap[used] = np.arange(used.size)
     p = coords.reshape(-1, 3)[used, :2].T.copy()
-    return MeshTri2(p, remap[tri])
+    return MeshTri2(p, np.ascontiguousarray(remap[tri]))

@@ -39,7 +39,7 @@ def vector_basis(mesh):
 
 def stiffness(basis, youngs_modulus: float, poisson_ratio: float):
     from skfem import BilinearForm
-    from skfem.helpers import ddot, sym_grad, trace, eye
+    from skfem.helpers import ddot, eye, sym_grad, trace
 
     lam, mu = plane_stress_constants(youngs_modulus, poisson_ratio)
 

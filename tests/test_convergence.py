@@ -5,8 +5,8 @@ Exact answers: Kirsch (1898) and Inglis (1913), see test_kirsch.py and test_ingl
 
 import numpy as np
 import pytest
-
 from conftest import ALUMINIUM, BIG, big_panel, centred, run
+
 from holeshape.mesh import MeshSpec, Region, mesh_panel
 from holeshape.solve import solve_panel
 
@@ -34,10 +34,12 @@ def test_observed_rate_of_the_boundary_stress_error():
 
 
 @pytest.mark.parametrize("accuracy", ["draft", "standard", "fine"])
-@pytest.mark.parametrize("case", ["kirsch shear", "inglis a/b=4 across", "inglis a/b=8 along"])
+@pytest.mark.parametrize("case", ["kirsch shear", "inglis a/b=2 across", "inglis a/b=4 across", "inglis a/b=8 along"])
 def test_error_estimate_brackets_the_true_error(accuracy, case):
     if case == "kirsch shear":
         c, load, exact = centred("circle", radius=10.0), (0.0, 0.0, 100.0), 400.0  # Kirsch: 4 t
+    elif case == "inglis a/b=2 across":
+        c, load, exact = centred("ellipse", a=10.0, b=5.0), (0.0, 100.0, 0.0), 500.0  # Inglis: 1 + 2a/b
     elif case == "inglis a/b=4 across":
         c, load, exact = centred("ellipse", a=10.0, b=2.5), (0.0, 100.0, 0.0), 900.0  # Inglis: 1 + 2a/b
     else:

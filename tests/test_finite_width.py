@@ -7,8 +7,8 @@ Tolerance 1 %: Howland's table is given to 3 figures and the issue's requirement
 """
 
 import pytest
-
 from conftest import ALUMINIUM
+
 from holeshape.evaluate import evaluate
 from holeshape.geometry import Circle, Cutout
 from holeshape.study import LoadCase, Measure, Panel

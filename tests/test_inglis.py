@@ -9,7 +9,6 @@ Tolerance 0.1 %: the "standard" level's documented true-error target (measured <
 
 import numpy as np
 import pytest
-
 from conftest import BIG, centred, run
 
 

@@ -11,8 +11,8 @@ import math
 
 import numpy as np
 import pytest
-
 from conftest import BIG, centred, run
+
 from holeshape.solve import plane_stress_constants
 
 

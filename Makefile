@@ -1,0 +1,32 @@
+# holeshape: the two commands a fresh clone needs are `make demo` and `make test`.
+PYTHON ?= python3
+VENV   ?= .venv
+PY     := $(VENV)/bin/python
+STAMP  := $(VENV)/.holeshape-installed
+
+.PHONY: demo test lint bench validate clean
+
+$(STAMP): pyproject.toml
+	test -x $(PY) || $(PYTHON) -m venv $(VENV)
+	$(PY) -m pip install --quiet --upgrade pip
+	$(PY) -m pip install --quiet -e '.[test]'
+	$(PY) -c "import gmsh" || { echo "gmsh cannot load its system libraries; see README (Installation)"; exit 1; }
+	touch $(STAMP)
+
+demo: $(STAMP)
+	$(VENV)/bin/holeshape check studies/rib-web-access.toml --plots out/rib-web-access
+
+test: $(STAMP)
+	$(PY) -m pytest
+
+lint: $(STAMP)
+	$(VENV)/bin/ruff check holeshape tests benchmarks examples
+
+validate: $(STAMP)
+	$(PY) benchmarks/validation.py standard
+
+bench: $(STAMP)
+	$(PY) benchmarks/speed.py
+
+clean:
+	rm -rf $(VENV) out runs .pytest_cache

@@ -1,0 +1,107 @@
+"""The check command: JSON contract, plots, cautions, and one-line errors with exit code 2 for bad input."""
+
+import json
+import re
+from pathlib import Path
+
+import pytest
+
+from holeshape.cli import main
+
+ROOT = Path(__file__).resolve().parents[1]
+STUDY = ROOT / "studies" / "rib-web-access.toml"
+
+
+def test_json_contract(capsys):
+    assert main(["check", str(STUDY), "--json", "--accuracy", "draft"]) == 0
+    d = json.loads(capsys.readouterr().out)
+    for key, typ in [("peak_stress_mpa", float), ("kt", float), ("kt_reference", str), ("error_estimate_pct", float),
+                     ("area_mm2", float), ("dofs", int), ("elapsed_s", float), ("load_cases", list)]:
+        assert isinstance(d[key], typ), key
+    assert d["margin_of_safety"] == pytest.approx(280.0 / d["peak_stress_mpa"] - 1, rel=1e-12)
+    assert [c["name"] for c in d["load_cases"]] == ["shear and chordwise tension", "chordwise compression"]
+    for c in d["load_cases"]:
+        assert {"name", "peak_stress_mpa", "kt", "x_mm", "y_mm"} <= set(c)
+    assert d["peak_stress_mpa"] == max(c["peak_stress_mpa"] for c in d["load_cases"])
+    # superellipse area 4ab Gamma(1 + 1/n)^2 / Gamma(1 + 2/n), n = 4 (closed form)
+    assert d["area_mm2"] == pytest.approx(3.708149354602744 * 60 * 40, rel=1e-9)
+    # net-section stress across the 60 mm ligament under sx = -80: -80 x 200 / 120 (statics), 0.5 %
+    assert d["load_cases"][1]["net_section_stress_mpa"] == pytest.approx(-80 * 200 / 120, rel=5e-3)
+    assert "qualified engineer" in d["cautions"]
+
+
+def test_human_output_and_plots(tmp_path, capsys):
+    assert main(["check", str(STUDY), "--plots", str(tmp_path), "--accuracy", "draft"]) == 0
+    out = capsys.readouterr().out
+    assert "CAUTION" in out and "plane-stress" in out and "buckling" in out and "qualified engineer" in out
+    assert "margin" in out
+    for name in ("stress_field.png", "boundary_stress.png", "mesh_near_cutout.png"):
+        f = tmp_path / name
+        assert f.stat().st_size > 10_000 and f.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
+
+
+BASE = STUDY.read_text()
+
+
+def _variant(tmp_path, old, new):
+    assert old in BASE, old
+    p = tmp_path / "bad.toml"
+    p.write_text(BASE.replace(old, new))
+    return p
+
+
+BAD = [
+    ("width = 300.0", "width = -300.0", r"panel\.width must be > 0, got -300\.0"),
+    ("width = 300.0", "width = \"wide\"", r"panel\.width must be a number, got 'wide'"),
+    ("height = 200.0 ", "", r"panel\.height is missing"),
+    ("poisson_ratio = 0.33", "poisson_ratio = 0.5", r"material\.poisson_ratio must lie strictly between -1 and 0\.5"),
+    ("poisson_ratio = 0.33", "poisson_ratio = -1.2", r"poisson_ratio.*got -1\.2"),
+    ("youngs_modulus = 71000.0", "youngs_modulus = 0.0", r"material\.youngs_modulus must be > 0, got 0\.0"),
+    ("shape = \"superellipse\"", "shape = \"hexagon\"", r"cutout\.shape must be one of .*got 'hexagon'"),
+    ("exponent = 4.0", "exponant = 4.0", r"cutout\.exponant is not a known key \(did you mean 'exponent'\?\)"),
+    ("center = [150.0, 100.0]", "center = [30.0, 100.0]", r"across the left panel edge"),
+    ("center = [150.0, 100.0]", "center = [500.0, 100.0]", r"outside or across the right panel edge"),
+    ("a = 60.0 ", "a = 0.0 ", r"cutout\.a must be > 0, got 0\.0"),
+    ("edges = \"traction\"", "edges = \"clamped\"", r"panel\.edges must be one of traction, displacement"),
+    ("stress = \"von_mises\"", "stress = \"tresca\"", r"measure\.stress must be one of"),
+    ("sigma_x = -80.0", "sigma_x = nan", r"load_case\[1\]\.sigma_x must be finite, got nan"),
+    ("[cutout]\nshape = \"superellipse\"", "[cutout]\nshape = \"spline\"\nradii = [40.0, 40.0, 4.0, 4.0, 40.0, 40.0,"
+     " 40.0, 40.0]", r"cutout\.a is not a known key"),
+]
+
+
+@pytest.mark.parametrize("old,new,message", BAD, ids=[b[2][:40] for b in BAD])
+def test_bad_input_is_one_line_exit_2(tmp_path, capsys, old, new, message):
+    path = _variant(tmp_path, old, new)
+    assert main(["check", str(path)]) == 2
+    cap = capsys.readouterr()
+    lines = cap.err.strip().splitlines()
+    assert len(lines) == 1, cap.err
+    assert "Traceback" not in cap.err
+    assert re.search(message, lines[0]), lines[0]
+    assert cap.out == ""
+
+
+def test_self_crossing_spline(tmp_path, capsys):
+    p = tmp_path / "spline.toml"
+    radii = "[40.0, 40.0, 4.0, 4.0, 40.0, 40.0, 40.0, 40.0]"
+    text = BASE.split("[cutout]")[0] + f"[cutout]\nshape = \"spline\"\ncenter = [150.0, 100.0]\nradii = {radii}\n"
+    p.write_text(text)
+    assert main(["check", str(p)]) == 2
+    err = capsys.readouterr().err
+    assert "cutout.radii" in err and "self-crossing" in err and len(err.strip().splitlines()) == 1
+
+
+def test_missing_file_and_bad_toml(tmp_path, capsys):
+    assert main(["check", str(tmp_path / "nope.toml")]) == 2
+    assert "does not exist" in capsys.readouterr().err
+    bad = tmp_path / "broken.toml"
+    bad.write_text("title = \n")
+    assert main(["check", str(bad)]) == 2
+    assert "not valid TOML" in capsys.readouterr().err
+
+
+def test_debug_shows_the_traceback(tmp_path, capsys):
+    path = _variant(tmp_path, "width = 300.0", "width = -300.0")
+    assert main(["check", str(path), "--debug"]) == 2
+    assert "Traceback" in capsys.readouterr().err
