@@ -14,7 +14,8 @@ $(STAMP): pyproject.toml
 	touch $(STAMP)
 
 demo: $(STAMP)
-	$(VENV)/bin/holeshape check studies/rib-web-access.toml --plots out/rib-web-access
+	$(VENV)/bin/holeshape check studies/rib-web-access.toml --plots runs/rib-web-access/current-design
+	$(VENV)/bin/holeshape optimise studies/rib-web-access.toml --out runs/rib-web-access
 
 test: $(STAMP)
 	$(PY) -m pytest

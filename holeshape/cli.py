@@ -41,6 +41,17 @@ def _parser() -> argparse.ArgumentParser:
     ck.add_argument("--json", action="store_true", help="machine-readable result on stdout")
     ck.add_argument("--plots", metavar="DIR", help="write PNG plots to DIR")
     ck.add_argument("--accuracy", choices=("draft", "standard", "fine"), help="override [measure] accuracy")
+    op = sub.add_parser("optimise", aliases=["optimize"], parents=[common],
+                        help="search the cutout ranges for the lowest peak stress under the constraints",
+                        description="Runs or resumes a shape search; writes best.dxf, best.csv, summary.json and "
+                        "plots to --out.")
+    op.add_argument("study", help="study file (TOML) with ranges in [cutout]")
+    op.add_argument("--out", help="run folder (default: runs/<study file name>)")
+    op.add_argument("--workers", type=int, default=1, help="worker processes on this machine (default 1)")
+    op.add_argument("--storage", metavar="URL", help="database URL shared by workers on several machines, e.g. "
+                    "postgresql://user@host/db (default: a journal file in --out)")
+    op.add_argument("--trade-off", action="store_true", help="two objectives: peak stress down, removed area up")
+    op.add_argument("--json", action="store_true", help="summary on stdout as JSON")
     return ap
 
 
@@ -52,6 +63,8 @@ def main(argv: list[str] | None = None) -> int:
     try:
         if args.command == "check":
             return _check(args)
+        if args.command in ("optimise", "optimize"):
+            return _optimise(args)
         raise AssertionError(args.command)
     except (StudyError, GeometryError) as err:
         return _fail(args, err, EXIT_INPUT)
@@ -119,6 +132,22 @@ def _check(args) -> int:
                 print(f"  plot          {p}")
         else:
             print(f"{ev.peak_stress_mpa:.3f} MPa (Kt {ev.kt:.4f}, error estimate {ev.error_estimate_pct:.3f} %)")
+    return 0
+
+
+def _optimise(args) -> int:
+    from holeshape.optimise import run_optimise
+    from holeshape.output.files import safe_name
+
+    out = args.out or str(Path("runs") / safe_name(Path(args.study).stem))
+    summary = run_optimise(args.study, out, workers=args.workers, storage_url=args.storage,
+                           trade_off=args.trade_off, progress=not args.quiet)
+    if args.json:
+        print(json.dumps(summary, indent=2))
+        return 0
+    from holeshape.output.text import optimise_summary
+
+    print(optimise_summary(summary))
     return 0
 
 

@@ -65,11 +65,13 @@ class LoadCase:
 
 @dataclass(frozen=True)
 class Range:
-    """A search range for a cutout parameter (used by the search; ``check`` needs numbers)."""
+    """A search range for a cutout parameter. ``value`` (optional) is the current design: ``check`` evaluates it
+    and the search tries it first."""
 
     min: float
     max: float
     log: bool = False
+    value: float | None = None
 
 
 @dataclass(frozen=True)
@@ -93,11 +95,19 @@ class CutoutSpec:
         """The placed :class:`~holeshape.geometry.Cutout` (all values must be numbers)."""
         from holeshape.geometry import FAMILIES, Cutout
 
-        vals = dict(self.values)
+        vals = {k: (list(v) if isinstance(v, (list, tuple)) else v) for k, v in self.values.items()}
         vals.update(overrides or {})
+
+        def number(k, v):
+            if isinstance(v, Range):
+                if v.value is None:
+                    raise StudyError(f"cutout.{k} is a range (min = {v.min:g}, max = {v.max:g}) without a value;"
+                                     " give value = ... for the design to check, or run holeshape optimise")
+                return v.value
+            return v
+
         for k, v in vals.items():
-            if isinstance(v, Range) or (isinstance(v, (list, tuple)) and any(isinstance(i, Range) for i in v)):
-                raise StudyError(f"cutout.{k} is a range {v!r}; this command needs a number")
+            vals[k] = [number(f"{k}[{i}]", x) for i, x in enumerate(v)] if isinstance(v, list) else number(k, v)
         cls = FAMILIES[self.shape]
         kwargs = {k: vals[k] for k in SHAPE_PARAMETERS[self.shape] if k in vals}
         if "radii" in kwargs:
@@ -115,6 +125,59 @@ class Measure:
 
 
 @dataclass(frozen=True)
+class Access:
+    """The envelope the opening must clear: a rectangle ``width`` x ``height`` or a circle of ``diameter`` (mm),
+    centred at ``center`` (default: the cutout's centre), rotated ``rotation`` degrees counter-clockwise."""
+
+    width: float | None = None
+    height: float | None = None
+    diameter: float | None = None
+    center: tuple[float, float] | None = None
+    rotation: float = 0.0
+
+    def polygon(self, default_center: tuple[float, float], clearance: float = 0.0):
+        """Shapely polygon of the envelope grown by ``clearance`` (mm)."""
+        from shapely import affinity
+        from shapely.geometry import Point, box
+
+        cx, cy = self.center if self.center is not None else default_center
+        if self.diameter is not None:
+            return Point(cx, cy).buffer(self.diameter / 2 + clearance, quad_segs=64)
+        env = box(cx - self.width / 2, cy - self.height / 2, cx + self.width / 2, cy + self.height / 2)
+        env = affinity.rotate(env, self.rotation, origin=(cx, cy))
+        return env.buffer(clearance, quad_segs=16, join_style="round") if clearance > 0 else env
+
+    @property
+    def half_sizes(self) -> tuple[float, float]:
+        if self.diameter is not None:
+            return self.diameter / 2, self.diameter / 2
+        return self.width / 2, self.height / 2
+
+
+@dataclass(frozen=True)
+class Constraints:
+    """Requirements on the opening (mm, mm^2). ``area`` fixes the removed area (each design is scaled to it)."""
+
+    min_area: float | None = None
+    max_area: float | None = None
+    area: float | None = None
+    access: Access | None = None
+    clearance: float = 0.0
+    min_ligament: float | None = None
+    min_radius: float | None = None
+
+
+@dataclass(frozen=True)
+class SearchSettings:
+    """``trials``: evaluations in all (the standard shapes first); ``seed``: sampler seed;
+    ``global_fraction``: share of the trials for the global sampler before the local refinement."""
+
+    trials: int = 60
+    seed: int = 0
+    global_fraction: float = 0.5
+
+
+@dataclass(frozen=True)
 class Study:
     title: str
     panel: Panel
@@ -122,7 +185,8 @@ class Study:
     load_cases: tuple[LoadCase, ...]
     cutout: CutoutSpec
     measure: Measure = Measure()
-    extra: dict[str, Any] = field(default_factory=dict)  # tables the later layers parse ([constraints], [search])
+    constraints: Constraints = Constraints()
+    search: SearchSettings = SearchSettings()
     source: str = ""
 
 
@@ -155,7 +219,7 @@ def _number(table: dict, key: str, where: str, *, default: Any = ..., positive: 
 
 
 def _range(v: dict, name: str, positive: bool) -> Range:
-    _unknown(v, ("min", "max", "log"), f"{name}.")
+    _unknown(v, ("min", "max", "log", "value"), f"{name}.")
     lo = _number(v, "min", f"{name}.", positive=positive)
     hi = _number(v, "max", f"{name}.", positive=positive)
     log = v.get("log", False)
@@ -165,7 +229,10 @@ def _range(v: dict, name: str, positive: bool) -> Range:
         raise StudyError(f"{name} must have min <= max, got min = {lo!r}, max = {hi!r}")
     if log and lo <= 0:
         raise StudyError(f"{name} with log = true needs min > 0, got {lo!r}")
-    return Range(lo, hi, log)
+    value = _number(v, "value", f"{name}.", default=None)
+    if value is not None and not lo <= value <= hi:
+        raise StudyError(f"{name}.value must lie between min = {lo!r} and max = {hi!r}, got {value!r}")
+    return Range(lo, hi, log, value)
 
 
 def _string(table: dict, key: str, where: str, choices: tuple[str, ...] | None = None, default: Any = ...) -> Any:
@@ -260,12 +327,92 @@ def parse_study(doc: dict, source: str = "") -> Study:
         stress=_string(ms, "stress", "measure.", MEASURES, default="von_mises"),
         accuracy=_string(ms, "accuracy", "measure.", ACCURACIES, default="standard"),
     )
-    extra = {k: doc[k] for k in ("constraints", "search") if k in doc}
-    for k, v in extra.items():
-        if not isinstance(v, dict):
-            raise StudyError(f"{k} must be a table ([{k}]), got {v!r}")
+    constraints = _parse_constraints(_table(doc, "constraints", required=False), panel)
+    search = _parse_search(_table(doc, "search", required=False))
     return Study(title=title, panel=panel, material=material, load_cases=tuple(load_cases), cutout=cutout,
-                 measure=measure, extra=extra, source=source)
+                 measure=measure, constraints=constraints, search=search, source=source)
+
+
+def _parse_constraints(c: dict, panel: Panel) -> Constraints:
+    w = "constraints."
+    _unknown(c, ("min_area", "max_area", "area", "access", "clearance", "min_ligament", "min_radius"), w)
+    access = None
+    if "access" in c:
+        a = c["access"]
+        if not isinstance(a, dict):
+            raise StudyError(f"constraints.access must be a table such as {{width = 100.0, height = 60.0}} or "
+                             f"{{diameter = 80.0}}, got {a!r}")
+        _unknown(a, ("width", "height", "diameter", "center", "rotation"), "constraints.access.")
+        aw = "constraints.access."
+        if "diameter" in a:
+            if "width" in a or "height" in a:
+                raise StudyError("constraints.access takes either diameter or width and height, not both")
+            dims = {"diameter": _number(a, "diameter", aw, positive=True)}
+        elif "width" in a or "height" in a:
+            dims = {"width": _number(a, "width", aw, positive=True), "height": _number(a, "height", aw, positive=True)}
+        else:
+            raise StudyError("constraints.access needs width and height (mm) or diameter (mm)")
+        center = a.get("center")
+        if center is not None:
+            if not isinstance(center, list) or len(center) != 2:
+                raise StudyError(f"constraints.access.center must be [x, y] in mm, got {center!r}")
+            center = tuple(_number({"v": v}, "v", f"{aw}center[{i}]") for i, v in enumerate(center))
+        access = Access(center=center, rotation=_number(a, "rotation", aw, default=0.0), **dims)
+    cons = Constraints(
+        min_area=_number(c, "min_area", w, default=None, positive=True),
+        max_area=_number(c, "max_area", w, default=None, positive=True),
+        area=_number(c, "area", w, default=None, positive=True),
+        access=access,
+        clearance=_number(c, "clearance", w, default=0.0),
+        min_ligament=_number(c, "min_ligament", w, default=None, positive=True),
+        min_radius=_number(c, "min_radius", w, default=None, positive=True),
+    )
+    if cons.clearance < 0:
+        raise StudyError(f"constraints.clearance must be >= 0 mm, got {cons.clearance!r}")
+    if cons.area is not None and (cons.min_area is not None or cons.max_area is not None):
+        raise StudyError("constraints.area fixes the area: give either area or min_area / max_area, not both")
+    if cons.min_area is not None and cons.max_area is not None and cons.min_area > cons.max_area:
+        raise StudyError(f"constraints.min_area ({cons.min_area!r} mm^2) must not exceed constraints.max_area"
+                         f" ({cons.max_area!r} mm^2)")
+    limit = panel.width * panel.height
+    for name in ("min_area", "area"):
+        v = getattr(cons, name)
+        if v is not None and v >= limit:
+            raise StudyError(f"constraints.{name} = {v!r} mm^2 cannot be removed from a {limit:g} mm^2 panel")
+    if cons.min_ligament is not None and 2 * cons.min_ligament >= min(panel.width, panel.height):
+        raise StudyError(f"constraints.min_ligament = {cons.min_ligament!r} mm leaves no room for an opening in a "
+                         f"{panel.width:g} x {panel.height:g} mm panel")
+    if access is not None:
+        x0, y0, x1, y1 = access.polygon((0.0, 0.0), cons.clearance).bounds
+        lig = 2 * (cons.min_ligament or 0.0)
+        if x1 - x0 + lig >= panel.width or y1 - y0 + lig >= panel.height:
+            raise StudyError(
+                f"constraints.access envelope ({x1 - x0:g} x {y1 - y0:g} mm with clearance {cons.clearance:g} mm) plus"
+                f" the ligament of {cons.min_ligament or 0:g} mm each side cannot fit the {panel.width:g} x "
+                f"{panel.height:g} mm panel")
+        env_area = access.polygon((0.0, 0.0), cons.clearance).area
+        for name in ("max_area", "area"):
+            v = getattr(cons, name)
+            if v is not None and v < env_area:
+                raise StudyError(f"constraints.{name} = {v!r} mm^2 is smaller than the access envelope with its "
+                                 f"clearance ({env_area:.0f} mm^2): no opening can meet both")
+    return cons
+
+
+def _parse_search(c: dict) -> SearchSettings:
+    _unknown(c, ("trials", "seed", "global_fraction"), "search.")
+    trials, seed = c.get("trials", 60), c.get("seed", 0)
+    for name, v in (("trials", trials), ("seed", seed)):
+        if isinstance(v, bool) or not isinstance(v, int):
+            raise StudyError(f"search.{name} must be an integer, got {v!r}")
+    if trials < 1 or trials > 100_000:
+        raise StudyError(f"search.trials must be between 1 and 100000, got {trials!r}")
+    if seed < 0:
+        raise StudyError(f"search.seed must be >= 0, got {seed!r}")
+    frac = _number(c, "global_fraction", "search.", default=0.5)
+    if not 0.0 < frac <= 1.0:
+        raise StudyError(f"search.global_fraction must be in (0, 1], got {frac!r}")
+    return SearchSettings(trials=trials, seed=seed, global_fraction=frac)
 
 
 def _parse_cutout(c: dict, panel: Panel) -> CutoutSpec:
@@ -304,7 +451,7 @@ def _parse_cutout(c: dict, panel: Panel) -> CutoutSpec:
                         else _range(v, f"cutout.center[{i}]", False) for i, v in enumerate(center)]
     values["rotation"] = _number(c, "rotation", "cutout.", default=0.0, allow_range=True)
     spec = CutoutSpec(shape=shape, values=values)
-    if not spec.ranges:
+    if all(r.value is not None for r in spec.ranges.values()):
         check_cutout_in_panel(spec.build(), panel)
     return spec
 

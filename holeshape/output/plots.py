@@ -11,6 +11,9 @@ import numpy as np
 
 from holeshape.evaluate import STRESS_LABELS, Evaluation, EvaluationFields, measure_values
 
+PLOT_CAUTION = ("holeshape: linear-elastic plane stress; no buckling, fatigue or fracture assessment; "
+                "review by a qualified engineer; applicable codes govern")
+
 
 def _mpl():
     import matplotlib
@@ -19,6 +22,20 @@ def _mpl():
     import matplotlib.pyplot as plt
 
     return plt
+
+
+def save(fig, path: Path) -> Path:
+    """Save with the caution line at the foot, atomically (temporary file, then rename)."""
+    import os
+
+    fig.text(0.01, 0.005, PLOT_CAUTION, fontsize=6.5, color="0.35", ha="left", va="bottom")
+    tmp = path.with_name(f".{path.name}.tmp")
+    fig.savefig(tmp, dpi=130, format="png")
+    os.replace(tmp, path)
+    import matplotlib.pyplot as plt
+
+    plt.close(fig)
+    return path
 
 
 def vertex_stress(fields: EvaluationFields) -> np.ndarray:
@@ -87,10 +104,8 @@ def plot_stress_field(path: Path, ev: Evaluation, fields: EvaluationFields, cuto
     label = "von Mises stress" if measure == "von_mises" else "max principal stress"
     fig.colorbar(tpc, ax=ax, shrink=0.8, label=f"{label} (MPa)")
     ax.set_title(f"{title}\n{r.name}: {label}")
-    fig.tight_layout()
-    fig.savefig(path, dpi=130)
-    plt.close(fig)
-    return path
+    fig.tight_layout(rect=(0, 0.02, 1, 1))
+    return save(fig, path)
 
 
 def plot_boundary_stress(path: Path, ev: Evaluation, fields: EvaluationFields, allowable: float | None,
@@ -110,10 +125,8 @@ def plot_boundary_stress(path: Path, ev: Evaluation, fields: EvaluationFields, a
     ax.grid(True, alpha=0.3)
     ax.legend(fontsize=8)
     ax.set_title(f"{title}: stress along the cutout edge")
-    fig.tight_layout()
-    fig.savefig(path, dpi=130)
-    plt.close(fig)
-    return path
+    fig.tight_layout(rect=(0, 0.02, 1, 1))
+    return save(fig, path)
 
 
 def plot_mesh(path: Path, fields: EvaluationFields, cutout_bounds: tuple[float, float, float, float],
@@ -136,7 +149,5 @@ def plot_mesh(path: Path, fields: EvaluationFields, cutout_bounds: tuple[float, 
     ax.legend(fontsize=8, loc="upper right")
     ax.set_title(f"{title}\nmesh near the cutout ({fields.panel_mesh.region.name} model, "
                  f"{fields.panel_mesh.n_elements} elements)")
-    fig.tight_layout()
-    fig.savefig(path, dpi=130)
-    plt.close(fig)
-    return path
+    fig.tight_layout(rect=(0, 0.02, 1, 1))
+    return save(fig, path)

@@ -40,3 +40,45 @@ def check_summary(title: str, family: str, params: dict, ev: Evaluation, edges_n
         lines.append(f"  WARNING       {w}")
     lines += ["", "  CAUTION: " + CAUTIONS]
     return "\n".join(lines)
+
+
+def optimise_summary(s: dict) -> str:
+    b = s["best"]
+    dims = ", ".join(f"{k} = {_num(v)}" for k, v in b["params"].items())
+    x0, y0, x1, y1 = b["bounds_mm"]
+    lines = [
+        f"holeshape optimise: {s['study']}",
+        f"  trials        {s['trials_completed']} completed ({s['trials_infeasible']} infeasible, not solved),"
+        f" {s['trials_failed']} failed; storage {s['storage']}",
+        f"  best          {b['shape']}: {dims}",
+        f"  size          {x1 - x0:.1f} x {y1 - y0:.1f} mm overall, smallest radius {b['min_radius_mm']:.2f} mm,"
+        f" removed area {b['area_mm2']:.0f} mm^2",
+        f"  peak          {b['peak_stress_mpa']:.2f} MPa, Kt {b['kt']:.3f} ({b['kt_reference']}), error estimate"
+        f" {b['error_estimate_pct']:.3f} % at the {b['accuracy']} level",
+        f"  margin        {_fmt_mos(b['margin_of_safety'])}",
+    ]
+    for r in b["load_cases"]:
+        mos = "" if r["margin_of_safety"] is None else f", MoS {r['margin_of_safety']:+.3f}"
+        lines.append(f"    {r['name']}: {r['peak_stress_mpa']:.2f} MPa at ({r['x_mm']:.1f}, {r['y_mm']:.1f}) mm{mos}")
+    lines.append("  standard shapes (same constraints, fine level):")
+    for row in s["baselines"]:
+        if row.get("feasible"):
+            imp = s["improvement_over_baselines_pct"][row["shape"]]
+            lines.append(f"    {row['shape']:<18} {row['peak_stress_mpa']:8.2f} MPa, area {row['area_mm2']:.0f} mm^2;"
+                         f" best is {imp:+.1f} % {'lower' if imp >= 0 else 'higher'}")
+        else:
+            lines.append(f"    {row['shape']:<18} cannot meet the constraints: {row['reason']}")
+    if s.get("front"):
+        lines.append(f"  trade-off     {len(s['front'])} designs on the front (draft level), one DXF each")
+    for w in b["warnings"]:
+        lines.append(f"  WARNING       {w}")
+    lines.append(f"  profile       {b['dxf']} ({b['dxf_vertices']} vertices,"
+                 f" chord error {b['dxf_chord_error_mm']:.4f} mm)")
+    lines += ["", "  CAUTION: " + CAUTIONS]
+    return "\n".join(lines)
+
+
+def _num(v) -> str:
+    if isinstance(v, list):
+        return "[" + ", ".join(_num(x) for x in v) + "]"
+    return f"{v:.4g}" if isinstance(v, float) else str(v)

@@ -1,0 +1,329 @@
+"""``holeshape optimise``: run or resume a shape search, re-check the winner at the fine level, write the outputs.
+
+Outputs in the run folder (all written atomically): best.dxf, best.csv, summary.json, plots (search history, best
+shape over the standard shapes and the access envelope, stress field and edge stress of the best design), and with
+``trade_off`` the front plot and one DXF per front member.
+"""
+
+from __future__ import annotations
+
+import fcntl
+import logging
+import multiprocessing
+import time
+from pathlib import Path
+
+from holeshape import CAUTIONS, __version__
+from holeshape.errors import HoleshapeError, StudyError
+from holeshape.evaluate import evaluate
+from holeshape.search.baselines import standard_shapes
+from holeshape.search.runner import (
+    Objective,
+    _add,
+    best_feasible,
+    finished,
+    is_feasible,
+    run_worker,
+    storage_for,
+    study_fingerprint,
+)
+from holeshape.search.space import DesignSpace
+from holeshape.study import Measure, load_study
+
+log = logging.getLogger("holeshape.optimise")
+FINAL_ACCURACY = "fine"
+
+
+class RunLock:
+    """One ``optimise`` per run folder at a time (its worker processes excepted)."""
+
+    def __init__(self, out_dir: Path):
+        self.path = out_dir / ".holeshape.lock"
+        self.fh = None
+
+    def __enter__(self):
+        self.fh = open(self.path, "w")
+        try:
+            fcntl.flock(self.fh, fcntl.LOCK_EX | fcntl.LOCK_NB)
+        except OSError as err:
+            self.fh.close()
+            raise StudyError(f"--out {str(self.path.parent)!r} is in use by another holeshape optimise; wait for it"
+                             " or choose another folder (use --workers to run in parallel)") from err
+        return self
+
+    def __exit__(self, *exc):
+        fcntl.flock(self.fh, fcntl.LOCK_UN)
+        self.fh.close()
+
+
+def _family_params(study_family: str, base_family: str, cut, space: DesignSpace) -> dict | None:
+    """The search parameters that reproduce a standard shape in the study's family, or None if it cannot."""
+    sh = cut.shape
+    vals: dict[str, float] = {}
+    if study_family == base_family:
+        vals = {k: v for k, v in sh.parameters().items() if not isinstance(v, (tuple, list, str))}
+    elif study_family == "superellipse" and base_family in ("circle", "ellipse"):
+        a = sh.radius if base_family == "circle" else sh.a
+        b = sh.radius if base_family == "circle" else sh.b
+        vals = {"a": a, "b": b, "exponent": 2.0}
+    elif study_family == "ellipse" and base_family == "circle":
+        vals = {"a": sh.radius, "b": sh.radius}
+    elif study_family == "spline" and base_family == "circle":
+        n = len(space.spec.values["radii"])
+        vals = {f"radii[{i}]": sh.radius for i in range(n)}
+    else:
+        return None
+    vals.update({"center[0]": cut.center[0], "center[1]": cut.center[1], "rotation": cut.rotation})
+    dims = space.dimensions
+    out = {}
+    for k, r in dims.items():
+        if k not in vals:
+            return None
+        v = vals[k]
+        if space.constraints.area is None and not (r.min <= v <= r.max):
+            return None
+        out[k] = min(max(v, r.min), r.max)
+    # fixed (non-searched) values must agree with the standard shape
+    for k, v in vals.items():
+        if k in dims:
+            continue
+        fixed = space.values({}).get(k.split("[")[0])
+        if isinstance(fixed, list) and "[" in k:
+            fixed = fixed[int(k[:-1].split("[")[1])]
+        if fixed is not None and not isinstance(fixed, (list, str)) and abs(float(fixed) - v) > 1e-9 * max(1, abs(v)):
+            if space.constraints.area is None or k in ("center[0]", "center[1]", "rotation", "exponent"):
+                return None
+    return out
+
+
+def run_optimise(study_path: str, out: str, workers: int = 1, storage_url: str | None = None,
+                 trade_off: bool = False, progress: bool = True) -> dict:
+    import optuna
+
+    optuna.logging.set_verbosity(optuna.logging.WARNING)
+    t0 = time.perf_counter()
+    study_def = load_study(study_path)
+    space = DesignSpace(study_def.cutout, study_def.constraints)
+    space.check()
+    if workers < 1 or workers > 64:
+        raise StudyError(f"--workers must be between 1 and 64, got {workers}")
+    out_dir = Path(out)
+    try:
+        out_dir.mkdir(parents=True, exist_ok=True)
+    except OSError as err:
+        raise StudyError(f"--out {out!r} cannot be created: {err.strerror}") from err
+    with RunLock(out_dir):
+        if storage_url is None:
+            _repair_journal(out_dir / "study.journal")
+        storage, storage_name = storage_for(out_dir, storage_url)
+        name = "holeshape-trade-off" if trade_off else "holeshape"
+        directions = ["minimize", "maximize"] if trade_off else ["minimize"]
+        study = optuna.create_study(study_name=name, storage=storage, directions=directions, load_if_exists=True)
+        fp = study_fingerprint(study_path)
+        known = study.user_attrs.get("study_fingerprint")
+        if known is None:
+            study.set_user_attr("study_fingerprint", fp)
+            study.set_user_attr("study_title", study_def.title)
+        elif known != fp:
+            raise StudyError(f"the search in {storage_name!r} was started from a different study file; use a new --out"
+                             " (or restore the original study file) to keep results consistent")
+        if storage_url is None:
+            _fail_stale(study)
+        baselines = standard_shapes(study_def.cutout.values, study_def.panel, study_def.constraints)
+        if not finished(study):
+            objective = Objective(study_def, space, trade_off)
+            own = {k: r.value for k, r in space.dimensions.items()}
+            if all(v is not None for v in own.values()):  # the study's current design first
+                rec = objective(own)
+                rec["user_attrs"]["standard_shape"] = "study design"
+                _add(study, space, rec, trade_off)
+            for family, cut, _ in baselines:
+                if cut is None:
+                    continue
+                params = _family_params(study_def.cutout.shape, family, cut, space)
+                if params is not None:
+                    rec = objective(params)
+                    rec["user_attrs"]["standard_shape"] = family
+                    _add(study, space, rec, trade_off)
+        _run_workers(study_path, storage_url, out_dir, name, workers, trade_off, study_def.search.trials, progress)
+        return _finish(study_def, study, space, baselines, out_dir, storage_name, trade_off, t0)
+
+
+def _repair_journal(path: Path) -> None:
+    """After a kill: drop a half-written last record and a lock left behind. Safe because the run lock makes this
+    process the only user of the folder until it starts its own workers."""
+    lock = Path(str(path) + ".lock")
+    if lock.exists():
+        lock.unlink()
+    if not path.exists() or path.stat().st_size == 0:
+        return
+    with open(path, "rb+") as fh:
+        fh.seek(-1, 2)
+        if fh.read(1) == b"\n":
+            return
+        data = path.read_bytes()
+        fh.truncate(data.rfind(b"\n") + 1)
+        log.warning("dropped a half-written record at the end of %s (the previous run was killed)", path)
+
+
+def _fail_stale(study) -> None:
+    """Trials left RUNNING by a killed local run can never finish: mark them failed, with the reason."""
+    from optuna.trial import TrialState
+
+    for t in study.get_trials(deepcopy=False, states=(TrialState.RUNNING,)):
+        study._storage.set_trial_user_attr(t._trial_id, "failure", "interrupted: the run was stopped mid-trial")
+        study._storage.set_trial_state_values(t._trial_id, TrialState.FAIL)
+
+
+def _progress_bar(total: int, enabled: bool):
+    from tqdm import tqdm
+
+    return tqdm(total=total, disable=not enabled, unit="trial", desc="search", dynamic_ncols=True, leave=True,
+                mininterval=0.5)
+
+
+def _update(bar, study) -> None:
+    done = finished(study)
+    feas = [t for t in done if is_feasible(t)]
+    best = min((t.values[0] for t in feas), default=None)
+    n = min(len(done), bar.total)
+    if n == bar.n and n < bar.total:
+        return
+    bar.set_postfix_str(f"best {best:.1f} MPa, {len(feas)} feasible" if best is not None else "no feasible yet",
+                        refresh=False)
+    bar.update(n - bar.n)
+
+
+def _run_workers(study_path, storage_url, out_dir, name, workers, trade_off, total, progress) -> None:
+    import optuna
+
+    bar = _progress_bar(total, progress)
+    try:
+        if workers == 1:
+            run_worker(study_path, storage_url, str(out_dir), name, 0, trade_off, on_trial=lambda s: _update(bar, s))
+            return
+        ctx = multiprocessing.get_context("spawn")
+        procs = [ctx.Process(target=run_worker, args=(study_path, storage_url, str(out_dir), name, w, trade_off),
+                             daemon=True) for w in range(workers)]
+        for p in procs:
+            p.start()
+        storage, _ = storage_for(out_dir, storage_url)
+        study = optuna.load_study(study_name=name, storage=storage)
+        while any(p.is_alive() for p in procs):
+            _update(bar, study)
+            time.sleep(0.5)
+        _update(bar, study)
+        bad = [p.exitcode for p in procs if p.exitcode != 0]
+        if bad:
+            raise HoleshapeError(f"{len(bad)} of {workers} worker processes stopped with an error (exit codes {bad});"
+                                 " rerun to resume, or use --debug with --workers 1 to see why")
+    finally:
+        bar.close()
+
+
+def _finish(study_def, study, space, baselines, out_dir: Path, storage_name: str, trade_off: bool, t0: float) -> dict:
+    from optuna.trial import TrialState
+
+    from holeshape.output import files, plots, search_plots
+
+    measure = Measure(study_def.measure.stress, FINAL_ACCURACY)
+    trials = study.get_trials(deepcopy=False)
+    complete = [t for t in trials if t.state == TrialState.COMPLETE]
+    counted = {t.number for t in finished(study)}
+    failed = [t for t in trials if t.state == TrialState.FAIL and t.number in counted]
+    interrupted = [t for t in trials if t.state == TrialState.FAIL and t.number not in counted]
+    infeasible = [t for t in complete if not is_feasible(t)]
+    best_t = best_feasible(study)
+
+    # the standard shapes, checked at the same (fine) level as the winner
+    base_rows, base_evals = [], []
+    for family, cut, note in baselines:
+        if cut is None:
+            base_rows.append({"shape": family, "feasible": False, "reason": note})
+            continue
+        ev = evaluate(study_def.panel, study_def.material, study_def.load_cases, cut, measure)
+        base_rows.append({"shape": family, "peak_stress_mpa": ev.peak_stress_mpa, "area_mm2": ev.area_mm2,
+                          "kt": ev.kt, "error_estimate_pct": ev.error_estimate_pct, "feasible": True,
+                          "params": cut.parameters()})
+        base_evals.append((family, cut, ev))
+    if best_t is None and not base_evals:
+        raise HoleshapeError(f"no feasible design among {len(trials)} trials and no standard shape meets the "
+                             "constraints; widen the ranges or relax the constraints (see summary of trials)")
+    candidates = []
+    if best_t is not None:
+        cut, _ = space.decode(best_t.params)
+        ev, fields = evaluate(study_def.panel, study_def.material, study_def.load_cases, cut, measure,
+                              keep_fields=True)
+        candidates.append((ev.peak_stress_mpa, study_def.cutout.shape, cut, ev, fields, best_t.number))
+    for family, cut, ev in base_evals:
+        if not candidates or ev.peak_stress_mpa < candidates[0][0]:
+            ev2, fields2 = evaluate(study_def.panel, study_def.material, study_def.load_cases, cut, measure,
+                                    keep_fields=True)
+            candidates.append((ev2.peak_stress_mpa, family, cut, ev2, fields2, None))
+    peak, family, cut, ev, fields, number = min(candidates, key=lambda c: c[0])
+
+    dxf = out_dir / "best.dxf"
+    dxf_info = files.write_dxf(dxf, cut, (study_def.panel.width, study_def.panel.height), study_def.title)
+    files.write_csv(out_dir / "best.csv", cut)
+    plot_paths = [
+        search_plots.plot_history(out_dir / "search_history.png", trials, study_def.title),
+        search_plots.plot_shapes(out_dir / "best_shape.png", cut, [(f, c) for f, c, _ in base_evals],
+                                 study_def.panel, study_def.constraints, study_def.title, ev.peak_stress_mpa,
+                                 {f: e.peak_stress_mpa for f, _, e in base_evals}),
+    ]
+    gov = [r.name for r in ev.load_cases].index(ev.governing_load_case)
+    plot_paths.append(plots.plot_stress_field(out_dir / "best_stress_field.png", ev, fields, cut.polygon(720).T, gov,
+                                              (study_def.panel.width, study_def.panel.height), study_def.title))
+    plot_paths.append(plots.plot_boundary_stress(out_dir / "best_boundary_stress.png", ev, fields,
+                                                 study_def.material.allowable_stress, study_def.title))
+    improvement = {row["shape"]: 100.0 * (1 - ev.peak_stress_mpa / row["peak_stress_mpa"])
+                   for row in base_rows if row.get("feasible")}
+    summary = {
+        "best": {
+            "peak_stress_mpa": ev.peak_stress_mpa, "kt": ev.kt, "kt_reference": ev.kt_reference,
+            "area_mm2": ev.area_mm2, "error_estimate_pct": ev.error_estimate_pct,
+            "params": _jsonable(cut.parameters()), "shape": family, "dxf": str(dxf), "feasible": True,
+            "trial": number, "margin_of_safety": ev.margin_of_safety, "accuracy": FINAL_ACCURACY,
+            "min_radius_mm": cut.min_radius, "bounds_mm": list(cut.bounds), "load_cases": [
+                {"name": r.name, "peak_stress_mpa": r.peak_stress_mpa, "kt": r.kt, "x_mm": r.x_mm, "y_mm": r.y_mm,
+                 "margin_of_safety": r.margin_of_safety, "error_estimate_pct": r.error_estimate_pct}
+                for r in ev.load_cases],
+            "dxf_vertices": dxf_info["vertices"], "dxf_chord_error_mm": dxf_info["chord_error_mm"],
+            "warnings": list(ev.warnings),
+        },
+        "baselines": base_rows,
+        "improvement_over_baselines_pct": improvement,
+        "trials_completed": len(complete), "trials_infeasible": len(infeasible), "trials_failed": len(failed),
+        "trials_interrupted": len(interrupted),
+        "failures": sorted({str(t.user_attrs.get("failure")) for t in failed})[:10],
+        "storage": storage_name, "study": study_def.title, "search_accuracy": "draft",
+        "elapsed_s": time.perf_counter() - t0, "plots": [str(p) for p in plot_paths],
+        "holeshape_version": __version__, "cautions": CAUTIONS,
+    }
+    if trade_off:
+        summary["front"] = _front(study, space, study_def, out_dir)
+        plot_paths.append(search_plots.plot_front(out_dir / "trade_off_front.png", trials, summary["front"],
+                                                  study_def.title))
+        summary["plots"] = [str(p) for p in plot_paths]
+    files.write_json(out_dir / "summary.json", summary)
+    return summary
+
+
+def _front(study, space, study_def, out_dir: Path) -> list[dict]:
+    from holeshape.output import files
+
+    front = [t for t in study.best_trials if is_feasible(t)]
+    front.sort(key=lambda t: t.values[1])
+    rows = []
+    for i, t in enumerate(front):
+        cut, _ = space.decode(t.params)
+        path = out_dir / f"front_{i:02d}.dxf"
+        files.write_dxf(path, cut, (study_def.panel.width, study_def.panel.height), study_def.title)
+        rows.append({"trial": t.number, "peak_stress_mpa": t.values[0], "area_mm2": t.values[1],
+                     "params": _jsonable(cut.parameters()), "dxf": str(path), "accuracy": "draft"})
+    return rows
+
+
+def _jsonable(d: dict) -> dict:
+    return {k: (list(v) if isinstance(v, tuple) else v) for k, v in d.items()}
+

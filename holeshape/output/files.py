@@ -1,0 +1,123 @@
+"""Files a run leaves behind: written atomically (temporary file in the same folder, then rename), so a killed
+run never leaves a half-written DXF, CSV or summary. Coordinates in mm, panel coordinates."""
+
+from __future__ import annotations
+
+import json
+import math
+import os
+import re
+import tempfile
+from pathlib import Path
+
+import numpy as np
+
+from holeshape.errors import HoleshapeError
+from holeshape.geometry import Cutout
+
+CUTOUT_LAYER = "CUTOUT_PROFILE"
+PANEL_LAYER = "PANEL_OUTLINE"
+CHORD_TOLERANCE_MM = 0.01
+
+
+def safe_name(text: str, fallback: str = "design") -> str:
+    """A title or name made safe as a file name: letters, digits, '-', '_' and '.' only, no leading dot."""
+    s = re.sub(r"[^A-Za-z0-9._-]+", "-", text).strip("-.")[:80]
+    return s or fallback
+
+
+def atomic_write(path: Path, data: bytes | str) -> Path:
+    path = Path(path)
+    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", dir=path.parent)
+    try:
+        with os.fdopen(fd, "wb") as fh:
+            fh.write(data.encode() if isinstance(data, str) else data)
+            fh.flush()
+            os.fsync(fh.fileno())
+        os.replace(tmp, path)
+    except BaseException:
+        if os.path.exists(tmp):
+            os.unlink(tmp)
+        raise
+    return path
+
+
+def write_json(path: Path, obj) -> Path:
+    return atomic_write(path, json.dumps(obj, indent=2, allow_nan=False) + "\n")
+
+
+def profile_points(cutout: Cutout, tol: float = CHORD_TOLERANCE_MM) -> np.ndarray:
+    """Points (n, 2) on the exact outline, spaced so that no chord strays more than ``tol`` mm from the curve."""
+    smp = cutout.sampling
+    kappa = np.abs(smp.curvature)
+    # sagitta of a chord h on radius rho is h^2 / (8 rho): h = sqrt(8 tol rho), with a safety factor of 0.7
+    with np.errstate(divide="ignore"):
+        h = 0.7 * np.sqrt(8 * tol / np.maximum(kappa, 1e-12))
+    h = np.minimum(h, smp.perimeter / 16)
+    # smallest spacing over a window, so a sharp corner is not stepped over
+    h = np.minimum.reduce([np.roll(h, k) for k in range(-8, 9)])
+    ds = np.diff(smp.s)
+    dens = np.concatenate([[0.0], np.cumsum(ds / h)])
+    n = max(16, int(math.ceil(dens[-1])))
+    s_nodes = np.interp(np.linspace(0.0, dens[-1], n, endpoint=False), dens, smp.s)
+    pts = cutout.xy(smp.t_at_arclength(s_nodes)).T
+    if not np.all(np.isfinite(pts)):
+        raise HoleshapeError("the outline has non-finite coordinates; no profile is written")
+    return pts
+
+
+def chord_error(cutout: Cutout, pts: np.ndarray) -> float:
+    """Largest distance (mm) between the polyline's chords and the exact curve, checked at chord midpoints."""
+    smp = cutout.sampling
+    closed = np.vstack([pts, pts[:1]])
+    # arc-length position of each vertex on the dense sampling, then the exact point half-way along each arc
+    from scipy.spatial import cKDTree
+
+    _, idx = cKDTree(smp.points.T).query(pts)
+    s = smp.s[idx]
+    s_next = np.roll(s, -1)
+    s_next = np.where(s_next <= s, s_next + smp.perimeter, s_next)
+    mid_exact = cutout.xy(smp.t_at_arclength(0.5 * (s + s_next))).T
+    a, b = closed[:-1], closed[1:]
+    ab = b - a
+    t = np.clip(np.einsum("ij,ij->i", mid_exact - a, ab) / np.einsum("ij,ij->i", ab, ab), 0, 1)
+    return float(np.max(np.linalg.norm(a + t[:, None] * ab - mid_exact, axis=1)))
+
+
+def write_dxf(path: Path, cutout: Cutout, panel_size: tuple[float, float] | None = None,
+              title: str = "") -> dict:
+    """Closed LWPOLYLINE of the outline on its own layer, millimetre units, panel coordinates; audited."""
+    import ezdxf
+    from ezdxf import units
+
+    pts = profile_points(cutout)
+    err = chord_error(cutout, pts)
+    if err > CHORD_TOLERANCE_MM:
+        raise HoleshapeError(f"profile chord error {err:.4f} mm exceeds {CHORD_TOLERANCE_MM} mm; not written")
+    doc = ezdxf.new("R2010", setup=False, units=units.MM)
+    doc.header["$MEASUREMENT"] = 1  # metric
+    doc.layers.add(CUTOUT_LAYER, color=1)
+    msp = doc.modelspace()
+    msp.add_lwpolyline([tuple(map(float, p)) for p in pts], format="xy", close=True,
+                       dxfattribs={"layer": CUTOUT_LAYER})
+    if panel_size is not None:
+        doc.layers.add(PANEL_LAYER, color=8)
+        w, h = panel_size
+        msp.add_lwpolyline([(0.0, 0.0), (w, 0.0), (w, h), (0.0, h)], close=True, dxfattribs={"layer": PANEL_LAYER})
+    if title:
+        doc.header["$PROJECTNAME"] = safe_name(title)
+    auditor = doc.audit()
+    if auditor.has_errors:
+        raise HoleshapeError(f"the DXF audit found {len(auditor.errors)} errors; not written")
+    import io
+
+    buf = io.StringIO()
+    doc.write(buf)
+    atomic_write(path, buf.getvalue())
+    return {"vertices": int(len(pts)), "chord_error_mm": err}
+
+
+def write_csv(path: Path, cutout: Cutout) -> Path:
+    pts = profile_points(cutout)
+    rows = ["x_mm,y_mm"] + [f"{x:.6f},{y:.6f}" for x, y in np.vstack([pts, pts[:1]])]
+    return atomic_write(path, "\n".join(rows) + "\n")

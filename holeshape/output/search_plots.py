@@ -1,0 +1,95 @@
+"""Plots of a search: history (best so far against trial), the best shape over the standard shapes and the access
+envelope, and the trade-off front. mm and MPa on every axis."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import numpy as np
+
+from holeshape.output.plots import _mpl, save
+
+
+def plot_history(path: Path, trials, title: str) -> Path:
+    from optuna.trial import TrialState
+
+    plt = _mpl()
+    fig, ax = plt.subplots(figsize=(8, 4.6))
+    feas = [(t.number, t.values[0]) for t in trials if t.state == TrialState.COMPLETE
+            and t.user_attrs.get("feasible") and all(v <= 0 for v in t.constraints.values())]
+    infeas = [t.number for t in trials if t.state == TrialState.COMPLETE and not t.user_attrs.get("feasible", True)]
+    failed = [t.number for t in trials if t.state == TrialState.FAIL]
+    if feas:
+        n, v = np.array(feas).T
+        ax.plot(n, v, "o", ms=3.5, color="0.55", label="feasible design (draft level)")
+        order = np.argsort(n)
+        ax.step(n[order], np.minimum.accumulate(v[order]), where="post", color="black", lw=1.8,
+                label="best so far")
+        ax.set_ylim(0.95 * v.min(), min(v.max(), 3 * v.min()) * 1.05)
+        ymark = ax.get_ylim()[1]
+    else:
+        ymark = 1.0
+    if infeas:
+        ax.plot(infeas, np.full(len(infeas), ymark), "x", ms=4, color="C3", clip_on=False,
+                label=f"infeasible, not solved ({len(infeas)})")
+    if failed:
+        ax.plot(failed, np.full(len(failed), ymark), "s", ms=4, mfc="none", color="C1", clip_on=False,
+                label=f"failed ({len(failed)})")
+    ax.set_xlabel("trial")
+    ax.set_ylabel("peak stress over all load cases (MPa)")
+    ax.grid(True, alpha=0.3)
+    ax.legend(fontsize=8, loc="upper right")
+    ax.set_title(f"{title}: search history")
+    fig.tight_layout(rect=(0, 0.02, 1, 1))
+    return save(fig, path)
+
+
+def plot_shapes(path: Path, best, baselines, panel, constraints, title: str, best_peak: float,
+                base_peaks: dict) -> Path:
+    plt = _mpl()
+    fig, ax = plt.subplots(figsize=(8, 8 * panel.height / panel.width + 0.8))
+    ax.plot([0, panel.width, panel.width, 0, 0], [0, 0, panel.height, panel.height, 0], color="black", lw=1.2)
+    styles = ["--", "-.", ":"]
+    for i, (family, cut) in enumerate(baselines):
+        p = cut.polygon(720)
+        ax.plot(*np.vstack([p, p[:1]]).T, styles[i % 3], color="0.45", lw=1.2,
+                label=f"{family.replace('_', ' ')}: {base_peaks[family]:.1f} MPa")
+    p = best.polygon(720)
+    ax.fill(*p.T, color="C0", alpha=0.15)
+    ax.plot(*np.vstack([p, p[:1]]).T, color="C0", lw=2.2, label=f"best {best.family.replace('_', ' ')}: "
+            f"{best_peak:.1f} MPa")
+    if constraints.access is not None:
+        env = constraints.access.polygon(best.center, 0.0)
+        ax.fill(*env.exterior.xy, color="C2", alpha=0.25, label="access envelope")
+        if constraints.clearance > 0:
+            ax.plot(*constraints.access.polygon(best.center, constraints.clearance).exterior.xy, color="C2",
+                    lw=0.8, label=f"with {constraints.clearance:g} mm clearance")
+    ax.set_aspect("equal")
+    ax.set_xlabel("x (mm)")
+    ax.set_ylabel("y (mm)")
+    ax.legend(fontsize=8, loc="upper right")
+    ax.set_title(f"{title}: best shape against the standard shapes (peak, fine level)")
+    fig.tight_layout(rect=(0, 0.02, 1, 1))
+    return save(fig, path)
+
+
+def plot_front(path: Path, trials, front: list[dict], title: str) -> Path:
+    from optuna.trial import TrialState
+
+    plt = _mpl()
+    fig, ax = plt.subplots(figsize=(8, 4.8))
+    pts = [(t.values[1], t.values[0]) for t in trials if t.state == TrialState.COMPLETE
+           and t.user_attrs.get("feasible") and all(v <= 0 for v in t.constraints.values())]
+    if pts:
+        a, s = np.array(pts).T
+        ax.plot(a, s, "o", ms=3, color="0.6", label="feasible designs")
+    if front:
+        ax.plot([f["area_mm2"] for f in front], [f["peak_stress_mpa"] for f in front], "-o", color="C0", ms=5,
+                lw=1.8, label="trade-off front (one DXF each)")
+    ax.set_xlabel("removed area (mm^2)")
+    ax.set_ylabel("peak stress over all load cases (MPa)")
+    ax.grid(True, alpha=0.3)
+    ax.legend(fontsize=8)
+    ax.set_title(f"{title}: removed area against peak stress")
+    fig.tight_layout(rect=(0, 0.02, 1, 1))
+    return save(fig, path)

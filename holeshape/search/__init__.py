@@ -1,0 +1,1 @@
+"""Search layer: design space, constraints on the geometry, standard-shape baselines, Optuna studies and workers."""

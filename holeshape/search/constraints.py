@@ -1,0 +1,79 @@
+"""Constraints checked on the geometry before any mesh is made, as scaled values (feasible when <= 0).
+
+Each value is a relative shortfall (for instance (required ligament - ligament) / required ligament), so the values
+are of comparable size and the sampler can rank infeasible designs by how far they miss.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from holeshape.geometry import Cutout
+from holeshape.study import Constraints, Panel
+
+
+def outline_polygon(cutout: Cutout, n: int = 720):
+    from shapely.geometry import Polygon
+
+    return Polygon(cutout.polygon(n))
+
+
+def edge_gaps(cutout: Cutout, panel: Panel) -> dict[str, float]:
+    """Distance (mm) from the outline to each panel edge (negative when it crosses the edge)."""
+    x0, y0, x1, y1 = cutout.bounds
+    return {"left": x0, "bottom": y0, "right": panel.width - x1, "top": panel.height - y1}
+
+
+def access_margin(cutout: Cutout, cons: Constraints, poly=None) -> float:
+    """Signed margin (mm) by which the outline clears the access envelope grown by the clearance:
+    >= 0 the envelope is inside with that much to spare; < 0 the envelope pokes out by that much."""
+    from shapely.geometry import Point
+
+    poly = poly if poly is not None else outline_polygon(cutout)
+    env = cons.access.polygon(cutout.center, cons.clearance)
+    if poly.contains(env):
+        return float(poly.exterior.distance(env))
+    ring = np.asarray(env.exterior.coords)
+    return -max(float(poly.distance(Point(*p))) for p in ring)
+
+
+def constraint_values(cutout: Cutout, panel: Panel, cons: Constraints) -> tuple[dict[str, float], list[str]]:
+    """Scaled constraint values (<= 0 feasible) and the reasons for every violated one."""
+    values: dict[str, float] = {}
+    reasons: list[str] = []
+    poly = outline_polygon(cutout)
+    size = math.sqrt(max(cutout.area, 1e-12))
+    if not poly.is_valid:
+        values["outline"] = 1.0
+        reasons.append("the outline crosses itself")
+    gaps = edge_gaps(cutout, panel)
+    edge, gap = min(gaps.items(), key=lambda kv: kv[1])
+    values["inside_panel"] = -gap / min(panel.width, panel.height)
+    if gap <= 0:
+        reasons.append(f"the outline crosses the {edge} panel edge by {-gap:.3g} mm")
+    if cons.min_ligament is not None:
+        values["ligament"] = (cons.min_ligament - gap) / cons.min_ligament
+        if gap < cons.min_ligament:
+            reasons.append(f"ligament to the {edge} edge {gap:.3g} mm < {cons.min_ligament:g} mm")
+    if cons.min_radius is not None:
+        r = cutout.min_radius
+        values["min_radius"] = (cons.min_radius - r) / cons.min_radius
+        if r < cons.min_radius:
+            reasons.append(f"smallest radius {r:.3g} mm < {cons.min_radius:g} mm")
+    area = cutout.area
+    if cons.min_area is not None:
+        values["min_area"] = (cons.min_area - area) / cons.min_area
+        if area < cons.min_area:
+            reasons.append(f"area {area:.0f} mm^2 < {cons.min_area:g} mm^2")
+    if cons.max_area is not None:
+        values["max_area"] = (area - cons.max_area) / cons.max_area
+        if area > cons.max_area:
+            reasons.append(f"area {area:.0f} mm^2 > {cons.max_area:g} mm^2")
+    if cons.access is not None:
+        m = access_margin(cutout, cons, poly)
+        values["access"] = -m / size
+        if m < 0:
+            reasons.append(f"the access envelope (with {cons.clearance:g} mm clearance) pokes out by {-m:.3g} mm")
+    return values, reasons

@@ -1,0 +1,252 @@
+"""Running a shape search: an Optuna study in a storage file (or database), resumable, with parallel workers.
+
+Strategy (measured, see benchmarks/search.py): the standard shapes that the family can represent first, then a
+global phase with Optuna's TPE sampler (multivariate, with constraints), then a Nelder-Mead refinement from the best
+feasible design. Every trial: geometry constraints first (an infeasible design never reaches the mesher); then a
+"draft" evaluation. A mesh or solver failure marks that trial failed with its reason; the study goes on.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import logging
+import math
+import time
+from dataclasses import dataclass
+from pathlib import Path
+
+import numpy as np
+
+from holeshape.errors import GeometryError, HoleshapeError, StudyError
+from holeshape.search.constraints import constraint_values
+from holeshape.search.space import DesignSpace
+from holeshape.study import Measure, Study, load_study
+
+log = logging.getLogger("holeshape.search")
+
+INFEASIBLE_VALUE = 1.0e9  # objective recorded for infeasible designs (never solved); samplers rank them by constraints
+SEARCH_ACCURACY = "draft"
+
+
+def study_fingerprint(path: str | Path) -> str:
+    return hashlib.sha256(Path(path).read_bytes()).hexdigest()[:16]
+
+
+def storage_for(out_dir: Path, url: str | None):
+    """Optuna storage: a journal file in the output folder (robust for several processes on one machine) or the
+    database at ``url`` (PostgreSQL for several machines; heartbeats retry trials of a worker that died)."""
+    import optuna
+
+    if url:
+        try:
+            return optuna.storages.RDBStorage(url), url
+        except Exception as err:  # noqa: BLE001 - database drivers raise their own types
+            raise StudyError(f"--storage {url!r} cannot be opened: {type(err).__name__}: {err}") from err
+    from optuna.storages.journal import JournalFileBackend, JournalFileOpenLock
+
+    path = out_dir / "study.journal"
+    backend = JournalFileBackend(str(path), lock_obj=JournalFileOpenLock(str(path)))
+    return optuna.storages.JournalStorage(backend), str(path)
+
+
+@dataclass(frozen=True)
+class Objective:
+    """Evaluates one point of the design space: constraints, then the draft solve. Returns a record."""
+
+    study: Study
+    space: DesignSpace
+    trade_off: bool = False
+
+    def __call__(self, params: dict[str, float]) -> dict:
+        from holeshape.evaluate import evaluate
+
+        t0 = time.perf_counter()
+        rec: dict = {"params": dict(params), "user_attrs": {}, "constraints": {}}
+        try:
+            cutout, vals = self.space.decode(params)
+        except GeometryError as err:
+            rec.update(state="infeasible", constraints={"outline": 1.0})
+            rec["user_attrs"].update(feasible=False, reason=str(err))
+            return rec
+        cons, reasons = constraint_values(cutout, self.study.panel, self.study.constraints)
+        rec["constraints"] = cons
+        dims = {k: (list(v) if isinstance(v, (list, tuple)) else v) for k, v in cutout.parameters().items()}
+        rec["user_attrs"].update(area_mm2=cutout.area, dims=dims, min_radius_mm=cutout.min_radius)
+        if reasons:
+            rec["state"] = "infeasible"
+            rec["user_attrs"].update(feasible=False, reason="; ".join(reasons))
+            return rec
+        try:
+            ev = evaluate(self.study.panel, self.study.material, self.study.load_cases, cutout,
+                          Measure(self.study.measure.stress, SEARCH_ACCURACY))
+        except HoleshapeError as err:
+            rec["state"] = "failed"
+            rec["user_attrs"].update(feasible=True, failure=f"{type(err).__name__}: {err}")
+            return rec
+        rec["state"] = "complete"
+        rec["value"] = ev.peak_stress_mpa
+        rec["user_attrs"].update(feasible=True, peak_stress_mpa=ev.peak_stress_mpa, kt=ev.kt,
+                                 error_estimate_pct=ev.error_estimate_pct, governing=ev.governing_load_case,
+                                 dofs=ev.dofs, seconds=time.perf_counter() - t0)
+        return rec
+
+
+def _values(rec: dict, trade_off: bool):
+    v = rec.get("value", INFEASIBLE_VALUE)
+    return [v, rec["user_attrs"].get("area_mm2", 0.0)] if trade_off else v
+
+
+def _record(study, trial, rec: dict, trade_off: bool) -> None:
+    """Tell the study the outcome of an asked trial."""
+    from optuna.trial import TrialState
+
+    for k, v in rec["constraints"].items():
+        trial.set_constraint(k, float(v))
+    for k, v in rec["user_attrs"].items():
+        trial.set_user_attr(k, v)
+    if rec["state"] == "failed":
+        study.tell(trial, state=TrialState.FAIL)
+    else:
+        study.tell(trial, _values(rec, trade_off))
+
+
+def _add(study, space: DesignSpace, rec: dict, trade_off: bool) -> None:
+    """Record an evaluation made outside the sampler (standard shapes, simplex steps) as a finished trial."""
+    from optuna.trial import TrialState, create_trial
+
+    failed = rec["state"] == "failed"
+    v = None if failed else _values(rec, trade_off)
+    study.add_trial(create_trial(
+        state=TrialState.FAIL if failed else TrialState.COMPLETE,
+        value=None if (failed or trade_off) else v, values=v if (trade_off and not failed) else None,
+        params=rec["params"], distributions=space.distributions(), user_attrs=rec["user_attrs"],
+        constraints=rec["constraints"] or None))
+
+
+def finished(study) -> list:
+    """Trials that count towards the budget: complete, or failed for a reason of their own (a trial cut short by a
+    killed run does not count; it is re-run)."""
+    from optuna.trial import TrialState
+
+    return [t for t in study.get_trials(deepcopy=False, states=(TrialState.COMPLETE, TrialState.FAIL))
+            if not str(t.user_attrs.get("failure", "")).startswith("interrupted")]
+
+
+STALE_AFTER_S = 600.0  # a trial running this long belongs to a worker that died (an evaluation takes seconds)
+
+
+def started(study) -> int:
+    """Finished trials plus those running now (not counting ones abandoned by a worker that died)."""
+    import datetime
+
+    from optuna.trial import TrialState
+
+    now = datetime.datetime.now()
+    running = [t for t in study.get_trials(deepcopy=False, states=(TrialState.RUNNING,))
+               if t.datetime_start is not None and (now - t.datetime_start).total_seconds() < STALE_AFTER_S]
+    return len(finished(study)) + len(running)
+
+
+def is_feasible(t) -> bool:
+    from optuna.trial import TrialState
+
+    return t.state == TrialState.COMPLETE and t.user_attrs.get("feasible", False) and \
+        all(v <= 0 for v in t.constraints.values())
+
+
+def best_feasible(study):
+    cands = [t for t in finished(study) if is_feasible(t)]
+    if not cands:
+        return None
+    key = (lambda t: t.values[0]) if len(study.directions) > 1 else (lambda t: t.value)
+    return min(cands, key=key)
+
+
+class BudgetGate:
+    """Serialises 'is there budget left? then record' between the worker processes of one machine, so several
+    workers never record more trials than the study asks for. (Across machines the window is milliseconds.)"""
+
+    def __init__(self, out_dir: str):
+        self.path = Path(out_dir) / ".holeshape.budget"
+
+    def __enter__(self):
+        import fcntl
+
+        self.fh = open(self.path, "a")
+        fcntl.flock(self.fh, fcntl.LOCK_EX)
+        return self
+
+    def __exit__(self, *exc):
+        import fcntl
+
+        fcntl.flock(self.fh, fcntl.LOCK_UN)
+        self.fh.close()
+
+
+OVER_BUDGET = "interrupted: the trial budget was reached by another worker first"
+
+
+def _penalised(rec: dict, reference: float) -> float:
+    if rec["state"] == "complete":
+        return rec["value"]
+    viol = sum(max(0.0, v) for v in rec["constraints"].values()) or 1.0
+    return reference * (1.0 + viol) + 1.0
+
+
+def run_worker(study_path: str, storage_url: str | None, out_dir: str, study_name: str, worker: int,
+               trade_off: bool, on_trial=None) -> None:
+    """One search process: asks, evaluates and records trials until the study holds ``trials`` finished ones."""
+    import optuna
+
+    optuna.logging.set_verbosity(optuna.logging.WARNING)
+    study_def = load_study(study_path)
+    space = DesignSpace(study_def.cutout, study_def.constraints)
+    storage, _ = storage_for(Path(out_dir), storage_url)
+    settings = study_def.search
+    sampler = optuna.samplers.TPESampler(seed=settings.seed + 1000 * worker, multivariate=True, constant_liar=True,
+                                         n_startup_trials=max(4, min(10, int(settings.trials * 0.15))))
+    study = optuna.load_study(study_name=study_name, storage=storage, sampler=sampler)
+    objective = Objective(study_def, space, trade_off)
+    n_global = max(1, int(math.ceil(settings.global_fraction * settings.trials)))
+    dists = space.distributions()
+    simplex = None
+    pending = None
+    gate = BudgetGate(out_dir)
+    while True:
+        done = len(finished(study))
+        if on_trial is not None:
+            on_trial(study)
+        if started(study) >= settings.trials:  # counting running ones too: workers do not overshoot the budget
+            return
+        if trade_off or done < n_global or len(dists) == 0 or best_feasible(study) is None:
+            trial = study.ask(dists)
+            rec = objective(trial.params)
+            with gate:
+                if len(finished(study)) >= settings.trials:
+                    rec = {"state": "failed", "constraints": {}, "user_attrs": {"failure": OVER_BUDGET}}
+                _record(study, trial, rec, trade_off)
+            continue
+        # local refinement from the best feasible design; each worker starts its simplex differently
+        if simplex is None:
+            best = best_feasible(study)
+            x0 = np.array(space.to_unit(best.params))
+            simplex = _start_simplex(x0, worker)
+            point = next(simplex)
+            reference = best.value
+        else:
+            point = simplex.send(pending)
+        rec = objective(space.from_unit(list(point)))
+        with gate:
+            if len(finished(study)) >= settings.trials:
+                return
+            _add(study, space, rec, trade_off)
+        pending = _penalised(rec, reference)
+        if rec["state"] == "complete":
+            reference = min(reference, rec["value"])
+
+
+def _start_simplex(x0: np.ndarray, worker: int):
+    from holeshape.search.local import nelder_mead
+
+    step = 0.08 / (1 + worker)
+    return nelder_mead(x0, step)
