@@ -138,14 +138,17 @@ _GMSH_READY = False
 
 
 def _gmsh():
+    """The process's gmsh instance with every option at its default (options outlive ``gmsh.clear()``, so a size
+    limit set by one caller would silently coarsen the next caller's mesh)."""
     global _GMSH_READY
     import gmsh
 
     if not _GMSH_READY:
         gmsh.initialize(interruptible=False)  # no signal handler: Ctrl-C and SIGTERM stay ours
-        gmsh.option.setNumber("General.Terminal", 0)
-        gmsh.option.setNumber("General.NumThreads", 1)
         _GMSH_READY = True
+    gmsh.option.restoreDefaults()
+    gmsh.option.setNumber("General.Terminal", 0)
+    gmsh.option.setNumber("General.NumThreads", 1)
     return gmsh
 
 

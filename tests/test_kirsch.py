@@ -111,3 +111,15 @@ def test_several_load_cases_share_one_solve_and_superpose():
     assert both.load_cases[2].peak_stress_mpa == pytest.approx(single.peak_stress_mpa, rel=1e-9)
     # Kirsch: sx = s with txy = s: peak |(s) - 2 s cos 2t - 4 s sin 2t| = s (1 + 2 sqrt(5)) = 5.472 s
     assert single.peak_stress_mpa == pytest.approx(100 * (1 + 2 * math.sqrt(5)), rel=1e-2)
+
+
+def test_mesher_options_do_not_leak_between_calls():
+    """A caller that changes gmsh's global options (as the NAFEMS LE1 test does) must not change later meshes."""
+    from holeshape.mesh import MeshSpec, Region, _gmsh, mesh_panel
+
+    c = centred("circle", radius=10.0)
+    region = Region(BIG, BIG, True, True)
+    before = mesh_panel(BIG, BIG, c, region, MeshSpec()).n_elements
+    _gmsh().option.setNumber("Mesh.MeshSizeMin", 50.0)
+    after = mesh_panel(BIG, BIG, c, region, MeshSpec()).n_elements
+    assert after == before
