@@ -174,7 +174,7 @@ class SearchSettings:
 
     trials: int = 60
     seed: int = 0
-    global_fraction: float = 0.5
+    global_fraction: float = 0.25
 
 
 @dataclass(frozen=True)
@@ -409,7 +409,7 @@ def _parse_search(c: dict) -> SearchSettings:
         raise StudyError(f"search.trials must be between 1 and 100000, got {trials!r}")
     if seed < 0:
         raise StudyError(f"search.seed must be >= 0, got {seed!r}")
-    frac = _number(c, "global_fraction", "search.", default=0.5)
+    frac = _number(c, "global_fraction", "search.", default=0.25)
     if not 0.0 < frac <= 1.0:
         raise StudyError(f"search.global_fraction must be in (0, 1], got {frac!r}")
     return SearchSettings(trials=trials, seed=seed, global_fraction=frac)

@@ -227,3 +227,20 @@ def test_impossible_constraints_are_refused_before_any_search(tmp_path, capsys):
     err = capsys.readouterr().err
     assert "constraints.access" in err and "cannot fit" in err and len(err.strip().splitlines()) == 1
     assert not (tmp_path / "run").exists()
+
+
+def test_trade_off_front(tmp_path, capsys):
+    import ezdxf
+
+    study = write(tmp_path, RIB, TRIALS=16, CONSTRAINTS="min_area = 5000.0\nmin_ligament = 20.0")
+    d = optimise(capsys, study, tmp_path / "run", "--trade-off")
+    front = d["front"]
+    assert front, "a front with at least one member"
+    areas = [f["area_mm2"] for f in front]
+    peaks = [f["peak_stress_mpa"] for f in front]
+    assert areas == sorted(areas)
+    # on a Pareto front more removed area never comes with a lower peak
+    assert all(p1 <= p2 + 1e-9 for p1, p2 in zip(peaks, peaks[1:]))
+    for f in front:
+        assert not ezdxf.readfile(f["dxf"]).audit().has_errors
+    assert (tmp_path / "run" / "trade_off_front.png").stat().st_size > 0

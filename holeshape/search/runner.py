@@ -229,13 +229,17 @@ def run_worker(study_path: str, storage_url: str | None, out_dir: str, study_nam
         # local refinement from the best feasible design; each worker starts its simplex differently
         if simplex is None:
             best = best_feasible(study)
-            x0 = np.array(space.to_unit(best.params))
+            names = local_dimensions(space)
+            base = dict(best.params)
+            x0 = np.array(space.to_unit({k: base[k] for k in names}, names))
             simplex = _start_simplex(x0, worker)
             point = next(simplex)
             reference = best.value
         else:
             point = simplex.send(pending)
-        rec = objective(space.from_unit(list(point)))
+        params = dict(base)
+        params.update(space.from_unit(list(point), names))
+        rec = objective(params)
         with gate:
             if len(finished(study)) >= settings.trials:
                 return
@@ -243,6 +247,20 @@ def run_worker(study_path: str, storage_url: str | None, out_dir: str, study_nam
         pending = _penalised(rec, reference)
         if rec["state"] == "complete":
             reference = min(reference, rec["value"])
+
+
+def local_dimensions(space: DesignSpace) -> list[str]:
+    """The dimensions the simplex moves. With the area fixed every design is scaled to it, so one searched length
+    is redundant (it only sets a scale that the area then undoes): it is held at the best design's value, which
+    keeps the simplex from degenerating along a flat direction."""
+    from holeshape.search.space import LENGTH_PARAMETERS
+
+    names = list(space.dimensions)
+    if space.constraints.area is not None:
+        lengths = [k for k in names if k.split("[")[0] in LENGTH_PARAMETERS]
+        if len(lengths) >= 2:
+            names.remove(lengths[0])
+    return names
 
 
 def _start_simplex(x0: np.ndarray, worker: int):

@@ -33,10 +33,12 @@ class DesignSpace:
 
         return {k: FloatDistribution(r.min, r.max, log=r.log) for k, r in self.dimensions.items()}
 
-    def to_unit(self, params: dict[str, float]) -> list[float]:
+    def to_unit(self, params: dict[str, float], names: list[str] | None = None) -> list[float]:
+        """Coordinates in [0, 1] of ``params`` over the dimensions ``names`` (default: all, in order)."""
+        dims = self.dimensions
         out = []
-        for k, r in self.dimensions.items():
-            v = params[k]
+        for k in names or list(dims):
+            r, v = dims[k], params[k]
             if r.max == r.min:
                 out.append(0.5)
             elif r.log:
@@ -45,9 +47,11 @@ class DesignSpace:
                 out.append((v - r.min) / (r.max - r.min))
         return out
 
-    def from_unit(self, u: list[float]) -> dict[str, float]:
+    def from_unit(self, u: list[float], names: list[str] | None = None) -> dict[str, float]:
+        dims = self.dimensions
         out = {}
-        for (k, r), x in zip(self.dimensions.items(), u):
+        for k, x in zip(names or list(dims), u):
+            r = dims[k]
             x = min(1.0, max(0.0, x))
             out[k] = math.exp(math.log(r.min) + x * (math.log(r.max) - math.log(r.min))) if r.log \
                 else r.min + x * (r.max - r.min)
