@@ -118,7 +118,7 @@ def run_optimise(study_path: str, out: str, workers: int = 1, storage_url: str |
         storage, storage_name = storage_for(out_dir, storage_url)
         name = "holeshape-trade-off" if trade_off else "holeshape"
         directions = ["minimize", "maximize"] if trade_off else ["minimize"]
-        study = optuna.create_study(study_name=name, storage=storage, directions=directions, load_if_exists=True)
+        study = _create_or_load(optuna, name, storage, directions)
         fp = study_fingerprint(study_path)
         known = study.user_attrs.get("study_fingerprint")
         if known is None:
@@ -147,6 +147,18 @@ def run_optimise(study_path: str, out: str, workers: int = 1, storage_url: str |
                     _add(study, space, rec, trade_off)
         _run_workers(study_path, storage_url, out_dir, name, workers, trade_off, study_def.search.trials, progress)
         return _finish(study_def, study, space, baselines, out_dir, storage_name, trade_off, t0)
+
+
+def _create_or_load(optuna, name: str, storage, directions: list[str]):
+    """Create the study, or load it when it exists; several machines starting at once may race to create it."""
+    last: Exception | None = None
+    for attempt in range(5):
+        try:
+            return optuna.create_study(study_name=name, storage=storage, directions=directions, load_if_exists=True)
+        except Exception as err:  # noqa: BLE001 - the race surfaces as a database integrity error
+            last = err
+            time.sleep(0.2 * (attempt + 1))
+    raise HoleshapeError(f"the study {name!r} could not be created or loaded: {last}") from last
 
 
 def _repair_journal(path: Path) -> None:

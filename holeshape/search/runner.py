@@ -38,6 +38,7 @@ def storage_for(out_dir: Path, url: str | None):
     import optuna
 
     if url:
+        url = _with_driver(url)
         try:
             return optuna.storages.RDBStorage(url), url
         except Exception as err:  # noqa: BLE001 - database drivers raise their own types
@@ -47,6 +48,16 @@ def storage_for(out_dir: Path, url: str | None):
     path = out_dir / "study.journal"
     backend = JournalFileBackend(str(path), lock_obj=JournalFileOpenLock(str(path)))
     return optuna.storages.JournalStorage(backend), str(path)
+
+
+def _with_driver(url: str) -> str:
+    """``postgresql://`` means the psycopg2 driver to SQLAlchemy; use psycopg (3) when only that is installed."""
+    import importlib.util
+
+    if url.startswith("postgresql://") and importlib.util.find_spec("psycopg2") is None \
+            and importlib.util.find_spec("psycopg") is not None:
+        return "postgresql+psycopg://" + url[len("postgresql://"):]
+    return url
 
 
 @dataclass(frozen=True)
