@@ -39,10 +39,17 @@ def storage_for(out_dir: Path, url: str | None):
 
     if url:
         url = _with_driver(url)
-        try:
-            return optuna.storages.RDBStorage(url), url
-        except Exception as err:  # noqa: BLE001 - database drivers raise their own types
-            raise StudyError(f"--storage {url!r} cannot be opened: {type(err).__name__}: {err}") from err
+        last: Exception | None = None
+        for attempt in range(6):  # several machines creating the tables at one moment race; the loser retries
+            try:
+                return optuna.storages.RDBStorage(url), url
+            except Exception as err:  # noqa: BLE001 - database drivers raise their own types
+                last = err
+                if "IntegrityError" not in type(err).__name__ and "already exists" not in str(err):
+                    break
+                time.sleep(0.3 * (attempt + 1))
+        msg = " ".join(str(last).split())[:300]
+        raise StudyError(f"--storage {url!r} cannot be opened: {type(last).__name__}: {msg}") from last
     from optuna.storages.journal import JournalFileBackend, JournalFileOpenLock
 
     path = out_dir / "study.journal"
