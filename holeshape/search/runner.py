@@ -97,9 +97,11 @@ class Objective:
         try:
             ev = evaluate(self.study.panel, self.study.material, self.study.load_cases, cutout,
                           Measure(self.study.measure.stress, SEARCH_ACCURACY))
-        except HoleshapeError as err:
+        except Exception as err:  # noqa: BLE001 - a failed design must never stop the study; its reason is kept
+            kind = "" if isinstance(err, HoleshapeError) else " (unexpected)"
             rec["state"] = "failed"
-            rec["user_attrs"].update(feasible=True, failure=f"{type(err).__name__}: {err}")
+            rec["user_attrs"].update(feasible=True, failure=f"{type(err).__name__}{kind}: {' '.join(str(err).split())}")
+            log.debug("trial failed", exc_info=True)
             return rec
         rec["state"] = "complete"
         rec["value"] = ev.peak_stress_mpa
