@@ -45,6 +45,7 @@ ACCURACY_LEVELS = {
 # The floor is added to the level-to-level change so the estimate stays an upper bound where the change happens
 # to be tiny (two unstructured meshes can agree by chance). Measured true errors (benchmarks/speed.py): draft up to
 # 0.07 %, standard and fine up to 0.03 % on Kirsch and Inglis cases up to a/b = 8.
+UNRESOLVED_FACTOR = 10.0  # an estimate this many times the level's target is an error, not a number
 MAX_REFINEMENTS = 2  # extra levels (each 1.5x finer) tried when the estimate exceeds the level's target
 
 KT_REFERENCES = {
@@ -165,15 +166,21 @@ class EvaluationFields:
 
 
 def evaluate(panel: Panel, material: Material, load_cases: tuple[LoadCase, ...], cutout: Cutout,
-             measure: Measure = Measure(), keep_fields: bool = False, allow_reduction: bool = True):
+             measure: Measure = Measure(), keep_fields: bool = False, allow_reduction: bool = True,
+             time_limit_s: float | None = None):
     """Evaluate one design. Returns an :class:`Evaluation`, or ``(Evaluation, EvaluationFields)`` when
-    ``keep_fields``. ``allow_reduction=False`` forces the full panel model (used to check the reduced ones)."""
+    ``keep_fields``. ``allow_reduction=False`` forces the full panel model (used to check the reduced ones).
+    ``time_limit_s``: no further mesh level is started once this much time has gone; if the levels needed for
+    an error estimate are not done by then, :class:`SolveError` says so."""
     t0 = time.perf_counter()
     level = ACCURACY_LEVELS[measure.accuracy]
     region = choose_region(panel, cutout, load_cases) if allow_reduction else Region(panel.width, panel.height)
     remote = np.array([lc.components for lc in load_cases])
 
     def run(spec):
+        if time_limit_s is not None and time.perf_counter() - t0 > time_limit_s:
+            raise SolveError(f"the evaluation exceeded its time limit of {time_limit_s:g} s before its error "
+                             "estimate was complete")
         pm = mesh_panel(panel.width, panel.height, cutout, region, spec)
         sol = solve_panel(pm, material.youngs_modulus, material.poisson_ratio, remote, panel.edges,
                           panel.width, panel.height)
@@ -187,6 +194,8 @@ def evaluate(panel: Panel, material: Material, load_cases: tuple[LoadCase, ...],
         ests = [error_estimate_pct(f[0], c[0], level.floor_pct) for f, c in zip(runs[-1][2], runs[-2][2])]
         if max(ests) <= level.target_pct or refinements == MAX_REFINEMENTS:
             break
+        if time_limit_s is not None and time.perf_counter() - t0 > 0.5 * time_limit_s:
+            break  # no time for a finer level: report the estimate as it stands (with its warning)
         spec = spec.coarsened(1.0 / 1.5)
         runs.append(run(spec))
         refinements += 1
@@ -212,6 +221,11 @@ def evaluate(panel: Panel, material: Material, load_cases: tuple[LoadCase, ...],
     g = results[gov]
     est = max(r.error_estimate_pct for r in results)
     warnings = []
+    if est > UNRESOLVED_FACTOR * level.target_pct:
+        raise SolveError(
+            f"the mesh cannot resolve this outline: the peak changed by {est:.3g} % between the last two mesh levels"
+            f" (target {level.target_pct:g} %; smallest radius {cutout.min_radius:.3g} mm); a number this uncertain"
+            " is not reported")
     if est > level.target_pct:
         warnings.append(f"error estimate {est:.3g} % exceeds the {level.name} target of {level.target_pct:g} %:"
                         " treat the peak as approximate or use a finer accuracy level")

@@ -106,8 +106,15 @@ def _graded_spacing(s: np.ndarray, h: np.ndarray, growth: float, periodic: bool)
     return np.minimum(fwd, bwd)
 
 
-def cutout_nodes(cutout: Cutout, spec: MeshSpec, t_start: float, t_span: float, h_cap: float) -> np.ndarray:
-    """Curve parameters of the cutout nodes from ``t_start`` over ``t_span`` (2 pi for the full outline)."""
+LIGAMENT_ELEMENTS = 4  # at least this many elements across a ligament narrower than the curvature sizing gives
+
+
+def cutout_nodes(cutout: Cutout, spec: MeshSpec, t_start: float, t_span: float, h_cap: float,
+                 panel_size: tuple[float, float] | None = None) -> np.ndarray:
+    """Curve parameters of the cutout nodes from ``t_start`` over ``t_span`` (2 pi for the full outline).
+
+    With ``panel_size`` the spacing is also held to (distance to the nearest panel edge) / LIGAMENT_ELEMENTS, so a
+    narrow ligament gets several elements across it."""
     smp = cutout.sampling
     full = math.isclose(t_span, 2 * math.pi)
     n_dense = 4096
@@ -117,10 +124,14 @@ def cutout_nodes(cutout: Cutout, spec: MeshSpec, t_start: float, t_span: float, 
     tt = np.concatenate([smp.t, [2 * math.pi]])
     kappa = np.abs(np.interp(np.mod(t, 2 * math.pi), tt, np.concatenate([smp.curvature, smp.curvature[:1]])))
     perimeter = smp.perimeter
-    h_floor = 2e-4 * perimeter
+    h_floor = 1e-5 * perimeter  # only for curvature singularities; MAX_CUTOUT_SEGMENTS bounds the total
     h_cap = min(h_cap, perimeter / spec.min_segments)
     with np.errstate(divide="ignore"):
         h = np.clip(1.0 / (kappa * spec.boundary_ratio), h_floor, h_cap)
+    if panel_size is not None:
+        xy = cutout.xy(t)
+        gap = np.min([xy[0], xy[1], panel_size[0] - xy[0], panel_size[1] - xy[1]], axis=0)
+        h = np.minimum(h, np.maximum(gap, h_floor) / LIGAMENT_ELEMENTS * spec.boundary_ratio / 16.0)
     h = _graded_spacing(s, h, spec.growth, periodic=full)
     # node count from the integral of ds / h, then equal steps in that integral
     length = s[-1] + (s[1] - s[0] if full else 0.0)
@@ -129,12 +140,17 @@ def cutout_nodes(cutout: Cutout, spec: MeshSpec, t_start: float, t_span: float, 
     dens = np.concatenate([[0.0], np.cumsum(np.diff(s_ext) * 0.5 * (1 / h_ext[1:] + 1 / h_ext[:-1]))])
     least = max(4, int(math.ceil(spec.min_segments * t_span / (2 * math.pi))))
     n_seg = max(least, int(math.ceil(dens[-1])))
+    if n_seg > MAX_CUTOUT_SEGMENTS:
+        raise MeshError(f"the outline would need {n_seg} boundary elements (its smallest radius "
+                        f"{1 / max(kappa.max(), 1e-300):.3g} mm against a perimeter of {perimeter:.4g} mm);"
+                        f" more than {MAX_CUTOUT_SEGMENTS} is refused: use a coarser accuracy or a larger radius")
     targets = np.linspace(0.0, dens[-1], n_seg + 1)
     s_nodes = np.interp(targets, dens, s_ext)
     return smp.t_at_arclength(s_nodes + s0)
 
 
 _GMSH_READY = False
+MAX_CUTOUT_SEGMENTS = 20000  # beyond this a single evaluation would take minutes: refuse rather than hang
 
 
 def _gmsh():
@@ -174,7 +190,7 @@ def mesh_panel(width: float, height: float, cutout: Cutout, region: Region, spec
     h_max = spec.max_fraction * min(width, height)
     t_start, t_span = _arc_range(cutout, region)
     closed = region.name == "full"
-    t_nodes = cutout_nodes(cutout, spec, t_start, t_span, h_cap=h_max)
+    t_nodes = cutout_nodes(cutout, spec, t_start, t_span, h_cap=h_max, panel_size=(width, height))
     xy = cutout.xy(t_nodes)  # (2, n)
     if closed:
         xy_ring, t_ring = xy[:, :-1], t_nodes[:-1]

@@ -328,9 +328,7 @@ def solve_panel(pm, youngs_modulus: float, poisson_ratio: float, remote: np.ndar
         values = values[first]
         loads = np.zeros((K.shape[0], m))
     elif edges == "traction":
-        unit = [traction_load(mesh, edge_facets, lambda x, y, c=c: tuple(float(i == c) for i in range(3)))
-                for c in range(3)]
-        loads = np.stack(unit, axis=1) @ remote.T  # (n, 3) @ (3, m)
+        loads = panel_edge_loads(basis, mesh, bnd, remote)
         fixed_parts += _rigid_body_constraints(basis, pm, width, height)
         fixed = np.unique(np.concatenate(fixed_parts)) if fixed_parts else np.array([], dtype=np.int64)
         values = None
@@ -341,6 +339,35 @@ def solve_panel(pm, youngs_modulus: float, poisson_ratio: float, remote: np.ndar
     cut = boundary_stress(mesh, u, pm.cutout_facets, youngs_modulus, poisson_ratio, closed=pm.closed,
                           s_nodes=pm.cutout_s)
     return PanelSolution(basis=basis, u=u, cutout=cut, youngs_modulus=youngs_modulus, poisson_ratio=poisson_ratio)
+
+
+EDGE_NORMALS = {"left": (-1.0, 0.0), "right": (1.0, 0.0), "bottom": (0.0, -1.0), "top": (0.0, 1.0)}
+
+
+def panel_edge_loads(basis, mesh, boundaries: dict, remote: np.ndarray) -> np.ndarray:
+    """Consistent P2 load vectors (n_dofs, m) of uniform remote stresses on the straight panel edges.
+
+    On a straight edge of length L with its mid-side node at the midpoint, a constant traction q gives q L / 6 at
+    each end node and 2 q L / 3 at the mid node (exact integration of the quadratic shape functions). Written out
+    instead of a facet basis because an element with a curved cutout edge and a panel edge (a thin ligament)
+    defeats scikit-fem's inverse mapping on facets.
+    """
+    m = remote.shape[0]
+    loads = np.zeros((basis.N, m))
+    sx, sy, txy = remote.T
+    for name, (nx, ny) in EDGE_NORMALS.items():
+        f = boundaries[name]
+        if len(f) == 0:
+            continue
+        v = mesh.facets[:, f]  # (2, k) vertex indices
+        length = np.linalg.norm(mesh.p[:, v[1]] - mesh.p[:, v[0]], axis=0)  # (k,)
+        qx = np.outer(length, sx * nx + txy * ny)  # (k, m): traction x L
+        qy = np.outer(length, txy * nx + sy * ny)
+        for comp, q in ((0, qx), (1, qy)):
+            for dofs, w in ((basis.nodal_dofs[comp, v[0]], 1 / 6), (basis.nodal_dofs[comp, v[1]], 1 / 6),
+                            (basis.facet_dofs[comp, f], 2 / 3)):
+                np.add.at(loads, dofs, w * q)
+    return loads
 
 
 def _rigid_body_constraints(basis, pm, width: float, height: float) -> list[np.ndarray]:

@@ -49,6 +49,8 @@ def write_json(path: Path, obj) -> Path:
 def profile_points(cutout: Cutout, tol: float = CHORD_TOLERANCE_MM) -> np.ndarray:
     """Points (n, 2) on the exact outline, spaced so that no chord strays more than ``tol`` mm from the curve."""
     smp = cutout.sampling
+    if not (np.all(np.isfinite(smp.points)) and np.isfinite(smp.perimeter)):
+        raise HoleshapeError("the outline has non-finite coordinates; no profile is written")
     kappa = np.abs(smp.curvature)
     # sagitta of a chord h on radius rho is h^2 / (8 rho): h = sqrt(8 tol rho), with a safety factor of 0.7
     with np.errstate(divide="ignore"):

@@ -26,6 +26,7 @@ log = logging.getLogger("holeshape.search")
 
 INFEASIBLE_VALUE = 1.0e9  # objective recorded for infeasible designs (never solved); samplers rank them by constraints
 SEARCH_ACCURACY = "draft"
+TRIAL_TIME_LIMIT_S = 60.0  # per evaluation in a search; a design that needs longer is recorded as failed
 
 
 def study_fingerprint(path: str | Path) -> str:
@@ -96,7 +97,7 @@ class Objective:
             return rec
         try:
             ev = evaluate(self.study.panel, self.study.material, self.study.load_cases, cutout,
-                          Measure(self.study.measure.stress, SEARCH_ACCURACY))
+                          Measure(self.study.measure.stress, SEARCH_ACCURACY), time_limit_s=TRIAL_TIME_LIMIT_S)
         except Exception as err:  # noqa: BLE001 - a failed design must never stop the study; its reason is kept
             kind = "" if isinstance(err, HoleshapeError) else " (unexpected)"
             rec["state"] = "failed"
