@@ -81,6 +81,13 @@ def field_values(stress: np.ndarray, measure: str, tangent_free: bool = False) -
     return 0.5 * (sxx + syy) + np.hypot(0.5 * (sxx - syy), sxy)
 
 
+def _warn(fig, ev: Evaluation) -> None:
+    """Numerical warnings go on the picture too, not only in the text."""
+    if ev.warnings:
+        fig.text(0.01, 0.985, "WARNING: " + ev.warnings[0], fontsize=7.5, color="red", ha="left", va="top",
+                 wrap=True)
+
+
 def plot_stress_field(path: Path, ev: Evaluation, fields: EvaluationFields, cutout_xy: np.ndarray,
                       case_index: int, panel_size: tuple[float, float], title: str) -> Path:
     plt = _mpl()
@@ -104,7 +111,8 @@ def plot_stress_field(path: Path, ev: Evaluation, fields: EvaluationFields, cuto
     label = "von Mises stress" if measure == "von_mises" else "max principal stress"
     fig.colorbar(tpc, ax=ax, shrink=0.8, label=f"{label} (MPa)")
     ax.set_title(f"{title}\n{r.name}: {label}")
-    fig.tight_layout(rect=(0, 0.02, 1, 1))
+    _warn(fig, ev)
+    fig.tight_layout(rect=(0, 0.02, 1, 0.97))
     return save(fig, path)
 
 
@@ -125,7 +133,8 @@ def plot_boundary_stress(path: Path, ev: Evaluation, fields: EvaluationFields, a
     ax.grid(True, alpha=0.3)
     ax.legend(fontsize=8)
     ax.set_title(f"{title}: stress along the cutout edge")
-    fig.tight_layout(rect=(0, 0.02, 1, 1))
+    _warn(fig, ev)
+    fig.tight_layout(rect=(0, 0.02, 1, 0.97))
     return save(fig, path)
 
 
