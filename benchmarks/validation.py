@@ -47,24 +47,9 @@ def rows(accuracy: str):
 
 
 def le1() -> float:
-    import numpy as np
-    from test_nafems_le1 import le1_mesh
+    from holeshape.validation import le1_sigma_yy_at_d
 
-    from holeshape.solve import FactorisedSystem, boundary_stress, stiffness, traction_load, vector_basis
-
-    mesh = le1_mesh(60.0)
-    bf = mesh.boundary_facets()
-    mid = mesh.p[:, mesh.facets[:, bf]].mean(axis=1)
-    outer = bf[np.abs((mid[0] / 3250) ** 2 + (mid[1] / 2750) ** 2 - 1) < 0.02]
-    inner = bf[np.abs((mid[0] / 2000) ** 2 + (mid[1] / 1000) ** 2 - 1) < 0.02]
-    basis = vector_basis(mesh)
-    fixed = np.concatenate([basis.get_dofs(bf[np.abs(mid[1]) < 1e-6]).all("u^2"),
-                            basis.get_dofs(bf[np.abs(mid[0]) < 1e-6]).all("u^1")])
-    u = FactorisedSystem(stiffness(basis, 210000.0, 0.3), fixed).solve(
-        traction_load(mesh, outer, lambda x, y: (10.0, 10.0, 0.0))[:, None])
-    c = mesh.facets[:, inner]
-    ang = np.arctan2(mesh.p[1, c].mean(axis=0), mesh.p[0, c].mean(axis=0))
-    return float(boundary_stress(mesh, u, inner[np.argsort(ang)], 210000.0, 0.3, closed=False).sigma[1, 0, 0])
+    return le1_sigma_yy_at_d(60.0)
 
 
 def main() -> None:

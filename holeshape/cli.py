@@ -52,6 +52,11 @@ def _parser() -> argparse.ArgumentParser:
                     "postgresql://user@host/db (default: a journal file in --out)")
     op.add_argument("--trade-off", action="store_true", help="two objectives: peak stress down, removed area up")
     op.add_argument("--json", action="store_true", help="summary on stdout as JSON")
+    rp = sub.add_parser("report", parents=[common], help="(re)build the reviewer's report from a finished run",
+                        description="Builds report.html (self-contained) or report.md from a run folder's stored "
+                        "results, without solving.")
+    rp.add_argument("run", help="run folder (the --out of optimise)")
+    rp.add_argument("--format", choices=("html", "markdown"), default="html")
     return ap
 
 
@@ -65,6 +70,11 @@ def main(argv: list[str] | None = None) -> int:
             return _check(args)
         if args.command in ("optimise", "optimize"):
             return _optimise(args)
+        if args.command == "report":
+            from holeshape.output.report import build_report
+
+            print(build_report(args.run, args.format))
+            return 0
         raise AssertionError(args.command)
     except (StudyError, GeometryError) as err:
         return _fail(args, err, EXIT_INPUT)

@@ -17,6 +17,7 @@ from holeshape import CAUTIONS, __version__
 from holeshape.errors import HoleshapeError, StudyError
 from holeshape.evaluate import evaluate
 from holeshape.search.baselines import standard_shapes
+from holeshape.search.constraints import edge_gaps
 from holeshape.search.runner import (
     Objective,
     _add,
@@ -288,6 +289,9 @@ def _finish(study_def, study, space, baselines, out_dir: Path, storage_name: str
                                               (study_def.panel.width, study_def.panel.height), study_def.title))
     plot_paths.append(plots.plot_boundary_stress(out_dir / "best_boundary_stress.png", ev, fields,
                                                  study_def.material.allowable_stress, study_def.title))
+    files.write_vtk(out_dir / "best_stress_field.vtu", fields, [r.name for r in ev.load_cases])
+    levels = _levels(study_def, cut, ev)
+    gaps = edge_gaps(cut, study_def.panel)
     improvement = {row["shape"]: 100.0 * (1 - ev.peak_stress_mpa / row["peak_stress_mpa"])
                    for row in base_rows if row.get("feasible")}
     summary = {
@@ -301,7 +305,11 @@ def _finish(study_def, study, space, baselines, out_dir: Path, storage_name: str
                  "margin_of_safety": r.margin_of_safety, "error_estimate_pct": r.error_estimate_pct}
                 for r in ev.load_cases],
             "dxf_vertices": dxf_info["vertices"], "dxf_chord_error_mm": dxf_info["chord_error_mm"],
-            "warnings": list(ev.warnings),
+            "warnings": list(ev.warnings), "levels": levels,
+            "ligaments_mm": {k: round(v, 3) for k, v in gaps.items()},
+            "mass_saved_kg": (study_def.material.density * ev.area_mm2 * study_def.panel.thickness * 1e-9
+                              if study_def.material.density else None),
+            "vtk": str(out_dir / "best_stress_field.vtu"),
         },
         "baselines": base_rows,
         "improvement_over_baselines_pct": improvement,
@@ -317,8 +325,41 @@ def _finish(study_def, study, space, baselines, out_dir: Path, storage_name: str
         plot_paths.append(search_plots.plot_front(out_dir / "trade_off_front.png", trials, summary["front"],
                                                   study_def.title))
         summary["plots"] = [str(p) for p in plot_paths]
+    files.write_json(out_dir / "inputs.json", _inputs(study_def))
+    if not (out_dir / "validation.json").exists():
+        from holeshape.validation import run_validation
+
+        files.write_json(out_dir / "validation.json", run_validation(FINAL_ACCURACY))
     files.write_json(out_dir / "summary.json", summary)
+    from holeshape.output.report import build_report
+
+    summary["report"] = str(build_report(out_dir))
     return summary
+
+
+def _levels(study_def, cut, ev_fine) -> list[dict]:
+    """The recommended design at the three accuracy levels (evidence for the reviewer)."""
+    rows = []
+    for acc in ("draft", "standard"):
+        e = evaluate(study_def.panel, study_def.material, study_def.load_cases, cut,
+                     Measure(study_def.measure.stress, acc))
+        rows.append((acc, e))
+    rows.append((FINAL_ACCURACY, ev_fine))
+    fine = ev_fine.peak_stress_mpa
+    return [{"accuracy": a, "dofs": e.dofs, "peak_stress_mpa": e.peak_stress_mpa,
+             "change_pct": 100 * (e.peak_stress_mpa / fine - 1), "error_estimate_pct": e.error_estimate_pct}
+            for a, e in rows]
+
+
+def _inputs(study_def) -> dict:
+    from dataclasses import asdict
+    from datetime import datetime, timezone
+
+    cons = asdict(study_def.constraints)
+    return {"title": study_def.title, "source": study_def.source, "panel": asdict(study_def.panel),
+            "material": asdict(study_def.material), "load_cases": [asdict(c) for c in study_def.load_cases],
+            "constraints": cons, "search": asdict(study_def.search), "measure": asdict(study_def.measure),
+            "finished": datetime.now(timezone.utc).strftime("%Y-%m-%d %H:%M UTC")}
 
 
 def _front(study, space, study_def, out_dir: Path) -> list[dict]:

@@ -123,3 +123,29 @@ def write_csv(path: Path, cutout: Cutout) -> Path:
     pts = profile_points(cutout)
     rows = ["x_mm,y_mm"] + [f"{x:.6f},{y:.6f}" for x, y in np.vstack([pts, pts[:1]])]
     return atomic_write(path, "\n".join(rows) + "\n")
+
+
+def write_vtk(path: Path, fields, load_case_names: list[str]) -> Path:
+    """The stress field of a design as VTK XML (.vtu) for any open-source field viewer: vertex values of
+    sxx, syy, sxy and von Mises per load case (MPa); a reduced model is mirrored to the whole panel. Written
+    atomically."""
+    import meshio
+
+    from holeshape.output.plots import _mirrored_triangulation, vertex_stress
+
+    vs = vertex_stress(fields)  # (3, nv, m)
+    nv = fields.panel_mesh.mesh.nvertices
+    data = {}
+    p = t = None
+    for j, name in enumerate(load_case_names):
+        key = safe_name(name, f"case{j}")
+        sxx, syy, sxy = vs[:, :, j]
+        vm = np.sqrt(np.maximum(sxx**2 - sxx * syy + syy**2 + 3 * sxy**2, 0))
+        for label, v in (("sxx", sxx), ("syy", syy), ("sxy", sxy), ("von_mises", vm)):
+            p, t, vals = _mirrored_triangulation(fields, v[:nv], odd=label == "sxy")
+            data[f"{key}_{label}_MPa"] = vals
+    pts = np.column_stack([p.T, np.zeros(p.shape[1])])
+    tmp = path.with_name(f".{path.stem}.tmp{path.suffix}")
+    meshio.write_points_cells(str(tmp), pts, [("triangle", t.T.astype(np.int64))], point_data=data)
+    os.replace(tmp, path)
+    return path

@@ -59,8 +59,9 @@ def vertex_stress(fields: EvaluationFields) -> np.ndarray:
     return out / count[None, :, None]
 
 
-def _mirrored_triangulation(fields: EvaluationFields, values: np.ndarray):
-    """Triangles and values of the whole panel from a reduced model (for display)."""
+def _mirrored_triangulation(fields: EvaluationFields, values: np.ndarray, odd: bool = False):
+    """Triangles and values of the whole panel from a reduced model (for display). ``odd``: the value changes sign
+    in a mirror image (the shear stress sxy)."""
     mesh, region = fields.panel_mesh.mesh, fields.panel_mesh.region
     p, t, v = mesh.p[:, :mesh.nvertices].copy(), mesh.t.copy(), values.copy()
     cx, cy = region.width / 2, region.height / 2
@@ -70,7 +71,7 @@ def _mirrored_triangulation(fields: EvaluationFields, values: np.ndarray):
             q[axis] = 2 * c - q[axis]
             t = np.concatenate([t, t + p.shape[1]], axis=1)
             p = np.concatenate([p, q], axis=1)
-            v = np.concatenate([v, v])
+            v = np.concatenate([v, -v if odd else v])
     return p, t, v
 
 

@@ -1,0 +1,161 @@
+"""The reviewer's report: one self-contained HTML file (images embedded, opens offline, prints to PDF), or Markdown
+with the figures beside it. Built only from a run folder's stored results (no solving), so it is fast and
+deterministic."""
+
+from __future__ import annotations
+
+import base64
+import html
+import json
+from pathlib import Path
+
+from holeshape.output.files import atomic_write
+
+SECTIONS = ("The job", "Study inputs", "Recommendation", "Comparison", "Stress", "Evidence of accuracy",
+            "Validation appendix", "Search history", "Assumptions and cautions")
+
+JOB = ("This report records how a cutout in a thin loaded panel was chosen: the opening was searched for the lowest "
+       "peak stress over every load case that still meets the access, area, ligament and radius requirements, "
+       "compared with the standard shapes a handbook would offer, and checked with a mesh-convergence estimate and "
+       "against published solutions computed by the same pipeline.")
+
+CSS = """body{font-family:Helvetica,Arial,sans-serif;max-width:60em;margin:2em auto;color:#111;line-height:1.4}
+h1{font-size:1.6em}h2{font-size:1.25em;border-bottom:1px solid #888;margin-top:1.6em}
+table{border-collapse:collapse;margin:.6em 0}td,th{border:1px solid #999;padding:.25em .6em;text-align:left}
+th{background:#eee}img{max-width:100%;border:1px solid #ccc;margin:.4em 0}.warn{color:#a00;font-weight:bold}
+.caution{border:2px solid #333;padding:.6em 1em}@media print{h2{page-break-after:avoid}img{page-break-inside:avoid}}"""
+
+
+# marks every image once the page has loaded, so a headless browser's DOM dump shows whether each one decoded
+LOAD_CHECK = ("<script>window.addEventListener('load',function(){var n=0;document.querySelectorAll('img')"
+              ".forEach(function(i){var ok=i.complete&&i.naturalWidth>0;i.setAttribute('data-loaded',ok?'yes':'no');"
+              "if(ok){n++;}});document.body.setAttribute('data-images-loaded',String(n));});</script>")
+
+
+def _table(rows: list[dict], cols: list[tuple[str, str]], md: bool) -> str:
+    def cell(v):
+        if isinstance(v, float):
+            return f"{v:.6g}" if abs(v) >= 1000 else f"{v:.4g}"
+        if isinstance(v, bool):
+            return "yes" if v else "NO"
+        return "-" if v is None else str(v)
+
+    if md:
+        head = "| " + " | ".join(t for _, t in cols) + " |\n|" + "---|" * len(cols) + "\n"
+        return head + "\n".join("| " + " | ".join(cell(r.get(k)) for k, _ in cols) + " |" for r in rows) + "\n"
+    out = "<table><tr>" + "".join(f"<th>{html.escape(t)}</th>" for _, t in cols) + "</tr>"
+    for r in rows:
+        out += "<tr>" + "".join(f"<td>{html.escape(cell(r.get(k)))}</td>" for k, _ in cols) + "</tr>"
+    return out + "</table>"
+
+
+def _round(v):
+    if isinstance(v, list):
+        return "[" + ", ".join(_round(x) for x in v) + "]"
+    return f"{v:.3f}".rstrip("0").rstrip(".") if isinstance(v, float) else str(v)
+
+
+def build_report(run_dir: str | Path, fmt: str = "html") -> Path:
+    run = Path(run_dir)
+    try:
+        summary = json.loads((run / "summary.json").read_text())
+        inputs = json.loads((run / "inputs.json").read_text())
+    except FileNotFoundError as err:
+        from holeshape.errors import StudyError
+
+        raise StudyError(f"{str(run)!r} holds no finished run (summary.json and inputs.json are written at the end of"
+                         " holeshape optimise)") from err
+    validation = json.loads((run / "validation.json").read_text()) if (run / "validation.json").exists() else []
+    md = fmt == "markdown"
+    parts: list[str] = []
+
+    def h2(t):
+        parts.append(f"\n## {t}\n" if md else f'<h2 id="{t.lower().replace(" ", "-")}">{html.escape(t)}</h2>')
+
+    def para(t, cls=None):
+        parts.append(f"\n{t}\n" if md else f"<p{f' class={chr(34)}{cls}{chr(34)}' if cls else ''}>{html.escape(t)}</p>")
+
+    def img(name, alt):
+        p = run / name
+        if not p.exists():
+            return
+        if md:
+            parts.append(f"\n![{alt}]({name})\n")
+        else:
+            data = base64.b64encode(p.read_bytes()).decode()
+            parts.append(f'<img alt="{html.escape(alt)}" src="data:image/png;base64,{data}">')
+
+    b = summary["best"]
+    title = inputs["title"]
+    parts.append(f"# {title}: cutout design report\n" if md else f"<h1>{html.escape(title)}: cutout design report</h1>")
+    para(f"holeshape {summary['holeshape_version']}; run folder {run}; generated from the stored results of the "
+         f"run finished {inputs.get('finished', '')}.")
+    h2(SECTIONS[0])
+    para(JOB)
+    h2(SECTIONS[1])
+    parts.append(_table([inputs["panel"]], [("width", "width (mm)"), ("height", "height (mm)"),
+                                            ("thickness", "thickness (mm)"), ("edges", "edge condition")], md))
+    parts.append(_table([inputs["material"]], [("name", "material"), ("youngs_modulus", "E (MPa)"),
+                                               ("poisson_ratio", "Poisson's ratio"),
+                                               ("allowable_stress", "allowable (MPa)")], md))
+    parts.append(_table(inputs["load_cases"], [("name", "load case"), ("sigma_x", "sigma_x (MPa)"),
+                                               ("sigma_y", "sigma_y (MPa)"), ("tau_xy", "tau_xy (MPa)")], md))
+    cons = [{"constraint": k, "value": json.dumps(v) if isinstance(v, dict) else v}
+            for k, v in inputs["constraints"].items() if v not in (None, 0.0)]
+    parts.append(_table(cons, [("constraint", "constraint"), ("value", "value (mm, mm^2)")], md))
+    h2(SECTIONS[2])
+    x0, y0, x1, y1 = b["bounds_mm"]
+    dims = ", ".join(f"{k} = {_round(v)}" for k, v in b["params"].items())
+    para(f"Recommended: {b['shape'].replace('_', ' ')} ({dims}); overall {x1 - x0:.1f} x "
+         f"{y1 - y0:.1f} mm; smallest radius {b['min_radius_mm']:.2f} mm; removed area {b['area_mm2']:.0f} mm^2"
+         + (f" ({b['mass_saved_kg']:.3f} kg saved)" if b.get("mass_saved_kg") is not None else "")
+         + f"; ligaments to the edges (mm): {json.dumps(b.get('ligaments_mm', {}))}; profile {Path(b['dxf']).name}.")
+    parts.append(_table(b["load_cases"], [("name", "load case"), ("peak_stress_mpa", "peak (MPa)"), ("kt", "Kt"),
+                                          ("x_mm", "x (mm)"), ("y_mm", "y (mm)"),
+                                          ("margin_of_safety", "margin of safety")], md))
+    for w in b.get("warnings", []):
+        para("WARNING: " + w, "warn")
+    img("best_shape.png", "recommended profile in the panel with the access envelope and the standard shapes")
+    h2(SECTIONS[3])
+    rows = [{"shape": "recommended " + b["shape"], "peak_stress_mpa": b["peak_stress_mpa"], "kt": b["kt"],
+             "area_mm2": b["area_mm2"], "note": ""}]
+    for r in summary["baselines"]:
+        imp = summary["improvement_over_baselines_pct"].get(r["shape"])
+        rows.append({"shape": r["shape"], "peak_stress_mpa": r.get("peak_stress_mpa"), "kt": r.get("kt"),
+                     "area_mm2": r.get("area_mm2"),
+                     "note": f"recommended is {imp:+.1f} % lower" if imp is not None else r.get("reason", "")})
+    parts.append(_table(rows, [("shape", "design"), ("peak_stress_mpa", "peak (MPa)"), ("kt", "Kt"),
+                               ("area_mm2", "area (mm^2)"), ("note", "")], md))
+    h2(SECTIONS[4])
+    img("best_stress_field.png", "stress field of the recommended design, governing load case")
+    img("best_boundary_stress.png", "stress along the cutout edge, every load case, allowable drawn in")
+    h2(SECTIONS[5])
+    parts.append(_table(b.get("levels", []), [
+        ("accuracy", "accuracy level"), ("dofs", "DOFs"), ("peak_stress_mpa", "peak (MPa)"),
+        ("change_pct", "change from finest (%)"), ("error_estimate_pct", "error estimate (%)")], md))
+    para(f"Reported figures are at the {b['accuracy']} level; error estimate {b['error_estimate_pct']:.3f} % "
+         "(change of the peak to a mesh with every element size doubled, plus the measured scatter floor).")
+    h2(SECTIONS[6])
+    para("The same pipeline at the same accuracy level on published reference cases:")
+    parts.append(_table(validation, [("case", "case"), ("source", "source"), ("published", "published (MPa)"),
+                                     ("holeshape", "holeshape (MPa)"), ("error_pct", "error (%)"),
+                                     ("tolerance_pct", "tolerance (%)"), ("within", "within")], md))
+    h2(SECTIONS[7])
+    img("search_history.png", "search history, best so far against trial")
+    img("trade_off_front.png", "trade-off front, removed area against peak stress")
+    para(f"{summary['trials_completed']} trials completed ({summary['trials_infeasible']} infeasible, not solved), "
+         f"{summary['trials_failed']} failed; storage {summary['storage']}.")
+    h2(SECTIONS[8])
+    edges = inputs["panel"]["edges"]
+    meaning = ("remote stress applied as edge tractions: a large panel free to redistribute load" if edges == "traction"
+               else "remote strain imposed on the edges: a web bounded by stiff members")
+    para(f"Linear-elastic, plane-stress model of a flat isotropic panel with uniform remote stresses; edge condition "
+         f"'{edges}' ({meaning}).")
+    para(summary["cautions"] + " No buckling, fatigue, fracture or bearing assessment is included in this report; "
+         "the profile must be reviewed by a qualified engineer before use.", "caution")
+    if md:
+        text = "\n".join(parts)
+        return atomic_write(run / "report.md", text)
+    doc = (f"<!DOCTYPE html><html lang=\"en\"><head><meta charset=\"utf-8\"><title>{html.escape(title)}</title>"
+           f"<style>{CSS}</style></head><body>" + "\n".join(parts) + LOAD_CHECK + "</body></html>\n")
+    return atomic_write(run / "report.html", doc)

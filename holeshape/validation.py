@@ -1,0 +1,97 @@
+"""Published reference cases solved by the same pipeline as a design, for the report's validation appendix and
+the README table. Sources: Kirsch (1898); Inglis (1913); Howland (1930); NAFEMS LE1 (1990). Units mm, MPa."""
+
+from __future__ import annotations
+
+import time
+
+import numpy as np
+
+from holeshape.evaluate import evaluate
+from holeshape.geometry import Circle, Cutout, Ellipse
+from holeshape.study import LoadCase, Material, Measure, Panel
+
+REFERENCE_MATERIAL = Material(name="reference", youngs_modulus=71000.0, poisson_ratio=0.33)
+BIG = 4000.0  # 400 hole sizes across: finite-panel effect ~0.005 % on the peak
+
+
+def le1_mesh(size_mm: float):
+    """NAFEMS LE1 quarter elliptic membrane (mm) meshed by gmsh on its own ellipse arcs, 6-node triangles."""
+    from holeshape.mesh import _gmsh, mesh_from_gmsh
+
+    gmsh = _gmsh()
+    gmsh.clear()
+    gmsh.model.add("le1")
+    g = gmsh.model.geo
+    c = g.addPoint(0, 0, 0)
+    p1, p2 = g.addPoint(2000.0, 0, 0), g.addPoint(0, 1000.0, 0)
+    p3, p4 = g.addPoint(3250.0, 0, 0), g.addPoint(0, 2750.0, 0)
+    inner, outer = g.addEllipseArc(p1, c, p1, p2), g.addEllipseArc(p3, c, p3, p4)
+    bottom, left = g.addLine(p1, p3), g.addLine(p4, p2)
+    s = g.addPlaneSurface([g.addCurveLoop([bottom, outer, left, -inner])])
+    g.synchronize()
+    gmsh.option.setNumber("Mesh.MeshSizeMax", size_mm)
+    gmsh.option.setNumber("Mesh.MeshSizeMin", size_mm / 4)
+    gmsh.model.mesh.setSize([(0, p1)], size_mm / 4)
+    gmsh.model.mesh.generate(2)
+    gmsh.model.mesh.setOrder(2)  # mid-side nodes on the exact ellipses
+    mesh = mesh_from_gmsh(gmsh, s)
+    gmsh.clear()
+    return mesh
+
+
+def le1_sigma_yy_at_d(size_mm: float = 60.0) -> float:
+    """sigma_yy (MPa) at D = (2000, 0) mm: outward pressure 10 MPa on the outer ellipse, E = 210 GPa, nu = 0.3."""
+    from holeshape.solve import FactorisedSystem, boundary_stress, stiffness, traction_load, vector_basis
+
+    mesh = le1_mesh(size_mm)
+    bf = mesh.boundary_facets()
+    mid = mesh.p[:, mesh.facets[:, bf]].mean(axis=1)
+    outer = bf[np.abs((mid[0] / 3250) ** 2 + (mid[1] / 2750) ** 2 - 1) < 0.02]
+    inner = bf[np.abs((mid[0] / 2000) ** 2 + (mid[1] / 1000) ** 2 - 1) < 0.02]
+    basis = vector_basis(mesh)
+    fixed = np.concatenate([basis.get_dofs(bf[np.abs(mid[1]) < 1e-6]).all("u^2"),
+                            basis.get_dofs(bf[np.abs(mid[0]) < 1e-6]).all("u^1")])
+    u = FactorisedSystem(stiffness(basis, 210000.0, 0.3), fixed).solve(
+        traction_load(mesh, outer, lambda x, y: (10.0, 10.0, 0.0))[:, None])
+    c = mesh.facets[:, inner]
+    ang = np.arctan2(mesh.p[1, c].mean(axis=0), mesh.p[0, c].mean(axis=0))
+    return float(boundary_stress(mesh, u, inner[np.argsort(ang)], 210000.0, 0.3, closed=False).sigma[1, 0, 0])
+
+
+def reference_cases(full: bool = True):
+    """(name, source, cutout, panel, load, published peak MPa, tolerance %)."""
+    big = Panel(BIG, BIG, 1.0)
+    mid = (BIG / 2, BIG / 2)
+    rows = [("circle, uniaxial", "Kirsch (1898): 3 s", Cutout(Circle(10.0), mid), big, (100, 0, 0), 300.0, 0.1),
+            ("circle, pure shear", "Kirsch (1898): 4 t", Cutout(Circle(10.0), mid), big, (0, 0, 100), 400.0, 0.1)]
+    if full:
+        rows += [("circle, equibiaxial", "Kirsch (1898): 2 s", Cutout(Circle(10.0), mid), big, (100, 100, 0),
+                  200.0, 0.1)]
+    for r in ((2, 4, 8) if full else (4,)):
+        rows.append((f"ellipse a/b = {r}, load across", "Inglis (1913): 1 + 2a/b",
+                     Cutout(Ellipse(10.0, 10.0 / r), mid), big, (0, 100, 0), 100.0 * (1 + 2 * r), 0.1))
+    strip = Panel(1000.0, 100.0, 1.0)
+    for dw, kt in (((0.2, 3.14), (0.3, 3.36), (0.4, 3.74), (0.5, 4.32)) if full else ((0.4, 3.74),)):
+        rows.append((f"strip, d/W = {dw}", "Howland (1930), 3-figure table", Cutout(Circle(dw * 50.0), (500.0, 50.0)),
+                     strip, (100, 0, 0), 100.0 * kt, 1.0))
+    return rows
+
+
+def run_validation(accuracy: str, full: bool = False) -> list[dict]:
+    """Solve the reference cases at ``accuracy``; rows ready for JSON."""
+    out = []
+    for name, source, cut, panel, load, published, tol in reference_cases(full):
+        t0 = time.perf_counter()
+        ev = evaluate(panel, REFERENCE_MATERIAL, (LoadCase("c", *load),), cut, Measure("hoop", accuracy))
+        err = 100 * (ev.peak_stress_mpa / published - 1)
+        out.append({"case": name, "source": source, "published": published, "holeshape": ev.peak_stress_mpa,
+                    "error_pct": err, "tolerance_pct": tol, "error_estimate_pct": ev.error_estimate_pct,
+                    "within": abs(err) <= tol, "dofs": ev.dofs, "seconds": time.perf_counter() - t0})
+    t0 = time.perf_counter()
+    v = le1_sigma_yy_at_d()
+    out.append({"case": "NAFEMS LE1 elliptic membrane, sigma_yy at D", "source": "NAFEMS (1990): 92.7 MPa",
+                "published": 92.7, "holeshape": v, "error_pct": 100 * (v / 92.7 - 1), "tolerance_pct": 1.0,
+                "error_estimate_pct": None, "within": abs(v / 92.7 - 1) <= 0.01, "dofs": None,
+                "seconds": time.perf_counter() - t0})
+    return out
