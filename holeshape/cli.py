@@ -52,6 +52,13 @@ def _parser() -> argparse.ArgumentParser:
                     "postgresql://user@host/db (default: a journal file in --out)")
     op.add_argument("--trade-off", action="store_true", help="two objectives: peak stress down, removed area up")
     op.add_argument("--json", action="store_true", help="summary on stdout as JSON")
+    cp = sub.add_parser("compare", parents=[common], help="best of every shape family under the same constraints",
+                        description="Runs the search for circle, ellipse, rounded rectangle, slot, superellipse and "
+                        "spline with the study's constraints and load cases, ranks them and writes report.html.")
+    cp.add_argument("study", help="study file (TOML)")
+    cp.add_argument("--out", help="run folder (default: runs/<study file name>-compare)")
+    cp.add_argument("--workers", type=int, default=1, help="worker processes per search (default 1)")
+    cp.add_argument("--json", action="store_true", help="ranking on stdout as JSON")
     rp = sub.add_parser("report", parents=[common], help="(re)build the reviewer's report from a finished run",
                         description="Builds report.html (self-contained) or report.md from a run folder's stored "
                         "results, without solving.")
@@ -70,6 +77,8 @@ def main(argv: list[str] | None = None) -> int:
             return _check(args)
         if args.command in ("optimise", "optimize"):
             return _optimise(args)
+        if args.command == "compare":
+            return _compare(args)
         if args.command == "report":
             from holeshape.output.report import build_report
 
@@ -142,6 +151,29 @@ def _check(args) -> int:
                 print(f"  plot          {p}")
         else:
             print(f"{ev.peak_stress_mpa:.3f} MPa (Kt {ev.kt:.4f}, error estimate {ev.error_estimate_pct:.3f} %)")
+    return 0
+
+
+def _compare(args) -> int:
+    from holeshape.compare import run_compare
+    from holeshape.output.files import safe_name
+
+    out = args.out or str(Path("runs") / (safe_name(Path(args.study).stem) + "-compare"))
+    top = run_compare(args.study, out, workers=args.workers, progress=not args.quiet)
+    if args.json:
+        print(json.dumps({"comparison": top["comparison"], "best": top["best"], "report": top["report"]}, indent=2))
+        return 0
+    print(f"holeshape compare: {top['study']}")
+    for r in top["comparison"]:
+        if r["feasible"]:
+            imp = r["improvement_over_circle_pct"]
+            vs = "" if imp is None else f", {imp:+.1f} % against the circle"
+            print(f"  {r['rank']}. {r['shape']:<18} {r['peak_stress_mpa']:8.2f} MPa, Kt {r['kt']:.3f},"
+                  f" area {r['area_mm2']:.0f} mm^2{vs}")
+        else:
+            print(f"  -  {r['shape']:<18} no feasible design: {r['reason']}")
+    print(f"  report        {top['report']}")
+    print("\n  CAUTION: " + CAUTIONS)
     return 0
 
 

@@ -273,11 +273,21 @@ def _finish(study_def, study, space, baselines, out_dir: Path, storage_name: str
             ev2, fields2 = evaluate(study_def.panel, study_def.material, study_def.load_cases, cut, measure,
                                     keep_fields=True)
             candidates.append((ev2.peak_stress_mpa, family, cut, ev2, fields2, None))
+    own = candidates[0] if best_t is not None else None  # the study family's own best, whatever wins overall
     peak, family, cut, ev, fields, number = min(candidates, key=lambda c: c[0])
 
     dxf = out_dir / "best.dxf"
     dxf_info = files.write_dxf(dxf, cut, (study_def.panel.width, study_def.panel.height), study_def.title)
     files.write_csv(out_dir / "best.csv", cut)
+    family_best = None
+    if own is not None:
+        files.write_csv(out_dir / "family_best.csv", own[2])
+        files.write_dxf(out_dir / "family_best.dxf", own[2], (study_def.panel.width, study_def.panel.height),
+                        study_def.title)
+        e = own[3]
+        family_best = {"shape": own[1], "peak_stress_mpa": e.peak_stress_mpa, "kt": e.kt, "area_mm2": e.area_mm2,
+                       "error_estimate_pct": e.error_estimate_pct, "params": _jsonable(own[2].parameters()),
+                       "governing_load_case": e.governing_load_case, "dxf": str(out_dir / "family_best.dxf")}
     plot_paths = [
         search_plots.plot_history(out_dir / "search_history.png", trials, study_def.title),
         search_plots.plot_shapes(out_dir / "best_shape.png", cut, [(f, c) for f, c, _ in base_evals],
@@ -311,6 +321,7 @@ def _finish(study_def, study, space, baselines, out_dir: Path, storage_name: str
                               if study_def.material.density else None),
             "vtk": str(out_dir / "best_stress_field.vtu"),
         },
+        "family_best": family_best,
         "baselines": base_rows,
         "improvement_over_baselines_pct": improvement,
         "trials_completed": len(complete), "trials_infeasible": len(infeasible), "trials_failed": len(failed),

@@ -11,6 +11,8 @@ import math
 
 from hypothesis import strategies as st
 
+from holeshape.study import dump_toml as to_toml  # noqa: F401 - re-exported for the tests
+
 VALID = {
     "title": "robustness base study",
     "panel": {"width": 300.0, "height": 200.0, "thickness": 1.6, "edges": "traction"},
@@ -22,44 +24,6 @@ VALID = {
                     "access": {"width": 60.0, "height": 30.0}, "clearance": 2.0},
     "search": {"trials": 10, "seed": 1},
 }
-
-
-def to_toml(doc: dict) -> str:
-    """A small TOML writer for these documents (tables, arrays of tables, inline tables, floats incl. nan/inf)."""
-
-    def val(v):
-        if isinstance(v, bool):
-            return "true" if v else "false"
-        if isinstance(v, float):
-            if math.isnan(v):
-                return "nan"
-            if math.isinf(v):
-                return "inf" if v > 0 else "-inf"
-            return repr(v)
-        if isinstance(v, int):
-            return str(v)
-        if isinstance(v, str):
-            return '"' + v.replace("\\", "\\\\").replace('"', '\\"') + '"'
-        if isinstance(v, list):
-            return "[" + ", ".join(val(x) for x in v) + "]"
-        if isinstance(v, dict):
-            return "{" + ", ".join(f"{key(k)} = {val(x)}" for k, x in v.items()) + "}"
-        raise TypeError(v)
-
-    def key(k):
-        return k if k.replace("_", "").isalnum() else val(k)
-
-    lines = [f"{key(k)} = {val(v)}" for k, v in doc.items() if not isinstance(v, (dict, list)) or
-             (isinstance(v, list) and not all(isinstance(x, dict) for x in v))]
-    for k, v in doc.items():
-        if isinstance(v, dict):
-            lines.append(f"\n[{key(k)}]")
-            lines += [f"{key(a)} = {val(b)}" for a, b in v.items()]
-        elif isinstance(v, list) and v and all(isinstance(x, dict) for x in v):
-            for item in v:
-                lines.append(f"\n[[{key(k)}]]")
-                lines += [f"{key(a)} = {val(b)}" for a, b in item.items()]
-    return "\n".join(lines) + "\n"
 
 
 def _set(doc, path, value):

@@ -89,3 +89,20 @@ def test_vtk_field_reads_back(run_dir):
     vm = max(v.max() for k, v in m.point_data.items() if k.endswith("von_mises_MPa"))
     # vertex-averaged display values sit a little below the edge peak read inside the elements (5 %)
     assert vm == pytest.approx(summary["best"]["peak_stress_mpa"], rel=0.05)
+
+
+def test_compare_ranks_every_family(tmp_path, capsys):
+    study = write(tmp_path, RIB, TRIALS=8, CONSTRAINTS="access = {width = 90.0, height = 50.0}\nclearance = 2.0\n"
+                  "min_ligament = 20.0")
+    assert main(["compare", str(study), "--out", str(tmp_path / "cmp"), "-q", "--json"]) == 0
+    d = json.loads(capsys.readouterr().out)
+    rows = d["comparison"]
+    assert {r["shape"] for r in rows} == {"circle", "ellipse", "rounded_rectangle", "slot", "superellipse", "spline"}
+    ranked = [r for r in rows if r["feasible"]]
+    assert [r["rank"] for r in ranked] == list(range(1, len(ranked) + 1))
+    assert [r["peak_stress_mpa"] for r in ranked] == sorted(r["peak_stress_mpa"] for r in ranked)
+    circle = next(r for r in ranked if r["shape"] == "circle")
+    assert circle["improvement_over_circle_pct"] == pytest.approx(0.0, abs=1e-12)
+    html = (tmp_path / "cmp" / "report.html").read_text()
+    assert "Best design of every shape family" in html and html.count("data:image/png;base64,") >= 5
+    assert (tmp_path / "cmp" / "best.dxf").exists()

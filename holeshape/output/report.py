@@ -126,6 +126,13 @@ def build_report(run_dir: str | Path, fmt: str = "html") -> Path:
                      "note": f"recommended is {imp:+.1f} % lower" if imp is not None else r.get("reason", "")})
     parts.append(_table(rows, [("shape", "design"), ("peak_stress_mpa", "peak (MPa)"), ("kt", "Kt"),
                                ("area_mm2", "area (mm^2)"), ("note", "")], md))
+    if summary.get("comparison"):
+        para("Best design of every shape family, same constraints and load cases, fine level:")
+        parts.append(_table(summary["comparison"], [
+            ("rank", "rank"), ("shape", "family"), ("peak_stress_mpa", "peak (MPa)"), ("kt", "Kt"),
+            ("area_mm2", "area (mm^2)"), ("governing_load_case", "governing load case"),
+            ("improvement_over_circle_pct", "improvement over circle (%)"), ("reason", "note")], md))
+        img("compare_shapes.png", "best outline of every family, overlaid")
     h2(SECTIONS[4])
     img("best_stress_field.png", "stress field of the recommended design, governing load case")
     img("best_boundary_stress.png", "stress along the cutout edge, every load case, allowable drawn in")

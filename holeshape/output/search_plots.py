@@ -93,3 +93,31 @@ def plot_front(path: Path, trials, front: list[dict], title: str) -> Path:
     ax.set_title(f"{title}: removed area against peak stress")
     fig.tight_layout(rect=(0, 0.02, 1, 1))
     return save(fig, path)
+
+
+def plot_family_overlay(path: Path, study, run_dir: Path, ranked: list[dict]) -> Path:
+    """Every family's best outline in one figure, from their written profiles (mm)."""
+    plt = _mpl()
+    panel = study.panel
+    fig, ax = plt.subplots(figsize=(8, 8 * panel.height / panel.width + 0.8))
+    ax.plot([0, panel.width, panel.width, 0, 0], [0, 0, panel.height, panel.height, 0], color="black", lw=1.2)
+    styles = ["-", "--", "-.", ":", (0, (5, 1)), (0, (1, 1))]
+    for i, r in enumerate(ranked):
+        csv = run_dir / r["shape"] / "family_best.csv"
+        pts = np.loadtxt(csv, delimiter=",", skiprows=1)
+        ax.plot(pts[:, 0], pts[:, 1], linestyle=styles[i % len(styles)], lw=2.4 if i == 0 else 1.3,
+                color="C0" if i == 0 else f"{0.15 + 0.12 * i:.2f}",
+                label=f"{r['rank']}. {r['shape'].replace('_', ' ')}: {r['peak_stress_mpa']:.1f} MPa")
+    if study.constraints.access is not None:
+        c = study.cutout.values["center"]
+        center = tuple(v.value if hasattr(v, "value") and v.value is not None else
+                       (0.5 * (v.min + v.max) if hasattr(v, "min") else v) for v in c)
+        env = study.constraints.access.polygon(center, 0.0)
+        ax.fill(*env.exterior.xy, color="C2", alpha=0.25, label="access envelope")
+    ax.set_aspect("equal")
+    ax.set_xlabel("x (mm)")
+    ax.set_ylabel("y (mm)")
+    ax.legend(fontsize=8, loc="upper right")
+    ax.set_title(f"{study.title}: best of every family (peak, fine level)")
+    fig.tight_layout(rect=(0, 0.02, 1, 1))
+    return save(fig, path)

@@ -1,0 +1,125 @@
+"""``holeshape compare``: the best of every shape family under the study's constraints and load cases, ranked.
+
+Each family gets search ranges derived from the panel, the ligament and the access envelope (so the families are
+compared on equal terms), and its own search in ``--out/<family>/``; the overall best is copied to the top of the
+run folder with a comparison table and an overlay of every family's best, and the report is written.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+import shutil
+from pathlib import Path
+
+from holeshape.errors import HoleshapeError, StudyError
+from holeshape.study import Range, dump_toml, load_study
+
+FAMILY_ORDER = ("circle", "ellipse", "rounded_rectangle", "slot", "superellipse", "spline")
+
+
+def _r(lo: float, hi: float) -> dict:
+    lo, hi = float(lo), float(hi)
+    return {"min": round(min(lo, hi), 4), "max": round(max(lo, hi), 4)}
+
+
+def family_ranges(study, raw_cutout: dict) -> dict[str, dict]:
+    """[cutout] tables for every family, on the study's centre and rotation, sized to the panel and envelope."""
+    panel, cons = study.panel, study.constraints
+    center = study.cutout.values["center"]
+    cx = center[0].max if isinstance(center[0], Range) else center[0]
+    cy = center[1].max if isinstance(center[1], Range) else center[1]
+    lig = cons.min_ligament or 0.0
+    pmax = max(1.0, min(cx, panel.width - cx) - lig) * 0.999
+    qmax = max(1.0, min(cy, panel.height - cy) - lig) * 0.999
+    if cons.access is not None:
+        p, q = cons.access.half_sizes
+        p, q = p + cons.clearance, q + cons.clearance
+    else:
+        p, q = 0.1 * pmax, 0.1 * qmax
+    rmin = max(cons.min_radius or 0.0, 0.5)
+    common = {"center": raw_cutout.get("center", [panel.width / 2, panel.height / 2])}
+    rot = raw_cutout.get("rotation", 0.0)
+    out = {
+        "circle": {"radius": _r(min(math.hypot(p, q), min(pmax, qmax)), min(pmax, qmax))},
+        "ellipse": {"a": _r(p, pmax), "b": _r(q, qmax), "rotation": rot},
+        "rounded_rectangle": {"a": _r(p, pmax), "b": _r(q, qmax),
+                              "corner_radius": _r(rmin, max(rmin * 1.01, min(pmax, qmax))), "rotation": rot},
+        "slot": {"length": _r(2 * max(p, q), 2 * pmax), "width": _r(2 * min(p, q), 2 * qmax), "rotation": rot},
+        "superellipse": {"a": _r(p, pmax), "b": _r(q, qmax), "exponent": _r(2.0, 8.0), "rotation": rot},
+        "spline": {"radii": {**_r(0.9 * min(p, q), max(pmax, qmax)), "count": 8}, "symmetry": "none",
+                   "rotation": 0.0},
+    }
+    for fam, table in out.items():
+        table.update(common)
+        table["shape"] = fam
+    return out
+
+
+def run_compare(study_path: str, out: str, workers: int = 1, progress: bool = True) -> dict:
+    try:
+        import tomllib
+    except ModuleNotFoundError:  # Python 3.10
+        import tomli as tomllib  # type: ignore[no-redef]
+
+    from holeshape.optimise import run_optimise
+    from holeshape.output import files, search_plots
+    from holeshape.output.report import build_report
+
+    study = load_study(study_path)
+    doc = tomllib.loads(Path(study_path).read_text(encoding="utf-8"))
+    out_dir = Path(out)
+    out_dir.mkdir(parents=True, exist_ok=True)
+    rows, summaries = [], {}
+    for family, table in family_ranges(study, doc["cutout"]).items():
+        fam_doc = dict(doc)
+        fam_doc["cutout"] = table
+        fam_doc["title"] = f"{study.title} ({family.replace('_', ' ')})"
+        fam_dir = out_dir / family
+        fam_dir.mkdir(exist_ok=True)
+        fam_study = fam_dir / "study.toml"
+        text = dump_toml(fam_doc)
+        if not fam_study.exists() or fam_study.read_text() != text:
+            files.atomic_write(fam_study, text)
+        try:
+            s = run_optimise(str(fam_study), str(fam_dir), workers=workers, progress=progress)
+        except (HoleshapeError, StudyError) as err:
+            rows.append({"shape": family, "feasible": False, "reason": " ".join(str(err).split())})
+            continue
+        summaries[family] = s
+        fb = s.get("family_best")
+        if fb is None:
+            rows.append({"shape": family, "feasible": False, "reason": "no feasible design of this family"})
+            continue
+        rows.append({"shape": family, "feasible": True, **{k: fb[k] for k in (
+            "peak_stress_mpa", "kt", "area_mm2", "governing_load_case", "params", "dxf", "error_estimate_pct")}})
+    ok = sorted((r for r in rows if r["feasible"]), key=lambda r: r["peak_stress_mpa"])
+    if not ok:
+        raise HoleshapeError("no shape family found a design that meets the constraints: " +
+                             "; ".join(f"{r['shape']}: {r['reason']}" for r in rows))
+    circle = next((r["peak_stress_mpa"] for r in rows if r["shape"] == "circle" and r["feasible"]), None)
+    for rank, r in enumerate(ok, 1):
+        r["rank"] = rank
+        r["improvement_over_circle_pct"] = None if circle is None else 100 * (1 - r["peak_stress_mpa"] / circle)
+    winner = ok[0]["shape"]
+    src = out_dir / winner
+    if summaries[winner]["best"]["shape"] != winner:  # a standard shape beat even the best family: say so
+        ok[0]["note"] = f"a standard {summaries[winner]['best']['shape']} is better still (see its search)"
+    for name in ("best.dxf", "best.csv", "best_shape.png", "best_stress_field.png", "best_boundary_stress.png",
+                 "search_history.png", "best_stress_field.vtu", "inputs.json", "validation.json"):
+        if (src / name).exists():
+            shutil.copyfile(src / name, out_dir / f".{name}.copy")
+            (out_dir / f".{name}.copy").replace(out_dir / name)
+    top = dict(summaries[winner])
+    top["best"] = dict(top["best"], dxf=str(out_dir / "best.dxf"))
+    top["comparison"] = ok + [r for r in rows if not r["feasible"]]
+    top["family_best"] = summaries[winner]["family_best"]
+    top["study"] = study.title
+    search_plots.plot_family_overlay(out_dir / "compare_shapes.png", study, out_dir, ok)
+    inputs = json.loads((out_dir / "inputs.json").read_text())
+    inputs["title"] = study.title
+    files.write_json(out_dir / "inputs.json", inputs)
+    files.write_json(out_dir / "compare.json", top["comparison"])
+    files.write_json(out_dir / "summary.json", top)
+    top["report"] = str(build_report(out_dir))
+    return top
