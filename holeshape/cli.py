@@ -59,6 +59,14 @@ def _parser() -> argparse.ArgumentParser:
     cp.add_argument("--out", help="run folder (default: runs/<study file name>-compare)")
     cp.add_argument("--workers", type=int, default=1, help="worker processes per search (default 1)")
     cp.add_argument("--json", action="store_true", help="ranking on stdout as JSON")
+    sw = sub.add_parser("sweep", parents=[common], help="peak stress, Kt and area over a grid of one or two parameters",
+                        description="Evaluates the study's design with one parameter (or two) varied over a grid; "
+                        "writes sweep.json, sweep.png and report.html.")
+    sw.add_argument("study", help="study file (TOML)")
+    sw.add_argument("--vary", action="append", required=True, metavar="NAME=LOW:HIGH:COUNT",
+                    help="parameter to vary, e.g. b=20:60:9 (give twice for a 2-D map)")
+    sw.add_argument("--out", help="run folder (default: runs/<study file name>-sweep)")
+    sw.add_argument("--json", action="store_true", help="points on stdout as JSON")
     rp = sub.add_parser("report", parents=[common], help="(re)build the reviewer's report from a finished run",
                         description="Builds report.html (self-contained) or report.md from a run folder's stored "
                         "results, without solving.")
@@ -79,6 +87,8 @@ def main(argv: list[str] | None = None) -> int:
             return _optimise(args)
         if args.command == "compare":
             return _compare(args)
+        if args.command == "sweep":
+            return _sweep(args)
         if args.command == "report":
             from holeshape.output.report import build_report
 
@@ -151,6 +161,29 @@ def _check(args) -> int:
                 print(f"  plot          {p}")
         else:
             print(f"{ev.peak_stress_mpa:.3f} MPa (Kt {ev.kt:.4f}, error estimate {ev.error_estimate_pct:.3f} %)")
+    return 0
+
+
+def _sweep(args) -> int:
+    from holeshape.output.files import safe_name
+    from holeshape.sweep import run_sweep
+
+    out = args.out or str(Path("runs") / (safe_name(Path(args.study).stem) + "-sweep"))
+    res = run_sweep(args.study, out, args.vary)
+    if args.json:
+        print(json.dumps(res, indent=2))
+        return 0
+    print(f"holeshape sweep: {res['study']} ({res['accuracy']} level, {res['elapsed_s']:.1f} s)")
+    for p in res["points"]:
+        where = ", ".join(f"{k} = {v:.4g}" for k, v in p["coords"].items())
+        if p.get("solved"):
+            flag = "" if p["feasible"] else f"  [breaks: {p.get('reason', '')}]"
+            print(f"  {where:<28} peak {p['peak_stress_mpa']:8.2f} MPa, Kt {p['kt']:.3f},"
+                  f" area {p['area_mm2']:.0f} mm^2{flag}")
+        else:
+            print(f"  {where:<28} not solved: {p.get('reason', '')}")
+    print(f"  report        {res['report']}")
+    print("\n  CAUTION: " + CAUTIONS)
     return 0
 
 

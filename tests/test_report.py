@@ -106,3 +106,25 @@ def test_compare_ranks_every_family(tmp_path, capsys):
     html = (tmp_path / "cmp" / "report.html").read_text()
     assert "Best design of every shape family" in html and html.count("data:image/png;base64,") >= 5
     assert (tmp_path / "cmp" / "best.dxf").exists()
+
+
+def test_sweep_one_and_two_parameters(tmp_path, capsys):
+    from holeshape.output.report import SWEEP_SECTIONS
+
+    study = Path(__file__).resolve().parents[1] / "studies" / "rib-web-access.toml"
+    assert main(["sweep", str(study), "--vary", "b=30:50:3", "--out", str(tmp_path / "s1"), "--json"]) == 0
+    d = json.loads(capsys.readouterr().out)
+    solved = [p for p in d["points"] if p.get("solved")]
+    assert len(d["points"]) == 3 and solved
+    # a wider opening across the chordwise load raises the peak (Inglis: Kt grows with the half-size across the load)
+    peaks = [p["peak_stress_mpa"] for p in solved]
+    assert peaks == sorted(peaks)
+    html = (tmp_path / "s1" / "report.html").read_text()
+    for section in SWEEP_SECTIONS:
+        assert f"<h2>{section}</h2>" in html
+    assert main(["sweep", str(study), "--vary", "b=30:50:2", "--vary", "exponent=2:4:2", "--out",
+                 str(tmp_path / "s2"), "-q"]) == 0
+    capsys.readouterr()
+    assert len(json.loads((tmp_path / "s2" / "sweep.json").read_text())["points"]) == 4
+    assert main(["sweep", str(study), "--vary", "q=1:2:3", "--out", str(tmp_path / "s3")]) == 2
+    assert "not a parameter of this cutout" in capsys.readouterr().err

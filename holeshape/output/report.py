@@ -57,6 +57,8 @@ def _round(v):
 
 def build_report(run_dir: str | Path, fmt: str = "html") -> Path:
     run = Path(run_dir)
+    if (run / "sweep.json").exists() and not (run / "summary.json").exists():
+        return build_sweep_report(run, fmt)
     try:
         summary = json.loads((run / "summary.json").read_text())
         inputs = json.loads((run / "inputs.json").read_text())
@@ -163,6 +165,57 @@ def build_report(run_dir: str | Path, fmt: str = "html") -> Path:
     if md:
         text = "\n".join(parts)
         return atomic_write(run / "report.md", text)
+    doc = (f"<!DOCTYPE html><html lang=\"en\"><head><meta charset=\"utf-8\"><title>{html.escape(title)}</title>"
+           f"<style>{CSS}</style></head><body>" + "\n".join(parts) + LOAD_CHECK + "</body></html>\n")
+    return atomic_write(run / "report.html", doc)
+
+
+SWEEP_SECTIONS = ("The job", "Study inputs", "Sweep", "Validation appendix", "Assumptions and cautions")
+
+
+def build_sweep_report(run: Path, fmt: str = "html") -> Path:
+    """Report of a parameter sweep: inputs, the curves or map, every point, the validation appendix, cautions."""
+    sweep = json.loads((run / "sweep.json").read_text())
+    inputs = json.loads((run / "inputs.json").read_text())
+    validation = json.loads((run / "validation.json").read_text()) if (run / "validation.json").exists() else []
+    md = fmt == "markdown"
+    parts: list[str] = []
+
+    def add(t, tag="p"):
+        parts.append((f"\n## {t}\n" if tag == "h2" else f"\n{t}\n") if md else
+                     f"<{tag}>{html.escape(t)}</{tag}>")
+
+    title = inputs["title"]
+    parts.append(f"# {title}: parameter sweep\n" if md else f"<h1>{html.escape(title)}: parameter sweep</h1>")
+    add(SWEEP_SECTIONS[0], "h2")
+    add("A classic parameter study of the cutout: every point is a verified evaluation (two mesh levels, error "
+        f"estimate) at the {sweep['accuracy']} level, for every load case; points that break a constraint are kept"
+        " and marked.")
+    add(SWEEP_SECTIONS[1], "h2")
+    parts.append(_table([inputs["panel"]], [("width", "width (mm)"), ("height", "height (mm)"),
+                                            ("thickness", "thickness (mm)"), ("edges", "edge condition")], md))
+    parts.append(_table(inputs["load_cases"], [("name", "load case"), ("sigma_x", "sigma_x (MPa)"),
+                                               ("sigma_y", "sigma_y (MPa)"), ("tau_xy", "tau_xy (MPa)")], md))
+    add(SWEEP_SECTIONS[2], "h2")
+    p = run / "sweep.png"
+    if md:
+        parts.append("\n![sweep](sweep.png)\n")
+    elif p.exists():
+        parts.append(f'<img alt="sweep" src="data:image/png;base64,{base64.b64encode(p.read_bytes()).decode()}">')
+    rows = [{"point": json.dumps({k: round(v, 4) for k, v in pt["coords"].items()}), **pt} for pt in sweep["points"]]
+    parts.append(_table(rows, [("point", "parameters"), ("peak_stress_mpa", "peak (MPa)"), ("kt", "Kt"),
+                               ("area_mm2", "area (mm^2)"), ("error_estimate_pct", "error estimate (%)"),
+                               ("feasible", "meets constraints"), ("reason", "note")], md))
+    add(SWEEP_SECTIONS[3], "h2")
+    parts.append(_table(validation, [("case", "case"), ("source", "source"), ("published", "published (MPa)"),
+                                     ("holeshape", "holeshape (MPa)"), ("error_pct", "error (%)"),
+                                     ("tolerance_pct", "tolerance (%)"), ("within", "within")], md))
+    add(SWEEP_SECTIONS[4], "h2")
+    from holeshape import CAUTIONS
+
+    add(CAUTIONS)
+    if md:
+        return atomic_write(run / "report.md", "\n".join(parts))
     doc = (f"<!DOCTYPE html><html lang=\"en\"><head><meta charset=\"utf-8\"><title>{html.escape(title)}</title>"
            f"<style>{CSS}</style></head><body>" + "\n".join(parts) + LOAD_CHECK + "</body></html>\n")
     return atomic_write(run / "report.html", doc)

@@ -121,3 +121,54 @@ def plot_family_overlay(path: Path, study, run_dir: Path, ranked: list[dict]) ->
     ax.set_title(f"{study.title}: best of every family (peak, fine level)")
     fig.tight_layout(rect=(0, 0.02, 1, 1))
     return save(fig, path)
+
+
+def _label(name: str) -> str:
+    unit = "degrees" if name == "rotation" else ("-" if name == "exponent" else "mm")
+    return f"cutout {name} ({unit})"
+
+
+def plot_sweep(path: Path, result: dict, allowable: float | None) -> Path:
+    """1-D: peak stress, Kt and removed area against the varied parameter; 2-D: a map of the peak stress."""
+    plt = _mpl()
+    pts = result["points"]
+    vary = result["vary"]
+    solved = [p for p in pts if p.get("solved")]
+    if len(vary) == 1:
+        name = vary[0]["name"]
+        fig, axes = plt.subplots(3, 1, figsize=(8, 8), sharex=True)
+        x = np.array([p["coords"][name] for p in solved])
+        ok = np.array([p["feasible"] for p in solved], dtype=bool)
+        for ax, key, label in zip(axes, ("peak_stress_mpa", "kt", "area_mm2"),
+                                  ("peak stress (MPa)", "Kt", "removed area (mm^2)")):
+            y = np.array([p[key] for p in solved])
+            ax.plot(x, y, "-", color="0.3", lw=1.2)
+            ax.plot(x[ok], y[ok], "o", color="C0", ms=5, label="meets the constraints")
+            ax.plot(x[~ok], y[~ok], "x", color="C3", ms=6, label="breaks a constraint")
+            ax.set_ylabel(label)
+            ax.grid(True, alpha=0.3)
+        if allowable:
+            axes[0].axhline(allowable, color="black", ls="--", lw=1, label=f"allowable {allowable:g} MPa")
+        axes[0].legend(fontsize=8)
+        axes[-1].set_xlabel(_label(name))
+        axes[0].set_title(f"{result['study']}: sweep of {name}")
+    else:
+        (na, nb) = vary[0]["name"], vary[1]["name"]
+        A = np.linspace(vary[0]["lo"], vary[0]["hi"], vary[0]["n"])
+        B = np.linspace(vary[1]["lo"], vary[1]["hi"], vary[1]["n"])
+        Z = np.full((len(A), len(B)), np.nan)
+        for k, p in enumerate(pts):
+            if p.get("solved"):
+                Z[k // len(B), k % len(B)] = p["peak_stress_mpa"]
+        fig, ax = plt.subplots(figsize=(8, 6))
+        m = ax.pcolormesh(B, A, np.ma.masked_invalid(Z), shading="nearest", cmap="viridis")
+        fig.colorbar(m, ax=ax, label="peak stress (MPa)")
+        bad = [(p["coords"][nb], p["coords"][na]) for p in pts if not p["feasible"]]
+        if bad:
+            ax.plot(*np.array(bad).T, "x", color="red", ms=6, label="breaks a constraint or not solvable")
+            ax.legend(fontsize=8)
+        ax.set_xlabel(_label(nb))
+        ax.set_ylabel(_label(na))
+        ax.set_title(f"{result['study']}: peak stress map")
+    fig.tight_layout(rect=(0, 0.02, 1, 1))
+    return save(fig, path)
