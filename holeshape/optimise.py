@@ -310,7 +310,8 @@ def _finish(study_def, study, space, baselines, out_dir: Path, storage_name: str
             "area_mm2": ev.area_mm2, "error_estimate_pct": ev.error_estimate_pct,
             "params": _jsonable(cut.parameters()), "shape": family, "dxf": str(dxf), "feasible": True,
             "trial": number, "margin_of_safety": ev.margin_of_safety, "accuracy": FINAL_ACCURACY,
-            "min_radius_mm": cut.min_radius, "bounds_mm": list(cut.bounds), "load_cases": [
+            "min_radius_mm": cut.min_radius, "min_radius_at_mm": _min_radius_at(cut), "bounds_mm": list(cut.bounds),
+            "load_cases": [
                 {"name": r.name, "peak_stress_mpa": r.peak_stress_mpa, "kt": r.kt, "x_mm": r.x_mm, "y_mm": r.y_mm,
                  "margin_of_safety": r.margin_of_safety, "error_estimate_pct": r.error_estimate_pct}
                 for r in ev.load_cases],
@@ -346,6 +347,15 @@ def _finish(study_def, study, space, baselines, out_dir: Path, storage_name: str
 
     summary["report"] = str(build_report(out_dir))
     return summary
+
+
+def _min_radius_at(cut) -> list[float]:
+    """Panel coordinates (mm) of the point of smallest radius of curvature on the outline."""
+    import numpy as np
+
+    smp = cut.sampling
+    i = int(np.argmax(np.abs(smp.curvature)))
+    return [float(smp.points[0, i]), float(smp.points[1, i])]
 
 
 def _levels(study_def, cut, ev_fine) -> list[dict]:

@@ -20,13 +20,15 @@ from holeshape.cli import main
 
 
 @settings(max_examples=520, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture])
-@given(case=ANY_BAD, command=st.sampled_from(["check", "optimise"]))
+@given(case=ANY_BAD, command=st.sampled_from(["check", "optimise", "compare", "sweep"]))
 def test_every_malformed_study_gives_one_clear_line(tmp_path_factory, case, command):
     name, (doc, field, fragment) = case
     folder = tmp_path_factory.mktemp("bad")
     study = folder / "bad.toml"
     study.write_text(to_toml(doc))
-    extra = ["--plots", str(folder / "plots")] if command == "check" else ["--out", str(folder / "run")]
+    extra = {"check": ["--plots", str(folder / "plots")], "optimise": ["--out", str(folder / "run")],
+             "compare": ["--out", str(folder / "run")],
+             "sweep": ["--out", str(folder / "run"), "--vary", "a=40:60:3"]}[command]
     import contextlib
     import io
 
@@ -183,13 +185,10 @@ def test_kills_at_random_moments_lose_nothing(tmp_path, capsys):
                 json.loads((out / f).read_text())  # never half-written
     assert main(["optimise", str(study), "--out", str(out), "-q", "--json"]) == 0
     d = json.loads(capsys.readouterr().out)
-    from holeshape.search.runner import finished
-
     final = {t.number: dict(t.params) for t in _trials(out) if t.state.name == "COMPLETE"}
     for n, p in seen.items():
         assert final[n] == p
     assert d["trials_completed"] + d["trials_failed"] == 30
-    del finished
 
 
 def test_three_workers(tmp_path, capsys):

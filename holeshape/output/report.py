@@ -109,7 +109,9 @@ def build_report(run_dir: str | Path, fmt: str = "html") -> Path:
     x0, y0, x1, y1 = b["bounds_mm"]
     dims = ", ".join(f"{k} = {_round(v)}" for k, v in b["params"].items())
     para(f"Recommended: {b['shape'].replace('_', ' ')} ({dims}); overall {x1 - x0:.1f} x "
-         f"{y1 - y0:.1f} mm; smallest radius {b['min_radius_mm']:.2f} mm; removed area {b['area_mm2']:.0f} mm^2"
+         f"{y1 - y0:.1f} mm; smallest radius {b['min_radius_mm']:.2f} mm"
+         + (f" at ({b['min_radius_at_mm'][0]:.1f}, {b['min_radius_at_mm'][1]:.1f}) mm" if b.get("min_radius_at_mm")
+            else "") + f"; removed area {b['area_mm2']:.0f} mm^2"
          + (f" ({b['mass_saved_kg']:.3f} kg saved)" if b.get("mass_saved_kg") is not None else "")
          + f"; ligaments to the edges (mm): {json.dumps(b.get('ligaments_mm', {}))}; profile {Path(b['dxf']).name}.")
     parts.append(_table(b["load_cases"], [("name", "load case"), ("peak_stress_mpa", "peak (MPa)"), ("kt", "Kt"),
