@@ -71,12 +71,19 @@ def run_compare(study_path: str, out: str, workers: int = 1, progress: bool = Tr
     out_dir = Path(out)
     out_dir.mkdir(parents=True, exist_ok=True)
     rows, summaries = [], {}
+    if not (out_dir / "validation.json").exists():  # one validation appendix serves every family's search
+        from holeshape.optimise import FINAL_ACCURACY
+        from holeshape.validation import run_validation
+
+        files.write_json(out_dir / "validation.json", run_validation(FINAL_ACCURACY))
     for family, table in family_ranges(study, doc["cutout"]).items():
         fam_doc = dict(doc)
         fam_doc["cutout"] = table
         fam_doc["title"] = f"{study.title} ({family.replace('_', ' ')})"
         fam_dir = out_dir / family
         fam_dir.mkdir(exist_ok=True)
+        if not (fam_dir / "validation.json").exists():
+            shutil.copyfile(out_dir / "validation.json", fam_dir / "validation.json")
         fam_study = fam_dir / "study.toml"
         text = dump_toml(fam_doc)
         if not fam_study.exists() or fam_study.read_text() != text:
@@ -106,7 +113,7 @@ def run_compare(study_path: str, out: str, workers: int = 1, progress: bool = Tr
     if summaries[winner]["best"]["shape"] != winner:  # a standard shape beat even the best family: say so
         ok[0]["note"] = f"a standard {summaries[winner]['best']['shape']} is better still (see its search)"
     for name in ("best.dxf", "best.csv", "best_shape.png", "best_stress_field.png", "best_boundary_stress.png",
-                 "search_history.png", "best_stress_field.vtu", "inputs.json", "validation.json"):
+                 "search_history.png", "best_stress_field.vtu", "inputs.json"):
         if (src / name).exists():
             shutil.copyfile(src / name, out_dir / f".{name}.copy")
             (out_dir / f".{name}.copy").replace(out_dir / name)

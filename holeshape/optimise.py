@@ -8,6 +8,7 @@ shape over the standard shapes and the access envelope, stress field and edge st
 from __future__ import annotations
 
 import fcntl
+import functools
 import logging
 import multiprocessing
 import time
@@ -254,7 +255,7 @@ def _finish(study_def, study, space, baselines, out_dir: Path, storage_name: str
         if cut is None:
             base_rows.append({"shape": family, "feasible": False, "reason": note})
             continue
-        ev = evaluate(study_def.panel, study_def.material, study_def.load_cases, cut, measure)
+        ev = _standard_shape_evaluation(study_def.panel, study_def.material, study_def.load_cases, cut, measure)
         base_rows.append({"shape": family, "peak_stress_mpa": ev.peak_stress_mpa, "area_mm2": ev.area_mm2,
                           "kt": ev.kt, "error_estimate_pct": ev.error_estimate_pct, "feasible": True,
                           "params": cut.parameters()})
@@ -347,6 +348,12 @@ def _finish(study_def, study, space, baselines, out_dir: Path, storage_name: str
 
     summary["report"] = str(build_report(out_dir))
     return summary
+
+
+@functools.lru_cache(maxsize=64)
+def _standard_shape_evaluation(panel, material, load_cases, cutout, measure):
+    """The standard shapes are the same for every family that ``compare`` searches: evaluate each once."""
+    return evaluate(panel, material, load_cases, cutout, measure)
 
 
 def _min_radius_at(cut) -> list[float]:
