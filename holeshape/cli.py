@@ -164,11 +164,17 @@ def _check(args) -> int:
     return 0
 
 
-def _sweep(args) -> int:
+def _run_folder(args, suffix: str) -> str:
+    """--out, or runs/<study file name><suffix> with the name made safe as a folder name."""
     from holeshape.output.files import safe_name
+
+    return args.out or str(Path("runs") / (safe_name(Path(args.study).stem) + suffix))
+
+
+def _sweep(args) -> int:
     from holeshape.sweep import run_sweep
 
-    out = args.out or str(Path("runs") / (safe_name(Path(args.study).stem) + "-sweep"))
+    out = _run_folder(args, "-sweep")
     res = run_sweep(args.study, out, args.vary)
     if args.json:
         print(json.dumps(res, indent=2))
@@ -189,9 +195,8 @@ def _sweep(args) -> int:
 
 def _compare(args) -> int:
     from holeshape.compare import run_compare
-    from holeshape.output.files import safe_name
 
-    out = args.out or str(Path("runs") / (safe_name(Path(args.study).stem) + "-compare"))
+    out = _run_folder(args, "-compare")
     top = run_compare(args.study, out, workers=args.workers, progress=not args.quiet)
     if args.json:
         print(json.dumps({"comparison": top["comparison"], "best": top["best"], "report": top["report"]}, indent=2))
@@ -212,9 +217,8 @@ def _compare(args) -> int:
 
 def _optimise(args) -> int:
     from holeshape.optimise import run_optimise
-    from holeshape.output.files import safe_name
 
-    out = args.out or str(Path("runs") / safe_name(Path(args.study).stem))
+    out = _run_folder(args, "")
     summary = run_optimise(args.study, out, workers=args.workers, storage_url=args.storage,
                            trade_off=args.trade_off, progress=not args.quiet)
     if args.json:

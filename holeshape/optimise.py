@@ -120,7 +120,7 @@ def run_optimise(study_path: str, out: str, workers: int = 1, storage_url: str |
         storage, storage_name = storage_for(out_dir, storage_url)
         name = "holeshape-trade-off" if trade_off else "holeshape"
         directions = ["minimize", "maximize"] if trade_off else ["minimize"]
-        study = _create_or_load(optuna, name, storage, directions)
+        study, created = _create_or_load(optuna, name, storage, directions)
         fp = study_fingerprint(study_path)
         known = study.user_attrs.get("study_fingerprint")
         if known is None:
@@ -132,7 +132,7 @@ def run_optimise(study_path: str, out: str, workers: int = 1, storage_url: str |
         if storage_url is None:
             _fail_stale(study)
         baselines = standard_shapes(study_def.cutout.values, study_def.panel, study_def.constraints)
-        if not finished(study):
+        if created:  # only the process that created the study seeds it: machines starting together add nothing twice
             objective = Objective(study_def, space, trade_off)
             own = {k: r.value for k, r in space.dimensions.items()}
             if all(v is not None for v in own.values()):  # the study's current design first
@@ -152,12 +152,17 @@ def run_optimise(study_path: str, out: str, workers: int = 1, storage_url: str |
 
 
 def _create_or_load(optuna, name: str, storage, directions: list[str]):
-    """Create the study, or load it when it exists; several machines starting at once may race to create it."""
+    """(study, created): create the study, or load it when it exists. The storage's unique study name decides
+    which of several machines starting at once is the creator."""
+    from optuna.exceptions import DuplicatedStudyError
+
     last: Exception | None = None
     for attempt in range(5):
         try:
-            return optuna.create_study(study_name=name, storage=storage, directions=directions, load_if_exists=True)
-        except Exception as err:  # noqa: BLE001 - the race surfaces as a database integrity error
+            return optuna.create_study(study_name=name, storage=storage, directions=directions), True
+        except DuplicatedStudyError:
+            return optuna.load_study(study_name=name, storage=storage), False
+        except Exception as err:  # noqa: BLE001 - a creation race can also surface as an integrity error
             last = err
             time.sleep(0.2 * (attempt + 1))
     raise HoleshapeError(f"the study {name!r} could not be created or loaded: {last}") from last

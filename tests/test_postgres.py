@@ -81,6 +81,12 @@ def test_two_machines_share_one_study(tmp_path, postgres_url):
     storage, url = storage_for(tmp_path, postgres_url)
     st = optuna.load_study(study_name="holeshape", storage=storage)
     trials = finished(st)
-    assert len(trials) == 20 == len({t.number for t in trials})
+    numbers = [t.number for t in trials]
+    assert len(numbers) == len(set(numbers))  # nothing recorded twice
+    params = [tuple(sorted(t.params.items())) for t in trials]
+    assert len(params) == len(set(params)), "the standard shapes are seeded by one machine only"
+    # within a machine a file lock makes the count exact; between machines two may record the last trial at the
+    # same moment, so the total is the budget or at most one more per extra machine
+    assert 20 <= len(trials) <= 21
     assert outs[0]["storage"] == url
-    assert max(o["trials_completed"] + o["trials_failed"] for o in outs) == 20
+    assert max(o["trials_completed"] + o["trials_failed"] for o in outs) in (20, 21)

@@ -64,11 +64,16 @@ def plot_shapes(path: Path, best, baselines, panel, constraints, title: str, bes
         if constraints.clearance > 0:
             ax.plot(*constraints.access.polygon(best.center, constraints.clearance).exterior.xy, color="C2",
                     lw=0.8, label=f"with {constraints.clearance:g} mm clearance")
+    return _finish_plan(fig, ax, path, f"{title}: best shape against the standard shapes (peak, fine level)")
+
+
+def _finish_plan(fig, ax, path: Path, title: str) -> Path:
+    """A drawing of the panel in plan: true scale, mm on both axes."""
     ax.set_aspect("equal")
     ax.set_xlabel("x (mm)")
     ax.set_ylabel("y (mm)")
     ax.legend(fontsize=8, loc="upper right")
-    ax.set_title(f"{title}: best shape against the standard shapes (peak, fine level)")
+    ax.set_title(title)
     fig.tight_layout(rect=(0, 0.02, 1, 1))
     return save(fig, path)
 
@@ -109,18 +114,12 @@ def plot_family_overlay(path: Path, study, run_dir: Path, ranked: list[dict]) ->
                 color="C0" if i == 0 else f"{0.15 + 0.12 * i:.2f}",
                 label=f"{r['rank']}. {r['shape'].replace('_', ' ')}: {r['peak_stress_mpa']:.1f} MPa")
     if study.constraints.access is not None:
-        c = study.cutout.values["center"]
-        center = tuple(v.value if hasattr(v, "value") and v.value is not None else
-                       (0.5 * (v.min + v.max) if hasattr(v, "min") else v) for v in c)
+        from holeshape.search.baselines import baseline_center
+
+        center = baseline_center(study.cutout.values, panel, study.constraints)
         env = study.constraints.access.polygon(center, 0.0)
         ax.fill(*env.exterior.xy, color="C2", alpha=0.25, label="access envelope")
-    ax.set_aspect("equal")
-    ax.set_xlabel("x (mm)")
-    ax.set_ylabel("y (mm)")
-    ax.legend(fontsize=8, loc="upper right")
-    ax.set_title(f"{study.title}: best of every family (peak, fine level)")
-    fig.tight_layout(rect=(0, 0.02, 1, 1))
-    return save(fig, path)
+    return _finish_plan(fig, ax, path, f"{study.title}: best of every family (peak, fine level)")
 
 
 def _label(name: str) -> str:

@@ -11,14 +11,16 @@ from collections.abc import Generator
 import numpy as np
 
 
-def nelder_mead(x0: np.ndarray, step: float = 0.08) -> Generator[np.ndarray, float, None]:
-    """Yields points in [0, 1]^n to evaluate; receive each point's value by ``send``. Runs until closed."""
+def nelder_mead(x0: np.ndarray, step: float = 0.08, signs=None) -> Generator[np.ndarray, float, None]:
+    """Yields points in [0, 1]^n to evaluate; receive each point's value by ``send``. Runs until closed.
+    ``signs`` (n,) of +-1 choose the direction of each start vertex (default all +, turned back at the bounds)."""
     n = len(x0)
     x0 = np.clip(np.asarray(x0, dtype=float), 0.0, 1.0)
     pts = [x0]
     for i in range(n):
         p = x0.copy()
-        p[i] = p[i] + step if p[i] + step <= 1.0 else p[i] - step
+        d = step * (1.0 if signs is None else float(signs[i]))
+        p[i] = p[i] + d if 0.0 <= p[i] + d <= 1.0 else p[i] - d
         pts.append(p)
     vals = []
     for p in pts:

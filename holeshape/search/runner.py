@@ -224,7 +224,13 @@ def run_worker(study_path: str, storage_url: str | None, out_dir: str, study_nam
     space = DesignSpace(study_def.cutout, study_def.constraints)
     storage, _ = storage_for(Path(out_dir), storage_url)
     settings = study_def.search
-    sampler = optuna.samplers.TPESampler(seed=settings.seed + 1000 * worker, multivariate=True, constant_liar=True,
+    seed = settings.seed + 1000 * worker
+    if storage_url:  # every process on every machine sharing a database must sample its own points
+        import os
+        import socket
+
+        seed += int(hashlib.sha256(f"{socket.gethostname()}-{os.getpid()}".encode()).hexdigest()[:6], 16)
+    sampler = optuna.samplers.TPESampler(seed=seed, multivariate=True, constant_liar=True,
                                          n_startup_trials=max(4, min(10, int(settings.trials * 0.15))))
     study = optuna.load_study(study_name=study_name, storage=storage, sampler=sampler)
     objective = Objective(study_def, space, trade_off)
@@ -253,9 +259,10 @@ def run_worker(study_path: str, storage_url: str | None, out_dir: str, study_nam
             names = local_dimensions(space)
             base = dict(best.params)
             x0 = np.array(space.to_unit({k: base[k] for k in names}, names))
-            simplex = _start_simplex(x0, worker)
-            point = next(simplex)
+            simplex = _start_simplex(x0, worker, seed if storage_url else None)
+            next(simplex)  # the start vertex is the best trial itself: give its value, do not evaluate it again
             reference = best.value
+            point = simplex.send(reference)
         else:
             point = simplex.send(pending)
         params = dict(base)
@@ -284,8 +291,13 @@ def local_dimensions(space: DesignSpace) -> list[str]:
     return names
 
 
-def _start_simplex(x0: np.ndarray, worker: int):
+def _start_simplex(x0: np.ndarray, worker: int, shared_seed: int | None = None):
+    """The local workers of one machine differ by step size; processes sharing a database also by a random
+    turn of the start simplex (else two machines would walk the same points)."""
     from holeshape.search.local import nelder_mead
 
     step = 0.08 / (1 + worker)
-    return nelder_mead(x0, step)
+    if shared_seed is None:
+        return nelder_mead(x0, step)
+    rng = np.random.default_rng(shared_seed)
+    return nelder_mead(x0, step * rng.uniform(0.6, 1.4), signs=rng.choice([-1.0, 1.0], size=len(x0)))
