@@ -13,4 +13,19 @@ CAUTIONS = (
     "standards and licensed practice govern."
 )
 
-__all__ = ["CAUTIONS", "GeometryError", "HoleshapeError", "MeshError", "SolveError", "StudyError", "__version__"]
+STABILITY_CAUTIONS = (
+    "Linear-elastic, plane-stress model of a flat panel. The buckling load factor comes from a linear (eigenvalue) "
+    "analysis of the perfectly flat plate: it is not conservative for real plates with initial imperfections and "
+    "residual stresses, and the knock-down factors come from the applicable codes; post-buckled (tension-field) "
+    "webs are a design choice outside this model. No fatigue-life, fracture or bearing assessment is made. Results "
+    "must be reviewed by a qualified engineer; the applicable design codes, standards and licensed practice govern."
+)
+
+
+def cautions(stability_computed: bool = False) -> str:
+    """The caution every output carries: with or without a computed buckling check."""
+    return STABILITY_CAUTIONS if stability_computed else CAUTIONS
+
+
+__all__ = ["CAUTIONS", "STABILITY_CAUTIONS", "GeometryError", "HoleshapeError", "MeshError", "SolveError", "StudyError",
+           "__version__", "cautions"]

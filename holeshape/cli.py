@@ -14,7 +14,7 @@ import sys
 import traceback
 from pathlib import Path
 
-from holeshape import CAUTIONS, __version__
+from holeshape import CAUTIONS, __version__, cautions
 from holeshape.errors import GeometryError, HoleshapeError, StudyError
 
 EXIT_INPUT, EXIT_COMPUTE, EXIT_INTERNAL = 2, 3, 1
@@ -132,8 +132,12 @@ def _check(args) -> int:
             plot_dir.mkdir(parents=True, exist_ok=True)
         except OSError as err:
             raise StudyError(f"--plots {args.plots!r} cannot be created: {err.strerror}") from err
-    out = evaluate(study.panel, study.material, study.load_cases, cutout, measure, keep_fields=want_fields)
+    out = evaluate(study.panel, study.material, study.load_cases, cutout, measure, keep_fields=want_fields,
+                   stability=study.stability)
     ev, fields = out if want_fields else (out, None)
+    from holeshape.search.constraints import requirement_rows
+
+    requirements = requirement_rows(ev, cutout, study.panel, study.constraints, study.material)
     plots: list[str] = []
     if fields is not None:
         from holeshape.output import plots as P
@@ -147,20 +151,30 @@ def _check(args) -> int:
                                    study.title),
             P.plot_mesh(plot_dir / "mesh_near_cutout.png", fields, cutout.bounds, study.title),
         )]
+        if ev.stability is not None:
+            plots.append(str(P.plot_buckling_mode(plot_dir / "buckling_mode.png", ev.stability, fields.stability,
+                                                  outline, study.panel, study.title)))
     if args.json:
         d = ev.to_dict()
         d.update({"title": study.title, "shape": cutout.family, "params": cutout.parameters(),
-                  "holeshape_version": __version__, "plots": plots, "cautions": CAUTIONS})
+                  "holeshape_version": __version__, "plots": plots, "cautions": cautions(ev.stability is not None),
+                  "requirements": requirements, "meets_every_requirement": all(r["met"] for r in requirements)})
         print(json.dumps(d, indent=2))
     else:
         from holeshape.output.text import check_summary
 
         if not args.quiet:
-            print(check_summary(study.title, cutout.family, cutout.parameters(), ev, EDGE_NOTES[study.panel.edges]))
+            print(check_summary(study.title, cutout.family, cutout.parameters(), ev, EDGE_NOTES[study.panel.edges],
+                                requirements))
             for p in plots:
                 print(f"  plot          {p}")
         else:
-            print(f"{ev.peak_stress_mpa:.3f} MPa (Kt {ev.kt:.4f}, error estimate {ev.error_estimate_pct:.3f} %)")
+            line = f"{ev.peak_stress_mpa:.3f} MPa (Kt {ev.kt:.4f}, error estimate {ev.error_estimate_pct:.3f} %)"
+            if ev.stability is not None:
+                f = ev.stability.load_factor
+                line += ("; does not buckle" if f is None else
+                         f"; buckling factor {f:.3f} (error estimate {ev.stability.error_estimate_pct:.2g} %)")
+            print(line)
     return 0
 
 

@@ -10,7 +10,7 @@ from __future__ import annotations
 
 import math
 import time
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 import numpy as np
 
@@ -18,7 +18,8 @@ from holeshape.errors import SolveError
 from holeshape.geometry import Cutout
 from holeshape.mesh import MeshSpec, Region, mesh_panel
 from holeshape.solve import BoundaryStress, PanelSolution, peak_along, solve_panel
-from holeshape.study import LoadCase, Material, Measure, Panel
+from holeshape.stability import StabilityFields, StabilityResult, buckling
+from holeshape.study import LoadCase, Material, Measure, Panel, StabilitySettings
 
 
 @dataclass(frozen=True)
@@ -114,6 +115,12 @@ class LoadCaseResult:
     net_section_stress_mpa: float
     net_section_shear_mpa: float
     margin_of_safety: float | None
+    # with [stability]: the load factor that buckles the web (None: does not buckle below the ceiling), its error
+    # estimate, factor / required factor, and the same panel without the cutout
+    buckling_load_factor: float | None = None
+    buckling_error_estimate_pct: float | None = None
+    buckling_reserve: float | None = None
+    buckling_load_factor_unperforated: float | None = None
 
 
 @dataclass(frozen=True)
@@ -140,18 +147,38 @@ class Evaluation:
     ligament: Ligament
     edges: str
     warnings: tuple[str, ...] = ()
+    stability: StabilityResult | None = None
 
     @property
     def within_target(self) -> bool:
         return self.error_estimate_pct <= self.accuracy_target_pct
 
+    @property
+    def lowest_margin(self) -> float | None:
+        """The smallest margin of safety over the load cases (None without an allowable)."""
+        m = [r.margin_of_safety for r in self.load_cases if r.margin_of_safety is not None]
+        return min(m) if m else None
+
     def to_dict(self) -> dict:
         from dataclasses import asdict
 
         d = asdict(self)
+        buckling_keys = ("buckling_load_factor", "buckling_error_estimate_pct", "buckling_reserve",
+                         "buckling_load_factor_unperforated")
         d["load_cases"] = [asdict(c) for c in self.load_cases]
         d["levels"] = [{"dofs": n, "peak_stress_mpa": p} for n, p in self.levels]
         d["within_accuracy_target"] = self.within_target
+        if self.stability is None:  # a study without [stability] keeps its JSON as it was
+            d.pop("stability")
+            for c in d["load_cases"]:
+                for k in buckling_keys:
+                    c.pop(k)
+        else:
+            st = self.stability.to_dict()
+            d["stability"] = st
+            for k in ("buckling_load_factor", "buckling_governing_load_case", "buckling_load_factor_unperforated",
+                      "buckling_error_estimate_pct", "buckling_reserve"):
+                d[k] = st[k]
         return d
 
 
@@ -163,15 +190,17 @@ class EvaluationFields:
     solution: PanelSolution = field(repr=False)
     boundary: BoundaryStress = field(repr=False)  # mirrored to the whole outline, in order
     coarse_boundary: BoundaryStress = field(repr=False)
+    stability: StabilityFields | None = field(default=None, repr=False)
 
 
 def evaluate(panel: Panel, material: Material, load_cases: tuple[LoadCase, ...], cutout: Cutout,
              measure: Measure = Measure(), keep_fields: bool = False, allow_reduction: bool = True,
-             time_limit_s: float | None = None):
+             time_limit_s: float | None = None, stability: StabilitySettings | None = None):
     """Evaluate one design. Returns an :class:`Evaluation`, or ``(Evaluation, EvaluationFields)`` when
     ``keep_fields``. ``allow_reduction=False`` forces the full panel model (used to check the reduced ones).
     ``time_limit_s``: no further mesh level is started once this much time has gone; if the levels needed for
-    an error estimate are not done by then, :class:`SolveError` says so."""
+    an error estimate are not done by then, :class:`SolveError` says so. ``stability``: also the buckling load
+    factor of every load case (whole panel, its own two plate mesh levels at the same accuracy name)."""
     t0 = time.perf_counter()
     level = ACCURACY_LEVELS[measure.accuracy]
     region = choose_region(panel, cutout, load_cases) if allow_reduction else Region(panel.width, panel.height)
@@ -231,6 +260,16 @@ def evaluate(panel: Panel, material: Material, load_cases: tuple[LoadCase, ...],
                         " treat the peak as approximate or use a finer accuracy level")
     if cutout.min_radius < 1e-6 * max(panel.width, panel.height):
         warnings.append("the outline has a point of unbounded curvature (radius -> 0): the peak is mesh-dependent")
+    stab, stab_fields = None, None
+    if stability is not None:
+        left = None if time_limit_s is None else max(1.0, time_limit_s - (time.perf_counter() - t0))
+        out = buckling(panel, material, load_cases, cutout, stability, measure.accuracy, time_limit_s=left,
+                       keep_fields=keep_fields)
+        stab, stab_fields = out if keep_fields else (out, None)
+        results = [replace(r, buckling_load_factor=c.load_factor, buckling_error_estimate_pct=c.error_estimate_pct,
+                           buckling_reserve=c.reserve, buckling_load_factor_unperforated=c.unperforated_factor)
+                   for r, c in zip(results, stab.cases)]
+        warnings += list(stab.warnings)
     ev = Evaluation(
         peak_stress_mpa=g.peak_stress_mpa, kt=g.kt, kt_reference=KT_REFERENCES[measure.stress],
         error_estimate_pct=est, area_mm2=cutout.area, margin_of_safety=g.margin_of_safety,
@@ -238,11 +277,12 @@ def evaluate(panel: Panel, material: Material, load_cases: tuple[LoadCase, ...],
         governing_load_case=g.name, stress_measure=measure.stress, accuracy=level.name,
         accuracy_target_pct=level.target_pct, model=region.name,
         levels=tuple((r[1].dofs, r[2][gov][0]) for r in reversed(runs)), refinements=refinements,
-        min_radius_mm=cutout.min_radius, ligament=lig, edges=panel.edges, warnings=tuple(warnings))
+        min_radius_mm=cutout.min_radius, ligament=lig, edges=panel.edges, warnings=tuple(warnings), stability=stab)
     if keep_fields:
         full = mirror_to_full(sol.cutout, region)
         full_c = mirror_to_full(sol_c.cutout, region)
-        return ev, EvaluationFields(panel_mesh=pm, solution=sol, boundary=full, coarse_boundary=full_c)
+        return ev, EvaluationFields(panel_mesh=pm, solution=sol, boundary=full, coarse_boundary=full_c,
+                                    stability=stab_fields)
     return ev
 
 

@@ -35,11 +35,15 @@ class MeshSpec:
     max_fraction: float = 0.1
     min_segments: int = 48  # on a full cutout outline (fewer on a reduced arc, in proportion)
     curved: bool = True  # False leaves straight-sided elements on the cutout (only for comparisons in benchmarks/)
+    # cutout spacing held to (distance to the nearest panel edge) / ligament_elements; None keeps the plane-stress
+    # levels' rule (LIGAMENT_ELEMENTS scaled by boundary_ratio / 16), which their measured accuracy rests on
+    ligament_elements: float | None = None
 
     def coarsened(self, factor: float = 2.0) -> MeshSpec:
         """The same mesh family with every size multiplied by ``factor`` (the second level of a check)."""
+        lig = None if self.ligament_elements is None else self.ligament_elements / factor
         return MeshSpec(self.boundary_ratio / factor, self.growth * factor, self.max_fraction * factor,
-                        max(8, int(round(self.min_segments / factor))), self.curved)
+                        max(8, int(round(self.min_segments / factor))), self.curved, lig)
 
 
 @dataclass(frozen=True)
@@ -131,7 +135,9 @@ def cutout_nodes(cutout: Cutout, spec: MeshSpec, t_start: float, t_span: float, 
     if panel_size is not None:
         xy = cutout.xy(t)
         gap = np.min([xy[0], xy[1], panel_size[0] - xy[0], panel_size[1] - xy[1]], axis=0)
-        h = np.minimum(h, np.maximum(gap, h_floor) / LIGAMENT_ELEMENTS * spec.boundary_ratio / 16.0)
+        per = LIGAMENT_ELEMENTS * 16.0 / spec.boundary_ratio if spec.ligament_elements is None \
+            else spec.ligament_elements
+        h = np.minimum(h, np.maximum(gap, h_floor) / per)
     h = _graded_spacing(s, h, spec.growth, periodic=full)
     # node count from the integral of ds / h, then equal steps in that integral
     length = s[-1] + (s[1] - s[0] if full else 0.0)

@@ -14,18 +14,19 @@ import multiprocessing
 import time
 from pathlib import Path
 
-from holeshape import CAUTIONS, __version__
+from holeshape import __version__, cautions
 from holeshape.errors import HoleshapeError, StudyError
 from holeshape.evaluate import evaluate
 from holeshape.search.baselines import standard_shapes
-from holeshape.search.constraints import edge_gaps
+from holeshape.search.constraints import edge_gaps, requirement_rows, solved_constraint_values
 from holeshape.search.runner import (
     Objective,
     _add,
-    best_feasible,
     finished,
     is_feasible,
+    objective_value,
     run_worker,
+    shown_value,
     storage_for,
     study_fingerprint,
 )
@@ -34,6 +35,7 @@ from holeshape.study import Measure, load_study
 
 log = logging.getLogger("holeshape.optimise")
 FINAL_ACCURACY = "fine"
+FINAL_TRIES = 3  # best search designs re-checked at the final level when one misses a requirement there
 
 
 class RunLock:
@@ -147,7 +149,8 @@ def run_optimise(study_path: str, out: str, workers: int = 1, storage_url: str |
                     rec = objective(params)
                     rec["user_attrs"]["standard_shape"] = family
                     _add(study, space, rec, trade_off)
-        _run_workers(study_path, storage_url, out_dir, name, workers, trade_off, study_def.search.trials, progress)
+        _run_workers(study_path, storage_url, out_dir, name, workers, trade_off, study_def.search.trials, progress,
+                     study_def.search.goal)
         return _finish(study_def, study, space, baselines, out_dir, storage_name, trade_off, t0)
 
 
@@ -201,25 +204,29 @@ def _progress_bar(total: int, enabled: bool):
                 mininterval=0.5)
 
 
-def _update(bar, study) -> None:
+def _update(bar, study, goal: str = "lowest_peak") -> None:
     done = finished(study)
     feas = [t for t in done if is_feasible(t)]
     best = min((t.values[0] for t in feas), default=None)
     n = min(len(done), bar.total)
     if n == bar.n and n < bar.total:
         return
-    bar.set_postfix_str(f"best {best:.1f} MPa, {len(feas)} feasible" if best is not None else "no feasible yet",
-                        refresh=False)
+    if len(study.directions) > 1:
+        goal = "lowest_peak"  # the trade-off's first objective is the peak
+    bar.set_postfix_str(f"best {shown_value(best, goal)}, {len(feas)} feasible" if best is not None
+                        else "no feasible yet", refresh=False)
     bar.update(n - bar.n)
 
 
-def _run_workers(study_path, storage_url, out_dir, name, workers, trade_off, total, progress) -> None:
+def _run_workers(study_path, storage_url, out_dir, name, workers, trade_off, total, progress,
+                 goal: str = "lowest_peak") -> None:
     import optuna
 
     bar = _progress_bar(total, progress)
     try:
         if workers == 1:
-            run_worker(study_path, storage_url, str(out_dir), name, 0, trade_off, on_trial=lambda s: _update(bar, s))
+            run_worker(study_path, storage_url, str(out_dir), name, 0, trade_off,
+                       on_trial=lambda s: _update(bar, s, goal))
             return
         ctx = multiprocessing.get_context("spawn")
         procs = [ctx.Process(target=run_worker, args=(study_path, storage_url, str(out_dir), name, w, trade_off),
@@ -229,9 +236,9 @@ def _run_workers(study_path, storage_url, out_dir, name, workers, trade_off, tot
         storage, _ = storage_for(out_dir, storage_url)
         study = optuna.load_study(study_name=name, storage=storage)
         while any(p.is_alive() for p in procs):
-            _update(bar, study)
+            _update(bar, study, goal)
             time.sleep(0.5)
-        _update(bar, study)
+        _update(bar, study, goal)
         bad = [p.exitcode for p in procs if p.exitcode != 0]
         if bad:
             raise HoleshapeError(f"{len(bad)} of {workers} worker processes stopped with an error (exit codes {bad});"
@@ -252,35 +259,57 @@ def _finish(study_def, study, space, baselines, out_dir: Path, storage_name: str
     failed = [t for t in trials if t.state == TrialState.FAIL and t.number in counted]
     interrupted = [t for t in trials if t.state == TrialState.FAIL and t.number not in counted]
     infeasible = [t for t in complete if not is_feasible(t)]
-    best_t = best_feasible(study)
 
-    # the standard shapes, checked at the same (fine) level as the winner
+    goal, stab, cons = study_def.search.goal, study_def.stability, study_def.constraints
+
+    def final(cut, keep: bool = False):
+        return evaluate(study_def.panel, study_def.material, study_def.load_cases, cut, measure, keep_fields=keep,
+                        stability=stab)
+
+    # the standard shapes, checked at the same (fine) level as the winner, against every requirement
     base_rows, base_evals = [], []
     for family, cut, note in baselines:
         if cut is None:
             base_rows.append({"shape": family, "feasible": False, "reason": note})
             continue
-        ev = _standard_shape_evaluation(study_def.panel, study_def.material, study_def.load_cases, cut, measure)
-        base_rows.append({"shape": family, "peak_stress_mpa": ev.peak_stress_mpa, "area_mm2": ev.area_mm2,
-                          "kt": ev.kt, "error_estimate_pct": ev.error_estimate_pct, "feasible": True,
-                          "params": cut.parameters()})
-        base_evals.append((family, cut, ev))
-    if best_t is None and not base_evals:
+        ev = _standard_shape_evaluation(study_def.panel, study_def.material, study_def.load_cases, cut, measure, stab)
+        reasons = solved_constraint_values(ev, cons)[1]
+        row = {"shape": family, "peak_stress_mpa": ev.peak_stress_mpa, "area_mm2": ev.area_mm2, "kt": ev.kt,
+               "error_estimate_pct": ev.error_estimate_pct, "feasible": not reasons, "params": cut.parameters()}
+        if ev.stability is not None:
+            row["buckling_load_factor"] = ev.stability.load_factor
+        if reasons:
+            row["reason"] = "; ".join(reasons)
+        base_rows.append(row)
+        if not reasons:
+            base_evals.append((family, cut, ev))
+    # the best trials (draft level) re-checked at the final level; the first that still meets every requirement
+    ranked = sorted((t for t in finished(study) if is_feasible(t)), key=lambda t: t.values[0])
+    candidates, final_warnings, fallback = [], [], None
+    for t in ranked[:FINAL_TRIES]:
+        cut, _ = space.decode(t.params)
+        ev, fields = final(cut, keep=True)
+        reasons = solved_constraint_values(ev, cons)[1]
+        if not reasons:
+            candidates.append((objective_value(ev, goal), study_def.cutout.shape, cut, ev, fields, t.number))
+            break
+        fallback = fallback or (objective_value(ev, goal), study_def.cutout.shape, cut, ev, fields, t.number,
+                                reasons)
+    if not candidates and fallback is not None and not base_evals:
+        candidates.append(fallback[:6])
+        final_warnings.append(f"the best design found misses a requirement at the {FINAL_ACCURACY} level: "
+                              + "; ".join(fallback[6]) + " (it met it at the search's draft level)")
+    if not candidates and not base_evals:
         raise HoleshapeError(f"no feasible design among {len(trials)} trials and no standard shape meets the "
                              "constraints; widen the ranges or relax the constraints (see summary of trials)")
-    candidates = []
-    if best_t is not None:
-        cut, _ = space.decode(best_t.params)
-        ev, fields = evaluate(study_def.panel, study_def.material, study_def.load_cases, cut, measure,
-                              keep_fields=True)
-        candidates.append((ev.peak_stress_mpa, study_def.cutout.shape, cut, ev, fields, best_t.number))
     for family, cut, ev in base_evals:
-        if not candidates or ev.peak_stress_mpa < candidates[0][0]:
-            ev2, fields2 = evaluate(study_def.panel, study_def.material, study_def.load_cases, cut, measure,
-                                    keep_fields=True)
-            candidates.append((ev2.peak_stress_mpa, family, cut, ev2, fields2, None))
-    own = candidates[0] if best_t is not None else None  # the study family's own best, whatever wins overall
+        if not candidates or objective_value(ev, goal) < candidates[0][0]:
+            ev2, fields2 = final(cut, keep=True)
+            candidates.append((objective_value(ev2, goal), family, cut, ev2, fields2, None))
+    own = candidates[0] if candidates and candidates[0][5] is not None else None  # the study family's own best
     peak, family, cut, ev, fields, number = min(candidates, key=lambda c: c[0])
+    if ev.warnings:
+        final_warnings = list(ev.warnings) + final_warnings
 
     dxf = out_dir / "best.dxf"
     dxf_info = files.write_dxf(dxf, cut, (study_def.panel.width, study_def.panel.height), study_def.title)
@@ -295,7 +324,8 @@ def _finish(study_def, study, space, baselines, out_dir: Path, storage_name: str
                        "error_estimate_pct": e.error_estimate_pct, "params": _jsonable(own[2].parameters()),
                        "governing_load_case": e.governing_load_case, "dxf": str(out_dir / "family_best.dxf")}
     plot_paths = [
-        search_plots.plot_history(out_dir / "search_history.png", trials, study_def.title),
+        search_plots.plot_history(out_dir / "search_history.png", trials, study_def.title,
+                                  "lowest_peak" if trade_off else goal),
         search_plots.plot_shapes(out_dir / "best_shape.png", cut, [(f, c) for f, c, _ in base_evals],
                                  study_def.panel, study_def.constraints, study_def.title, ev.peak_stress_mpa,
                                  {f: e.peak_stress_mpa for f, _, e in base_evals}),
@@ -305,6 +335,10 @@ def _finish(study_def, study, space, baselines, out_dir: Path, storage_name: str
                                               (study_def.panel.width, study_def.panel.height), study_def.title))
     plot_paths.append(plots.plot_boundary_stress(out_dir / "best_boundary_stress.png", ev, fields,
                                                  study_def.material.allowable_stress, study_def.title))
+    if ev.stability is not None:
+        plot_paths.append(plots.plot_buckling_mode(out_dir / "best_buckling_mode.png", ev.stability,
+                                                   fields.stability, cut.polygon(720).T, study_def.panel,
+                                                   study_def.title))
     files.write_vtk(out_dir / "best_stress_field.vtu", fields, [r.name for r in ev.load_cases])
     levels = _levels(study_def, cut, ev)
     gaps = edge_gaps(cut, study_def.panel)
@@ -317,17 +351,18 @@ def _finish(study_def, study, space, baselines, out_dir: Path, storage_name: str
             "params": _jsonable(cut.parameters()), "shape": family, "dxf": str(dxf), "feasible": True,
             "trial": number, "margin_of_safety": ev.margin_of_safety, "accuracy": FINAL_ACCURACY,
             "min_radius_mm": cut.min_radius, "min_radius_at_mm": _min_radius_at(cut), "bounds_mm": list(cut.bounds),
-            "load_cases": [
-                {"name": r.name, "peak_stress_mpa": r.peak_stress_mpa, "kt": r.kt, "x_mm": r.x_mm, "y_mm": r.y_mm,
-                 "margin_of_safety": r.margin_of_safety, "error_estimate_pct": r.error_estimate_pct}
-                for r in ev.load_cases],
+            "load_cases": [_case_row(r, ev.stability is not None) for r in ev.load_cases],
             "dxf_vertices": dxf_info["vertices"], "dxf_chord_error_mm": dxf_info["chord_error_mm"],
-            "warnings": list(ev.warnings), "levels": levels,
+            "warnings": final_warnings, "levels": levels,
             "ligaments_mm": {k: round(v, 3) for k, v in gaps.items()},
             "mass_saved_kg": (study_def.material.density * ev.area_mm2 * study_def.panel.thickness * 1e-9
                               if study_def.material.density else None),
             "vtk": str(out_dir / "best_stress_field.vtu"),
+            "requirements": requirement_rows(ev, cut, study_def.panel, cons, study_def.material),
+            **_stability_keys(ev),
         },
+        "goal": goal,
+        "trials_refused_after_solve": _refused_after_solve(complete),
         "family_best": family_best,
         "baselines": base_rows,
         "improvement_over_baselines_pct": improvement,
@@ -336,8 +371,9 @@ def _finish(study_def, study, space, baselines, out_dir: Path, storage_name: str
         "failures": sorted({str(t.user_attrs.get("failure")) for t in failed})[:10],
         "storage": storage_name, "study": study_def.title, "search_accuracy": "draft",
         "elapsed_s": time.perf_counter() - t0, "plots": [str(p) for p in plot_paths],
-        "holeshape_version": __version__, "cautions": CAUTIONS,
+        "holeshape_version": __version__, "cautions": cautions(ev.stability is not None),
     }
+    summary["best"]["meets_every_requirement"] = all(r["met"] for r in summary["best"]["requirements"])
     if trade_off:
         summary["front"] = _front(study, space, study_def, out_dir)
         plot_paths.append(search_plots.plot_front(out_dir / "trade_off_front.png", trials, summary["front"],
@@ -356,9 +392,42 @@ def _finish(study_def, study, space, baselines, out_dir: Path, storage_name: str
 
 
 @functools.lru_cache(maxsize=64)
-def _standard_shape_evaluation(panel, material, load_cases, cutout, measure):
+def _standard_shape_evaluation(panel, material, load_cases, cutout, measure, stability=None):
     """The standard shapes are the same for every family that ``compare`` searches: evaluate each once."""
-    return evaluate(panel, material, load_cases, cutout, measure)
+    return evaluate(panel, material, load_cases, cutout, measure, stability=stability)
+
+
+def _case_row(r, with_stability: bool) -> dict:
+    row = {"name": r.name, "peak_stress_mpa": r.peak_stress_mpa, "kt": r.kt, "x_mm": r.x_mm, "y_mm": r.y_mm,
+           "margin_of_safety": r.margin_of_safety, "error_estimate_pct": r.error_estimate_pct}
+    if with_stability:
+        row.update(buckling_load_factor=r.buckling_load_factor,
+                   buckling_error_estimate_pct=r.buckling_error_estimate_pct, buckling_reserve=r.buckling_reserve,
+                   buckling_load_factor_unperforated=r.buckling_load_factor_unperforated)
+    return row
+
+
+def _stability_keys(ev) -> dict:
+    """The stability figures of the recommended design (none without [stability])."""
+    if ev.stability is None:
+        return {}
+    st = ev.stability.to_dict()
+    keys = ("buckling_load_factor", "buckling_governing_load_case", "buckling_load_factor_unperforated",
+            "buckling_error_estimate_pct", "buckling_reserve")
+    return {k: st[k] for k in keys} | {"stability": st}
+
+
+def _refused_after_solve(complete) -> dict:
+    """How many solved designs that met every geometric constraint were refused for each solved requirement: the
+    evidence that (for instance) the buckling check changed the answer."""
+    out = {"buckling": 0, "margin": 0}
+    for t in complete:
+        c = t.constraints or {}
+        geometric_ok = all(v <= 0 for k, v in c.items() if k not in out)
+        for k in out:
+            if geometric_ok and c.get(k, -1.0) > 0:
+                out[k] += 1
+    return out
 
 
 def _min_radius_at(cut) -> list[float]:

@@ -17,6 +17,8 @@ from holeshape.errors import GeometryError, StudyError
 EDGES = ("traction", "displacement")
 MEASURES = ("von_mises", "max_principal", "hoop")
 ACCURACIES = ("draft", "standard", "fine")
+EDGE_SUPPORTS = ("simply_supported", "clamped")
+GOALS = ("lowest_peak", "largest_opening")
 SHAPE_PARAMETERS: dict[str, tuple[str, ...]] = {
     "circle": ("radius",),
     "ellipse": ("a", "b"),
@@ -165,16 +167,36 @@ class Constraints:
     clearance: float = 0.0
     min_ligament: float | None = None
     min_radius: float | None = None
+    min_buckling_factor: float | None = None  # checked after the solve (needs [stability])
+    min_margin: float | None = None  # margin of safety against material.allowable_stress, checked after the solve
+
+    @property
+    def after_solve(self) -> bool:
+        """Whether some requirement can only be checked on a solved design."""
+        return self.min_buckling_factor is not None or self.min_margin is not None
 
 
 @dataclass(frozen=True)
 class SearchSettings:
     """``trials``: evaluations in all (the standard shapes first); ``seed``: sampler seed;
-    ``global_fraction``: share of the trials for the global sampler before the local refinement."""
+    ``global_fraction``: share of the trials for the global sampler before the local refinement;
+    ``goal``: "lowest_peak" (lowest peak stress) or "largest_opening" (largest removed area within every
+    constraint: the weight-reduction study)."""
 
     trials: int = 60
     seed: int = 0
     global_fraction: float = 0.25
+    goal: str = "lowest_peak"
+
+
+@dataclass(frozen=True)
+class StabilitySettings:
+    """The ``[stability]`` table: out-of-plane support of the panel edges (the cutout edge is free), the reserve
+    demanded on the buckling load factor (shown on every output), and how many mode shapes to plot."""
+
+    edge_support: str = "simply_supported"
+    required_factor: float = 1.0
+    modes: int = 1
 
 
 @dataclass(frozen=True)
@@ -188,6 +210,7 @@ class Study:
     constraints: Constraints = Constraints()
     search: SearchSettings = SearchSettings()
     source: str = ""
+    stability: StabilitySettings | None = None
 
 
 # ---------------------------------------------------------------------------------------------------------------
@@ -261,7 +284,7 @@ def _table(doc: dict, key: str, required: bool = True) -> dict:
     return v
 
 
-TOP_KEYS = ("title", "panel", "material", "load_case", "cutout", "measure", "constraints", "search")
+TOP_KEYS = ("title", "panel", "material", "load_case", "cutout", "measure", "constraints", "search", "stability")
 
 
 def parse_study(doc: dict, source: str = "") -> Study:
@@ -329,13 +352,42 @@ def parse_study(doc: dict, source: str = "") -> Study:
     )
     constraints = _parse_constraints(_table(doc, "constraints", required=False), panel)
     search = _parse_search(_table(doc, "search", required=False))
+    stability = _parse_stability(_table(doc, "stability", required=False)) if "stability" in doc else None
+    if constraints.min_buckling_factor is not None and stability is None:
+        raise StudyError(f"constraints.min_buckling_factor = {constraints.min_buckling_factor!r} needs a [stability]"
+                         ' table (at least edge_support = "simply_supported" or "clamped") to say how the panel'
+                         " edges are supported out of plane")
+    if constraints.min_margin is not None and material.allowable_stress is None:
+        raise StudyError(f"constraints.min_margin = {constraints.min_margin!r} needs material.allowable_stress (MPa)"
+                         " to measure the margin of safety against")
+    if search.goal == "largest_opening":
+        if constraints.area is not None:
+            raise StudyError(f'search.goal = "largest_opening" cannot be combined with constraints.area ='
+                             f" {constraints.area!r} (a fixed area leaves nothing to enlarge); use min_area / max_area")
+        if constraints.min_margin is None and constraints.min_buckling_factor is None:
+            raise StudyError('search.goal = "largest_opening" needs a structural limit that bounds the opening:'
+                             " give constraints.min_margin (against material.allowable_stress) and/or"
+                             " constraints.min_buckling_factor (with [stability])")
     return Study(title=title, panel=panel, material=material, load_cases=tuple(load_cases), cutout=cutout,
-                 measure=measure, constraints=constraints, search=search, source=source)
+                 measure=measure, constraints=constraints, search=search, source=source, stability=stability)
+
+
+def _parse_stability(c: dict) -> StabilitySettings:
+    w = "stability."
+    _unknown(c, ("edge_support", "required_factor", "modes"), w)
+    modes = c.get("modes", 1)
+    if isinstance(modes, bool) or not isinstance(modes, int) or not 1 <= modes <= 6:
+        raise StudyError(f"stability.modes must be an integer from 1 to 6 (mode shapes to plot), got {modes!r}")
+    return StabilitySettings(
+        edge_support=_string(c, "edge_support", w, EDGE_SUPPORTS, default="simply_supported"),
+        required_factor=_number(c, "required_factor", w, default=1.0, positive=True),
+        modes=modes)
 
 
 def _parse_constraints(c: dict, panel: Panel) -> Constraints:
     w = "constraints."
-    _unknown(c, ("min_area", "max_area", "area", "access", "clearance", "min_ligament", "min_radius"), w)
+    _unknown(c, ("min_area", "max_area", "area", "access", "clearance", "min_ligament", "min_radius",
+                 "min_buckling_factor", "min_margin"), w)
     access = None
     if "access" in c:
         a = c["access"]
@@ -366,7 +418,12 @@ def _parse_constraints(c: dict, panel: Panel) -> Constraints:
         clearance=_number(c, "clearance", w, default=0.0),
         min_ligament=_number(c, "min_ligament", w, default=None, positive=True),
         min_radius=_number(c, "min_radius", w, default=None, positive=True),
+        min_buckling_factor=_number(c, "min_buckling_factor", w, default=None, positive=True),
+        min_margin=_number(c, "min_margin", w, default=None),
     )
+    if cons.min_margin is not None and not -1.0 < cons.min_margin <= 10.0:
+        raise StudyError(f"constraints.min_margin must lie in (-1, 10] (a margin of safety, e.g. 0.0 or 0.15), got"
+                         f" {cons.min_margin!r}")
     if cons.clearance < 0:
         raise StudyError(f"constraints.clearance must be >= 0 mm, got {cons.clearance!r}")
     if cons.area is not None and (cons.min_area is not None or cons.max_area is not None):
@@ -400,7 +457,7 @@ def _parse_constraints(c: dict, panel: Panel) -> Constraints:
 
 
 def _parse_search(c: dict) -> SearchSettings:
-    _unknown(c, ("trials", "seed", "global_fraction"), "search.")
+    _unknown(c, ("trials", "seed", "global_fraction", "goal"), "search.")
     trials, seed = c.get("trials", 60), c.get("seed", 0)
     for name, v in (("trials", trials), ("seed", seed)):
         if isinstance(v, bool) or not isinstance(v, int):
@@ -412,7 +469,8 @@ def _parse_search(c: dict) -> SearchSettings:
     frac = _number(c, "global_fraction", "search.", default=0.25)
     if not 0.0 < frac <= 1.0:
         raise StudyError(f"search.global_fraction must be in (0, 1], got {frac!r}")
-    return SearchSettings(trials=trials, seed=seed, global_fraction=frac)
+    goal = _string(c, "goal", "search.", GOALS, default="lowest_peak")
+    return SearchSettings(trials=trials, seed=seed, global_fraction=frac, goal=goal)
 
 
 def _parse_cutout(c: dict, panel: Panel) -> CutoutSpec:

@@ -9,7 +9,7 @@ import pytest
 from holeshape.cli import main
 
 ROOT = Path(__file__).resolve().parents[1]
-STUDY = ROOT / "studies" / "rib-web-check.toml"  # the issue-2 study file, numbers only
+STUDY = ROOT / "tests" / "data" / "check-fixture.toml"  # numbers only, plane stress
 
 
 def test_json_contract(capsys):

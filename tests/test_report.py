@@ -111,7 +111,7 @@ def test_compare_ranks_every_family(tmp_path, capsys):
 def test_sweep_one_and_two_parameters(tmp_path, capsys):
     from holeshape.output.report import SWEEP_SECTIONS
 
-    study = Path(__file__).resolve().parents[1] / "studies" / "rib-web-access.toml"
+    study = Path(__file__).resolve().parents[1] / "tests" / "data" / "check-fixture.toml"
     assert main(["sweep", str(study), "--vary", "b=30:50:3", "--out", str(tmp_path / "s1"), "--json"]) == 0
     d = json.loads(capsys.readouterr().out)
     solved = [p for p in d["points"] if p.get("solved")]

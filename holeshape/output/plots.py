@@ -11,8 +11,8 @@ import numpy as np
 
 from holeshape.evaluate import STRESS_LABELS, Evaluation, EvaluationFields, measure_values
 
-PLOT_CAUTION = ("holeshape: linear-elastic plane stress; no buckling, fatigue or fracture assessment; "
-                "review by a qualified engineer; applicable codes govern")
+PLOT_CAUTION = ("holeshape: linear-elastic plane stress, linear buckling only where stated; no fatigue or fracture "
+                "assessment; review by a qualified engineer; applicable codes govern")
 
 
 def _mpl():
@@ -160,4 +160,45 @@ def plot_mesh(path: Path, fields: EvaluationFields, cutout_bounds: tuple[float, 
     ax.set_title(f"{title}\nmesh near the cutout ({fields.panel_mesh.region.name} model, "
                  f"{fields.panel_mesh.n_elements} elements)")
     fig.tight_layout(rect=(0, 0.02, 1, 1))
+    return save(fig, path)
+
+
+def plot_buckling_mode(path: Path, stability, fields, cutout_xy: np.ndarray, panel, title: str) -> Path:
+    """Out-of-plane deflection contours of the lowest buckling mode(s) of the governing load case (largest
+    deflection scaled to 1), cutout drawn, panel edges labelled with their support."""
+    plt = _mpl()
+    gov = stability.governing
+    names = [c.name for c in stability.cases]
+    j = names.index(gov.name) if gov is not None else 0
+    modes = fields.modes[j] if fields is not None else []
+    n = max(1, len(modes))
+    aspect = panel.height / panel.width
+    fig, axes = plt.subplots(1, n, figsize=(min(16, 6.5 * n), 6.5 * aspect + 1.6), squeeze=False)
+    for k, ax in enumerate(axes[0]):
+        ax.plot([0, panel.width, panel.width, 0, 0], [0, 0, panel.height, panel.height, 0], color="black", lw=1.2)
+        ax.fill(*cutout_xy, color="white", zorder=3)
+        ax.plot(*np.concatenate([cutout_xy, cutout_xy[:, :1]], axis=1), color="black", lw=1.2, zorder=4)
+        if modes:
+            factor, w = modes[k]
+            levels = np.linspace(-1.0, 1.0, 21)
+            cs = ax.tricontourf(fields.p[0], fields.p[1], fields.t.T, w, levels=levels, cmap="RdBu_r")
+            ax.tricontour(fields.p[0], fields.p[1], fields.t.T, w, levels=levels[::2], colors="k", linewidths=0.3)
+            ax.set_title(f"mode {k + 1}: load factor {factor:.3f} on the finest plate mesh", fontsize=10)
+            if k == n - 1:
+                fig.colorbar(cs, ax=ax, shrink=0.8, label="out-of-plane deflection (largest = 1)")
+        else:
+            ax.text(0.5 * panel.width, 0.5 * panel.height, "no buckling below the factor ceiling",
+                    ha="center", va="center")
+        ax.set_aspect("equal")
+        ax.set_xlim(-0.02 * panel.width, 1.02 * panel.width)
+        ax.set_ylim(-0.02 * panel.height, 1.02 * panel.height)
+        ax.set_xlabel("x (mm)")
+        ax.set_ylabel("y (mm)")
+    support = stability.edge_support.replace("_", " ")
+    case = gov.name if gov is not None else names[0]
+    fig.suptitle(f"{title}\nbuckling mode, {case} ({support} edges, in-plane '{stability.in_plane_edges}' edges,"
+                 f" cutout edge free)", fontsize=10)
+    if stability.warnings:
+        fig.text(0.01, 0.985, "WARNING: " + stability.warnings[0], fontsize=7.5, color="red", ha="left", va="top")
+    fig.tight_layout(rect=(0, 0.03, 1, 0.95))
     return save(fig, path)

@@ -10,12 +10,15 @@ import numpy as np
 from holeshape.output.plots import _mpl, save
 
 
-def plot_history(path: Path, trials, title: str) -> Path:
+def plot_history(path: Path, trials, title: str, goal: str = "lowest_peak") -> Path:
+    """Objective of every feasible design against the trial number with the best so far; for
+    ``goal = "largest_opening"`` the removed area (the best so far is the largest)."""
     from optuna.trial import TrialState
 
     plt = _mpl()
     fig, ax = plt.subplots(figsize=(8, 4.6))
-    feas = [(t.number, t.values[0]) for t in trials if t.state == TrialState.COMPLETE
+    sign = 1.0 if goal == "lowest_peak" else -1.0  # the study stores minus the area for the largest opening
+    feas = [(t.number, sign * t.values[0]) for t in trials if t.state == TrialState.COMPLETE
             and t.user_attrs.get("feasible") and all(v <= 0 for v in t.constraints.values())]
     infeas = [t.number for t in trials if t.state == TrialState.COMPLETE and not t.user_attrs.get("feasible", True)]
     failed = [t.number for t in trials if t.state == TrialState.FAIL]
@@ -23,20 +26,23 @@ def plot_history(path: Path, trials, title: str) -> Path:
         n, v = np.array(feas).T
         ax.plot(n, v, "o", ms=3.5, color="0.55", label="feasible design (draft level)")
         order = np.argsort(n)
-        ax.step(n[order], np.minimum.accumulate(v[order]), where="post", color="black", lw=1.8,
-                label="best so far")
-        ax.set_ylim(0.95 * v.min(), min(v.max(), 3 * v.min()) * 1.05)
+        best = np.minimum.accumulate(v[order]) if sign > 0 else np.maximum.accumulate(v[order])
+        ax.step(n[order], best, where="post", color="black", lw=1.8, label="best so far")
+        if sign > 0:
+            ax.set_ylim(0.95 * v.min(), min(v.max(), 3 * v.min()) * 1.05)
+        else:
+            ax.set_ylim(max(0.0, v.min() * 0.9), v.max() * 1.08)
         ymark = ax.get_ylim()[1]
     else:
         ymark = 1.0
     if infeas:
         ax.plot(infeas, np.full(len(infeas), ymark), "x", ms=4, color="C3", clip_on=False,
-                label=f"infeasible, not solved ({len(infeas)})")
+                label=f"infeasible ({len(infeas)})")
     if failed:
         ax.plot(failed, np.full(len(failed), ymark), "s", ms=4, mfc="none", color="C1", clip_on=False,
                 label=f"failed ({len(failed)})")
     ax.set_xlabel("trial")
-    ax.set_ylabel("peak stress over all load cases (MPa)")
+    ax.set_ylabel("peak stress over all load cases (MPa)" if sign > 0 else "removed area (mm^2)")
     ax.grid(True, alpha=0.3)
     ax.legend(fontsize=8, loc="upper right")
     ax.set_title(f"{title}: search history")

@@ -2,15 +2,63 @@
 
 from __future__ import annotations
 
-from holeshape import CAUTIONS
+from holeshape import cautions
 from holeshape.evaluate import STRESS_LABELS, Evaluation
+
+SUPPORT_NOTES = {"simply_supported": "simply supported (deflection held, free to rotate)",
+                 "clamped": "clamped (deflection and slope held)"}
+
+
+def _factor(f: float | None) -> str:
+    return "does not buckle" if f is None else f"{f:.3f}"
+
+
+def stability_lines(st) -> list[str]:
+    """The stability block of a text summary."""
+    g = st.governing
+    lines = [
+        "",
+        f"  stability     linear buckling, panel edges {SUPPORT_NOTES[st.edge_support]}, cutout edge free;"
+        f" in-plane edges '{st.in_plane_edges}'",
+        f"                {st.accuracy}: estimated error {st.error_estimate_pct:.2g} % (target"
+        f" {st.accuracy_target_pct:g} %), plate DOFs per level {', '.join(str(n) for n in st.level_dofs)}",
+        f"  {'load case':<34} {'buckling factor':>16} {'reserve':>9} {'error est.':>11} {'no cutout':>10}",
+    ]
+    for c in st.cases:
+        res = "-" if c.reserve is None else f"{c.reserve:.3f}"
+        err = "-" if c.error_estimate_pct is None else f"{c.error_estimate_pct:.2g} %"
+        flag = "  << BELOW REQUIRED" if c.reserve is not None and c.reserve < 1.0 else ""
+        lines.append(f"  {c.name[:34]:<34} {_factor(c.load_factor):>16} {res:>9} {err:>11}"
+                     f" {_factor(c.unperforated_factor):>10}{flag}")
+    if g is None:
+        lines.append("  buckling      no load case buckles the web below the factor ceiling (no compression)")
+    else:
+        lines.append(f"  buckling      lowest load factor {g.load_factor:.3f} ({g.name}); required"
+                     f" {st.required_factor:g}, reserve {st.reserve:.3f}; without the cutout"
+                     f" {_factor(st.unperforated_factor)}")
+    return lines
+
+
+def requirement_lines(rows: list[dict]) -> list[str]:
+    if not rows:
+        return []
+    failed = [r for r in rows if not r["met"]]
+    head = "MEETS every requirement of the study" if not failed else \
+        f"FAILS {len(failed)} of {len(rows)} requirements"
+    lines = ["", f"  verdict       {head}"]
+    for r in rows:
+        v = r["value"]
+        shown = "does not buckle" if v is None else (f"{v:+.3f}" if "margin" in r["requirement"] else f"{v:.4g}")
+        lines.append(f"    {'ok  ' if r['met'] else 'FAIL'} {r['requirement']:<52} {shown:>14}  required {r['limit']}")
+    return lines
 
 
 def _fmt_mos(m: float | None) -> str:
     return "n/a (no allowable given)" if m is None else f"{m:+.3f}{'  << NEGATIVE' if m < 0 else ''}"
 
 
-def check_summary(title: str, family: str, params: dict, ev: Evaluation, edges_note: str) -> str:
+def check_summary(title: str, family: str, params: dict, ev: Evaluation, edges_note: str,
+                  requirements: list[dict] | None = None) -> str:
     label = STRESS_LABELS[ev.stress_measure]
     lines = [
         f"holeshape check: {title}",
@@ -36,9 +84,12 @@ def check_summary(title: str, family: str, params: dict, ev: Evaluation, edges_n
         f"  ligament      narrowest {lig.width_mm:.1f} mm, to the {lig.edge} edge (net-section stress per load case"
         " above: mean normal stress across it)",
     ]
+    if ev.stability is not None:
+        lines += stability_lines(ev.stability)
+    lines += requirement_lines(requirements or [])
     for w in ev.warnings:
         lines.append(f"  WARNING       {w}")
-    lines += ["", "  CAUTION: " + CAUTIONS]
+    lines += ["", "  CAUTION: " + cautions(ev.stability is not None)]
     return "\n".join(lines)
 
 
@@ -70,11 +121,29 @@ def optimise_summary(s: dict) -> str:
             lines.append(f"    {row['shape']:<18} cannot meet the constraints: {row['reason']}")
     if s.get("front"):
         lines.append(f"  trade-off     {len(s['front'])} designs on the front (draft level), one DXF each")
+    st = b.get("stability")
+    if st is not None:
+        lines.append(f"  stability     lowest buckling factor {_factor(st['buckling_load_factor'])}"
+                     f" ({st['buckling_governing_load_case'] or 'no case buckles'}), required"
+                     f" {st['required_factor']:g}; without the cutout"
+                     f" {_factor(st['buckling_load_factor_unperforated'])};"
+                     f" estimated error {st['buckling_error_estimate_pct']:.2g} %")
+        for c in st["cases"]:
+            lines.append(f"    {c['name']}: factor {_factor(c['load_factor'])}, without the cutout"
+                         f" {_factor(c['unperforated_factor'])}")
+    refused = s.get("trials_refused_after_solve", {})
+    if refused.get("buckling"):
+        lines.append(f"  refused       {refused['buckling']} solved designs that met every geometric constraint"
+                     " buckled below the required factor")
+    if refused.get("margin"):
+        lines.append(f"  refused       {refused['margin']} solved designs that met every geometric constraint"
+                     " missed the margin")
+    lines += requirement_lines(b.get("requirements", []))
     for w in b["warnings"]:
         lines.append(f"  WARNING       {w}")
     lines.append(f"  profile       {b['dxf']} ({b['dxf_vertices']} vertices,"
                  f" chord error {b['dxf_chord_error_mm']:.4f} mm)")
-    lines += ["", "  CAUTION: " + CAUTIONS]
+    lines += ["", "  CAUTION: " + s.get("cautions", cautions(False))]
     return "\n".join(lines)
 
 

@@ -77,3 +77,69 @@ def constraint_values(cutout: Cutout, panel: Panel, cons: Constraints) -> tuple[
         if m < 0:
             reasons.append(f"the access envelope (with {cons.clearance:g} mm clearance) pokes out by {-m:.3g} mm")
     return values, reasons
+
+
+def solved_constraint_values(ev, cons: Constraints) -> tuple[dict[str, float], list[str]]:
+    """Scaled values (<= 0 feasible) and reasons for the requirements that need a solved design: the margin of
+    safety against the allowable (``min_margin``) and the buckling load factor (``min_buckling_factor``).
+    ``ev`` is an :class:`~holeshape.evaluate.Evaluation` (with its stability result for the buckling factor)."""
+    values: dict[str, float] = {}
+    reasons: list[str] = []
+    if cons.min_margin is not None:
+        worst = min((r for r in ev.load_cases if r.margin_of_safety is not None),
+                    key=lambda r: r.margin_of_safety, default=None)
+        if worst is not None:
+            values["margin"] = cons.min_margin - worst.margin_of_safety
+            if worst.margin_of_safety < cons.min_margin:
+                reasons.append(f"margin of safety {worst.margin_of_safety:+.3f} < {cons.min_margin:+g}"
+                               f" ({worst.name})")
+    if cons.min_buckling_factor is not None:
+        st = ev.stability
+        if st is None:
+            raise ValueError("min_buckling_factor needs an evaluation with its stability result")
+        f = st.load_factor
+        values["buckling"] = -1.0 if f is None else (cons.min_buckling_factor - f) / cons.min_buckling_factor
+        if f is not None and f < cons.min_buckling_factor:
+            reasons.append(f"buckling load factor {f:.3g} < {cons.min_buckling_factor:g} ({st.governing.name})")
+    return values, reasons
+
+
+def requirement_rows(ev, cutout: Cutout, panel: Panel, cons: Constraints, material) -> list[dict]:
+    """Every requirement the study sets, checked on one evaluated design: one row each with what was required,
+    what the design achieves and whether it is met (the verdict tables of the outputs)."""
+    rows = []
+
+    def add(name, value, limit, met):
+        rows.append({"requirement": name, "value": value, "limit": limit, "met": bool(met)})
+
+    gap = min(edge_gaps(cutout, panel).values())
+    if cons.min_ligament is not None:
+        add("ligament to the panel edges (mm)", gap, f">= {cons.min_ligament:g}", gap >= cons.min_ligament)
+    if cons.min_radius is not None:
+        add("smallest radius of the outline (mm)", cutout.min_radius, f">= {cons.min_radius:g}",
+            cutout.min_radius >= cons.min_radius)
+    if cons.access is not None:
+        m = access_margin(cutout, cons)
+        add("clearance round the access envelope (mm)", m + cons.clearance, f">= {cons.clearance:g}", m >= 0)
+    if cons.area is not None:
+        add("removed area (mm^2)", cutout.area, f"= {cons.area:g}", abs(cutout.area / cons.area - 1) < 1e-6)
+    if cons.min_area is not None:
+        add("removed area (mm^2)", cutout.area, f">= {cons.min_area:g}", cutout.area >= cons.min_area)
+    if cons.max_area is not None:
+        add("removed area (mm^2)", cutout.area, f"<= {cons.max_area:g}", cutout.area <= cons.max_area)
+    if material.allowable_stress is not None:
+        limit = cons.min_margin if cons.min_margin is not None else 0.0
+        for r in ev.load_cases:
+            add(f"margin of safety, {r.name}", r.margin_of_safety, f">= {limit:+g}", r.margin_of_safety >= limit)
+    st = ev.stability
+    if st is not None:
+        need = max(st.required_factor, cons.min_buckling_factor or 0.0)
+        for c in st.cases:
+            add(f"buckling load factor, {c.name}", c.load_factor, f">= {need:g}",
+                c.load_factor is None or c.load_factor >= need)
+    add("mesh error estimate of the peak (%)", ev.error_estimate_pct, f"<= {ev.accuracy_target_pct:g}",
+        ev.within_target)
+    if st is not None:
+        add("mesh error estimate of the buckling factor (%)", st.error_estimate_pct,
+            f"<= {st.accuracy_target_pct:g}", st.error_estimate_pct <= st.accuracy_target_pct)
+    return rows

@@ -18,7 +18,7 @@ from pathlib import Path
 import numpy as np
 
 from holeshape.errors import GeometryError, HoleshapeError, StudyError
-from holeshape.search.constraints import constraint_values
+from holeshape.search.constraints import constraint_values, solved_constraint_values
 from holeshape.search.space import DesignSpace
 from holeshape.study import Measure, Study, load_study
 
@@ -95,21 +95,48 @@ class Objective:
             rec["state"] = "infeasible"
             rec["user_attrs"].update(feasible=False, reason="; ".join(reasons))
             return rec
+        study = self.study
         try:
-            ev = evaluate(self.study.panel, self.study.material, self.study.load_cases, cutout,
-                          Measure(self.study.measure.stress, SEARCH_ACCURACY), time_limit_s=TRIAL_TIME_LIMIT_S)
+            ev = evaluate(study.panel, study.material, study.load_cases, cutout,
+                          Measure(study.measure.stress, SEARCH_ACCURACY), time_limit_s=TRIAL_TIME_LIMIT_S,
+                          stability=search_stability(study))
         except Exception as err:  # noqa: BLE001 - a failed design must never stop the study; its reason is kept
             kind = "" if isinstance(err, HoleshapeError) else " (unexpected)"
             rec["state"] = "failed"
             rec["user_attrs"].update(feasible=True, failure=f"{type(err).__name__}{kind}: {' '.join(str(err).split())}")
             log.debug("trial failed", exc_info=True)
             return rec
+        post, post_reasons = solved_constraint_values(ev, study.constraints)
+        rec["constraints"].update(post)
         rec["state"] = "complete"
-        rec["value"] = ev.peak_stress_mpa
-        rec["user_attrs"].update(feasible=True, peak_stress_mpa=ev.peak_stress_mpa, kt=ev.kt,
+        rec["value"] = ev.peak_stress_mpa if self.trade_off else objective_value(ev, study.search.goal)
+        rec["user_attrs"].update(feasible=not post_reasons, peak_stress_mpa=ev.peak_stress_mpa, kt=ev.kt,
                                  error_estimate_pct=ev.error_estimate_pct, governing=ev.governing_load_case,
                                  dofs=ev.dofs, seconds=time.perf_counter() - t0)
+        if ev.lowest_margin is not None:
+            rec["user_attrs"]["margin_of_safety"] = ev.lowest_margin
+        if ev.stability is not None:
+            rec["user_attrs"]["buckling_load_factor"] = ev.stability.load_factor
+        if post_reasons:
+            rec["user_attrs"]["reason"] = "; ".join(post_reasons)
         return rec
+
+
+def search_stability(study: Study):
+    """The stability settings a search trial needs: only when a constraint asks for the buckling factor (the
+    final checks of the recommended design always include it when the study has [stability])."""
+    return study.stability if study.constraints.min_buckling_factor is not None else None
+
+
+def objective_value(ev, goal: str) -> float:
+    """The number a search minimises: the peak stress (MPa), or minus the removed area (mm^2) for
+    ``goal = "largest_opening"``."""
+    return ev.peak_stress_mpa if goal == "lowest_peak" else -ev.area_mm2
+
+
+def shown_value(value: float, goal: str) -> str:
+    """A trial's objective value as a person reads it."""
+    return f"{value:.1f} MPa" if goal == "lowest_peak" else f"{-value:.0f} mm^2 removed"
 
 
 def _values(rec: dict, trade_off: bool):
@@ -208,10 +235,12 @@ OVER_BUDGET = "interrupted: the trial budget was reached by another worker first
 
 
 def _penalised(rec: dict, reference: float) -> float:
-    if rec["state"] == "complete":
+    """The value the simplex sees: the objective of a feasible design; otherwise worse than ``reference`` (the
+    best so far, which may be negative: minus an area) in proportion to the summed violation."""
+    viol = sum(max(0.0, v) for v in rec["constraints"].values())
+    if rec["state"] == "complete" and viol <= 0.0:
         return rec["value"]
-    viol = sum(max(0.0, v) for v in rec["constraints"].values()) or 1.0
-    return reference * (1.0 + viol) + 1.0
+    return reference + abs(reference) * (viol or 1.0) + 1.0
 
 
 def run_worker(study_path: str, storage_url: str | None, out_dir: str, study_name: str, worker: int,
@@ -273,7 +302,7 @@ def run_worker(study_path: str, storage_url: str | None, out_dir: str, study_nam
                 return
             _add(study, space, rec, trade_off)
         pending = _penalised(rec, reference)
-        if rec["state"] == "complete":
+        if rec["state"] == "complete" and rec["user_attrs"].get("feasible"):
             reference = min(reference, rec["value"])
 
 

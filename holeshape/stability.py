@@ -1,0 +1,487 @@
+"""Stability layer: linear (eigenvalue) buckling of the flat panel with its cutout, for every load case.
+
+Model. A Kirchhoff plate of the panel's thickness, bending stiffness D = E t^3 / (12 (1 - nu^2)), prestressed by the
+plane-stress solution of the load case (the same P2 solve, on a mesh of its own that covers the whole panel: buckling
+modes need not share the cutout's mirror symmetry). The load factor lambda solves (K + lambda K_G) w = 0, with K the
+bending stiffness and K_G = t * integral(grad(w) . S . grad(v)) for the prestress S; the applied load case times
+lambda buckles the perfect plate. Panel edges are simply supported (w = 0) or clamped (w = 0 and dw/dn = 0); the
+cutout edge is free.
+
+Element. Morley's non-conforming quadratic plate triangle (scikit-fem ``ElementTriMorley``) on the straight-sided
+twin of the panel mesh: it converges like h^2 (from below on the plain plate), costs a fraction of the C1 Argyris
+element, and its two-level Richardson extrapolation was measured within 0.15 % of the converged factors
+(DEVELOPERS.md, "Numerical choices"). Reported factors are the extrapolated values; the error estimate is the whole
+Richardson correction plus a measured scatter floor (a convergence test checks that it bounds the true error).
+
+Sign of the eigenproblem. K_G is indefinite (shear, mixed tension and compression), K is positive definite once the
+supports are applied: we solve -K_G w = mu K w for the largest mu, so lambda = 1 / mu is the smallest positive load
+factor. No mu above 1 / FACTOR_CEILING means the case does not buckle below FACTOR_CEILING times its load (pure
+tension never does). Reversed shear is a separate load case.
+
+Units: mm, N, MPa. Array layouts: scikit-fem points (2, n); prestress at quadrature points (3, n_elements, n_qp)
+ordered (sxx, syy, sxy).
+"""
+
+from __future__ import annotations
+
+import math
+import time
+from dataclasses import asdict, dataclass, field
+
+import numpy as np
+
+from holeshape.errors import SolveError
+from holeshape.mesh import MeshSpec, Region, mesh_panel
+from holeshape.study import EDGE_SUPPORTS, StabilitySettings
+
+FACTOR_CEILING = 1000.0  # a case that needs more than this many times its load to buckle is reported as not buckling
+PLATE_QUAD_ORDER = 4  # Morley: second derivatives constant, gradients linear; prestress P1-P2 on a triangle
+
+
+@dataclass(frozen=True)
+class StabilityLevel:
+    """Plate mesh family of an accuracy level: ``spec`` the finer mesh (its element size caps at ``spec.max_fraction``
+    of the smaller panel side), compared with the same family at twice the size. ``target_pct`` bounds the estimate."""
+
+    name: str
+    spec: MeshSpec
+    target_pct: float
+    floor_pct: float
+
+
+# Measured on the plain plate (k = 4, 4.34, 9.32, 10.07, 14.6) and the holed square table (DEVELOPERS.md): the
+# Richardson value of the standard pair is within 0.15 % of the converged one; the floor covers the scatter between
+# two unstructured meshes of one family.
+STABILITY_LEVELS = {
+    "draft": StabilityLevel("draft", MeshSpec(boundary_ratio=3.0, growth=0.3, max_fraction=1 / 16, min_segments=24,
+                                              ligament_elements=3.0), 3.0, 0.1),
+    "standard": StabilityLevel("standard", MeshSpec(boundary_ratio=4.0, growth=0.3, max_fraction=1 / 24,
+                                                    min_segments=32, ligament_elements=4.0), 1.0, 0.05),
+    "fine": StabilityLevel("fine", MeshSpec(boundary_ratio=6.0, growth=0.2, max_fraction=1 / 36, min_segments=48,
+                                            ligament_elements=6.0), 0.5, 0.05),
+}
+MAX_REFINEMENTS = 2  # further levels, each 1.5x finer, while the estimate exceeds the level's target
+REFINE_RATIO = 1.5
+CONVERGENCE_ORDER = 2.0  # Morley plate element, eigenvalues: O(h^2)
+
+
+@dataclass(frozen=True)
+class BucklingCase:
+    """Buckling of one load case. ``load_factor`` None: no buckling below FACTOR_CEILING times the load."""
+
+    name: str
+    load_factor: float | None
+    error_estimate_pct: float | None
+    level_factors: tuple[float | None, ...]  # raw factor per plate mesh level, coarsest first
+    unperforated_factor: float | None
+    unperforated_error_estimate_pct: float | None
+    reserve: float | None  # load_factor / required_factor
+
+    @property
+    def buckles(self) -> bool:
+        return self.load_factor is not None
+
+
+@dataclass(frozen=True)
+class StabilityResult:
+    """Everything the outputs say about stability (JSON-ready through ``to_dict``)."""
+
+    cases: tuple[BucklingCase, ...]
+    edge_support: str
+    in_plane_edges: str
+    required_factor: float
+    accuracy: str
+    accuracy_target_pct: float
+    dofs: int  # plate DOFs of the finest level
+    level_dofs: tuple[int, ...]
+    refinements: int
+    elapsed_s: float
+    warnings: tuple[str, ...] = ()
+
+    @property
+    def governing(self) -> BucklingCase | None:
+        buck = [c for c in self.cases if c.buckles]
+        return min(buck, key=lambda c: c.load_factor) if buck else None
+
+    @property
+    def load_factor(self) -> float | None:
+        g = self.governing
+        return None if g is None else g.load_factor
+
+    @property
+    def unperforated_factor(self) -> float | None:
+        vals = [c.unperforated_factor for c in self.cases if c.unperforated_factor is not None]
+        return min(vals) if vals else None
+
+    @property
+    def error_estimate_pct(self) -> float:
+        vals = [c.error_estimate_pct for c in self.cases if c.error_estimate_pct is not None]
+        return max(vals) if vals else 0.0
+
+    @property
+    def reserve(self) -> float | None:
+        f = self.load_factor
+        return None if f is None else f / self.required_factor
+
+    @property
+    def meets_required(self) -> bool:
+        return self.reserve is None or self.reserve >= 1.0
+
+    def to_dict(self) -> dict:
+        d = asdict(self)
+        d["cases"] = [asdict(c) | {"buckles": c.buckles} for c in self.cases]
+        g = self.governing
+        d.update(buckling_load_factor=self.load_factor, buckling_governing_load_case=None if g is None else g.name,
+                 buckling_load_factor_unperforated=self.unperforated_factor,
+                 buckling_error_estimate_pct=self.error_estimate_pct, buckling_reserve=self.reserve,
+                 meets_required_factor=self.meets_required)
+        return d
+
+
+@dataclass
+class StabilityFields:
+    """Plate mesh of the finest level and the mode shapes (out-of-plane deflection at the vertices, largest
+    magnitude 1), kept only for plots: ``modes[j]`` is a list of (factor, w) for load case j."""
+
+    p: np.ndarray = field(repr=False)
+    t: np.ndarray = field(repr=False)
+    modes: list = field(repr=False)
+
+
+# ----- forms --------------------------------------------------------------------------------------------------------
+def bending_stiffness(basis, youngs_modulus: float, poisson_ratio: float, thickness: float):
+    """Kirchhoff plate bending stiffness matrix, N mm (w in mm)."""
+    from skfem import BilinearForm
+    from skfem.helpers import dd, ddot, trace
+
+    d = youngs_modulus * thickness ** 3 / (12.0 * (1.0 - poisson_ratio ** 2))
+    nu = poisson_ratio
+
+    @BilinearForm
+    def form(u, v, w):
+        return d * ((1.0 - nu) * ddot(dd(u), dd(v)) + nu * trace(dd(u)) * trace(dd(v)))
+
+    return form.assemble(basis)
+
+
+def geometric_stiffness(basis, prestress: np.ndarray, thickness: float):
+    """t * integral(grad(u) . S . grad(v)) for the prestress ``prestress`` (3, n_elements, n_qp) MPa at ``basis``'s
+    quadrature points (or (3,) for a uniform state)."""
+    from skfem import BilinearForm
+    from skfem.helpers import grad
+
+    @BilinearForm
+    def form(u, v, w):
+        gu, gv = grad(u), grad(v)
+        return thickness * (w["sxx"] * gu[0] * gv[0] + w["syy"] * gu[1] * gv[1]
+                            + w["sxy"] * (gu[0] * gv[1] + gu[1] * gv[0]))
+
+    shape = np.asarray(basis.global_coordinates())[0].shape
+    s = [np.ascontiguousarray(np.broadcast_to(np.asarray(prestress[i], dtype=float), shape)) for i in range(3)]
+    return form.assemble(basis, sxx=s[0], syy=s[1], sxy=s[2])
+
+
+def plate_basis(p: np.ndarray, t: np.ndarray):
+    """Morley basis on the straight-sided triangles (p (2, n) vertices, t (3, m)). A new element object per mesh:
+    scikit-fem's global elements cache per-mesh data."""
+    from skfem import Basis, ElementTriMorley, MeshTri1
+
+    return Basis(MeshTri1(np.ascontiguousarray(p), np.ascontiguousarray(t)), ElementTriMorley(),
+                 intorder=PLATE_QUAD_ORDER)
+
+
+def supported_dofs(basis, edge_facets: np.ndarray, edge_support: str) -> np.ndarray:
+    """DOFs held on the panel edges: the deflection (simply supported), and the normal slope too (clamped)."""
+    if edge_support == "simply_supported":
+        return basis.get_dofs(edge_facets).all("u")
+    if edge_support == "clamped":
+        return basis.get_dofs(edge_facets).all()
+    raise ValueError(f"edge_support must be one of {EDGE_SUPPORTS}, got {edge_support!r}")
+
+
+def lowest_factors(K, KG_cases: list, fixed: np.ndarray, n_modes: int = 1, compression: list[bool] | None = None
+                   ) -> list[list[tuple[float, np.ndarray]]]:
+    """For each geometric stiffness: the ``n_modes`` smallest positive load factors with their mode vectors (full
+    DOF vectors), as [(factor, mode), ...]; an empty list where no factor lies below FACTOR_CEILING. K is factorised
+    once for every case. ``compression[j]`` False says the prestress of case j has no compressive principal stress
+    anywhere (then it cannot buckle and nothing is solved)."""
+    compression = [True] * len(KG_cases) if compression is None else compression
+    from scipy.sparse.linalg import ArpackNoConvergence, LinearOperator, eigsh, splu
+
+    n = K.shape[0]
+    mask = np.ones(n, dtype=bool)
+    mask[fixed] = False
+    free = np.flatnonzero(mask)
+    Kf = K.tocsr()[free][:, free].tocsc()
+    try:
+        lu = splu(Kf, permc_spec="MMD_AT_PLUS_A", diag_pivot_thresh=0.0, options={"SymmetricMode": True})
+    except RuntimeError as err:
+        raise SolveError(f"the plate bending stiffness is singular (the panel is not supported): {err}") from err
+    Minv = LinearOperator(Kf.shape, matvec=lu.solve, dtype=float)
+    out = []
+    k = min(max(1, n_modes), len(free) - 2)
+    for KG, compressed in zip(KG_cases, compression):
+        G = (-KG.tocsr())[free][:, free]
+        # Lanczos stalls when no eigenvalue stands clear of the cluster of mu near zero (tension): first ask
+        # whether any factor lies below the ceiling at all
+        if not compressed or not _buckles_below(Kf, G, FACTOR_CEILING):
+            out.append([])
+            continue
+        try:
+            mu, vec = eigsh(G, k=k, M=Kf, Minv=Minv, which="LA", ncv=max(2 * k + 1, 20), maxiter=20000)
+        except ArpackNoConvergence as err:
+            raise SolveError("the buckling eigenvalue solver did not converge") from err
+        order = np.argsort(-mu)
+        rows = []
+        for i in order:
+            if mu[i] > 1.0 / FACTOR_CEILING:
+                full = np.zeros(n)
+                full[free] = vec[:, i]
+                rows.append((float(1.0 / mu[i]), full))
+        out.append(rows)
+    return out
+
+
+def has_compression(prestress: np.ndarray, relative: float = 1e-9) -> bool:
+    """Whether the smaller principal stress of ``prestress`` (3, ...) is negative anywhere (beyond round-off)."""
+    sxx, syy, sxy = prestress[0], prestress[1], prestress[2]
+    smin = 0.5 * (sxx + syy) - np.hypot(0.5 * (sxx - syy), sxy)
+    scale = float(np.max(np.abs(prestress))) or 1.0
+    return bool(np.min(smin) < -relative * scale)
+
+
+def _buckles_below(Kf, G, ceiling: float) -> bool:
+    """Whether some load factor lies in (0, ceiling): then K - ceiling * G (with G = -K_G) is no longer positive
+    definite. Counted by Sylvester's law of inertia from the pivots of a symmetric, diagonally pivoted
+    factorisation (a Sturm-sequence check), so no eigenvalue iteration is spent on a case that cannot buckle."""
+    from scipy.sparse.linalg import splu
+
+    A = (Kf - ceiling * G).tocsc()
+    try:
+        lu = splu(A, permc_spec="MMD_AT_PLUS_A", diag_pivot_thresh=0.0, options={"SymmetricMode": True})
+    except RuntimeError:  # an exactly singular shifted matrix: a factor at the ceiling itself
+        return True
+    return bool(np.any(lu.U.diagonal() <= 0.0))
+
+
+def richardson(coarse: float, fine: float, ratio: float, order: float = CONVERGENCE_ORDER) -> float:
+    """Extrapolated value from two mesh levels whose sizes differ by ``ratio`` (> 1), for convergence ``order``."""
+    return fine + (fine - coarse) / (ratio ** order - 1.0)
+
+
+def estimate_pct(coarse: float, fine: float, ratio: float, floor_pct: float) -> tuple[float, float]:
+    """(extrapolated value, error estimate in percent): the whole Richardson correction plus the floor."""
+    ext = richardson(coarse, fine, ratio)
+    return ext, 100.0 * abs(ext - fine) / abs(ext) + floor_pct
+
+
+# ----- one mesh level -----------------------------------------------------------------------------------------------
+@dataclass
+class _LevelRun:
+    factors: list  # per case: [(factor, mode)] (possibly empty)
+    dofs: int
+    p: np.ndarray
+    t: np.ndarray
+
+
+def _vertex_deflection(basis, mode: np.ndarray) -> np.ndarray:
+    w = mode[basis.nodal_dofs[0]]
+    big = float(np.abs(w).max()) or 1.0
+    return w / (big if abs(w.max()) >= abs(w.min()) else -big)
+
+
+def plate_buckling(pm, u: np.ndarray, material, thickness: float, edge_support: str, n_modes: int = 1
+                   ) -> tuple[list[list[tuple[float, np.ndarray]]], object]:
+    """Buckling of a meshed panel (``holeshape.mesh.PanelMesh`` of the whole panel) under the in-plane
+    displacements ``u`` (n_dofs, m) of its P2 solve (any in-plane boundary condition): per load case the
+    ``n_modes`` lowest positive factors with their mode shapes (deflection at the mesh vertices, largest magnitude
+    1), and the plate basis. Edges named left/right/bottom/top are supported; the cutout edge is free."""
+    from skfem import Basis, ElementTriP2, ElementVector
+
+    from holeshape.solve import stress_from_gradient
+
+    mesh = pm.mesh
+    pb = plate_basis(mesh.p[:, :mesh.nvertices], mesh.t)
+    # the prestress at the plate's quadrature points: same reference points on the same elements of the curved mesh
+    sb = Basis(mesh, ElementVector(ElementTriP2()), quadrature=pb.quadrature)
+    K = bending_stiffness(pb, material.youngs_modulus, material.poisson_ratio, thickness)
+    KGs, compressed = [], []
+    for c in range(u.shape[1]):
+        grad = np.asarray(sb.interpolate(u[:, c]).grad)
+        S = stress_from_gradient(grad, material.youngs_modulus, material.poisson_ratio)
+        KGs.append(geometric_stiffness(pb, S, thickness))
+        compressed.append(has_compression(S))
+    edges = np.concatenate([pm.boundaries[k] for k in ("left", "right", "bottom", "top")])
+    fixed = supported_dofs(pb, edges, edge_support)
+    facs = lowest_factors(K, KGs, fixed, n_modes, compressed)
+    return [[(f, _vertex_deflection(pb, m)) for f, m in rows] for rows in facs], pb
+
+
+def _holed_level(panel, material, remote: np.ndarray, cutout, spec: MeshSpec, support: str, n_modes: int
+                 ) -> _LevelRun:
+    from holeshape.solve import solve_panel
+
+    region = Region(panel.width, panel.height)  # the whole panel: modes need not be symmetric
+    pm = mesh_panel(panel.width, panel.height, cutout, region, spec)
+    sol = solve_panel(pm, material.youngs_modulus, material.poisson_ratio, remote, panel.edges, panel.width,
+                      panel.height)
+    facs, pb = plate_buckling(pm, sol.u, material, panel.thickness, support, n_modes)
+    mesh = pm.mesh
+    return _LevelRun(facs, int(pb.N), mesh.p[:, :mesh.nvertices].copy(), mesh.t.copy())
+
+
+def crossed_grid(width: float, height: float, nx: int, ny: int) -> tuple[np.ndarray, np.ndarray]:
+    """Structured triangles of a rectangle: every cell split into four by its centre (no preferred diagonal, so
+    positive and negative shear see the same mesh). Returns p (2, n), t (3, m)."""
+    xs, ys = np.linspace(0.0, width, nx + 1), np.linspace(0.0, height, ny + 1)
+    X, Y = np.meshgrid(xs, ys, indexing="ij")
+    corners = np.vstack([X.ravel(), Y.ravel()])
+    cx, cy = np.meshgrid(0.5 * (xs[1:] + xs[:-1]), 0.5 * (ys[1:] + ys[:-1]), indexing="ij")
+    centres = np.vstack([cx.ravel(), cy.ravel()])
+    p = np.hstack([corners, centres])
+    i, j = np.meshgrid(np.arange(nx), np.arange(ny), indexing="ij")
+    i, j = i.ravel(), j.ravel()
+    a, b = i * (ny + 1) + j, (i + 1) * (ny + 1) + j  # lower-left, lower-right
+    c, d = b + 1, a + 1  # upper-right, upper-left
+    m = corners.shape[1] + i * ny + j
+    t = np.hstack([np.vstack([a, b, m]), np.vstack([b, c, m]), np.vstack([c, d, m]), np.vstack([d, a, m])])
+    return p, t
+
+
+def _plain_level(panel, material, remote: np.ndarray, n_short: int, support: str, n_modes: int) -> _LevelRun:
+    """The unperforated panel: a crossed structured mesh and the uniform remote stress (exact for both in-plane
+    edge conditions when there is no cutout)."""
+    from skfem import MeshTri1
+
+    short = min(panel.width, panel.height)
+    nx = max(2, int(round(n_short * panel.width / short)))
+    ny = max(2, int(round(n_short * panel.height / short)))
+    p, t = crossed_grid(panel.width, panel.height, nx, ny)
+    pb = plate_basis(p, t)
+    K = bending_stiffness(pb, material.youngs_modulus, material.poisson_ratio, panel.thickness)
+    KGs = [geometric_stiffness(pb, np.asarray(r, dtype=float), panel.thickness) for r in remote]
+    mesh = MeshTri1(p, t)
+    fixed = supported_dofs(pb, mesh.boundary_facets(), support)
+    facs = lowest_factors(K, KGs, fixed, n_modes, [has_compression(np.asarray(r, dtype=float)) for r in remote])
+    facs = [[(f, _vertex_deflection(pb, m)) for f, m in rows] for rows in facs]
+    return _LevelRun(facs, int(pb.N), p, t)
+
+
+# The unperforated panel depends only on the panel, the material, the load cases and the support: a search asks for
+# it with every design, so it is computed once per process (keyed by those frozen inputs).
+_PLAIN_CACHE: dict = {}
+
+
+def _plain_panel(panel, material, remote, level: StabilityLevel, support: str, n_modes: int):
+    """Levels, (factor, estimate) per case and refinements of the unperforated panel: nested structured meshes with
+    an exact size ratio of 2 (then 1.5 per refinement)."""
+    n = [int(math.ceil(1.0 / level.spec.max_fraction / 2.0)) * 2]
+    n.insert(0, n[0] // 2)
+    runs = [_plain_level(panel, material, remote, k, support, n_modes) for k in n]
+    ratios = [2.0]
+    refinements = 0
+    cases = range(remote.shape[0])
+    while True:
+        ests = [_combine(runs, ratios, j, level.floor_pct)[1] for j in cases]
+        if max((e for e in ests if e is not None), default=0.0) <= level.target_pct or refinements == MAX_REFINEMENTS:
+            break
+        n.append(int(round(n[-1] * REFINE_RATIO)))
+        runs.append(_plain_level(panel, material, remote, n[-1], support, n_modes))
+        ratios.append(n[-1] / n[-2])
+        refinements += 1
+    return runs, [_combine(runs, ratios, j, level.floor_pct) for j in cases], refinements
+
+
+def _first(run: _LevelRun, j: int) -> float | None:
+    return run.factors[j][0][0] if run.factors[j] else None
+
+
+def _combine(runs: list[_LevelRun], ratios: list[float], j: int, floor_pct: float
+             ) -> tuple[float | None, float | None]:
+    """Extrapolated factor and estimate of case j from the last two levels."""
+    fc, ff = _first(runs[-2], j), _first(runs[-1], j)
+    if ff is None and fc is None:
+        return None, None
+    if ff is None or fc is None:  # buckles on one level only: near the ceiling; take the finer level's word
+        return (ff, 100.0) if ff is not None else (None, None)
+    return estimate_pct(fc, ff, ratios[-1], floor_pct)
+
+
+def buckling(panel, material, load_cases, cutout, settings: StabilitySettings, accuracy: str = "standard",
+             time_limit_s: float | None = None, keep_fields: bool = False):
+    """Buckling load factor of every load case for the panel with ``cutout`` (or without one: ``cutout=None``), and
+    of the same panel without the cutout. Returns a :class:`StabilityResult`, or ``(result, StabilityFields)``
+    with ``keep_fields``."""
+    t0 = time.perf_counter()
+    level = STABILITY_LEVELS[accuracy]
+    remote = np.array([lc.components for lc in load_cases], dtype=float)
+    support, n_modes = settings.edge_support, max(1, settings.modes if keep_fields else 1)
+
+    def check_time():
+        if time_limit_s is not None and time.perf_counter() - t0 > time_limit_s:
+            raise SolveError(f"the buckling check exceeded its time limit of {time_limit_s:g} s")
+
+    def holed(spec):
+        check_time()
+        return _holed_level(panel, material, remote, cutout, spec, support, n_modes)
+
+    key = (panel, material, tuple(load_cases), support, n_modes, level.name)
+    if key not in _PLAIN_CACHE:
+        check_time()
+        if len(_PLAIN_CACHE) >= 32:
+            _PLAIN_CACHE.pop(next(iter(_PLAIN_CACHE)))
+        _PLAIN_CACHE[key] = _plain_panel(panel, material, remote, level, support, n_modes)
+    plain_runs, plain_res, plain_refinements = _PLAIN_CACHE[key]
+
+    if cutout is None:
+        runs, res = plain_runs, plain_res
+        refinements_holed = plain_refinements
+    else:
+        spec = level.spec
+        runs = [holed(spec.coarsened(2.0)), holed(spec)]
+        ratios = [2.0]
+        refinements_holed = 0
+        while True:
+            ests = [_combine(runs, ratios, j, level.floor_pct)[1] for j in range(len(load_cases))]
+            worst = max((e for e in ests if e is not None), default=0.0)
+            if worst <= level.target_pct or refinements_holed == MAX_REFINEMENTS:
+                break
+            if time_limit_s is not None and time.perf_counter() - t0 > 0.5 * time_limit_s:
+                break
+            spec = spec.coarsened(1.0 / REFINE_RATIO)
+            runs.append(holed(spec))
+            ratios.append(REFINE_RATIO)
+            refinements_holed += 1
+        res = [_combine(runs, ratios, j, level.floor_pct) for j in range(len(load_cases))]
+
+    cases = []
+    for j, lc in enumerate(load_cases):
+        f, est = res[j]
+        fu, estu = plain_res[j]
+        cases.append(BucklingCase(
+            name=lc.name, load_factor=f, error_estimate_pct=est,
+            level_factors=tuple(_first(r, j) for r in runs), unperforated_factor=fu,
+            unperforated_error_estimate_pct=estu,
+            reserve=None if f is None else f / settings.required_factor))
+    warnings = []
+    worst = max((c.error_estimate_pct for c in cases if c.error_estimate_pct is not None), default=0.0)
+    if worst > level.target_pct:
+        warnings.append(f"buckling error estimate {worst:.2g} % exceeds the {level.name} target of "
+                        f"{level.target_pct:g} %: treat the load factor as approximate or use a finer accuracy")
+    result = StabilityResult(
+        cases=tuple(cases), edge_support=support, in_plane_edges=panel.edges,
+        required_factor=settings.required_factor, accuracy=level.name, accuracy_target_pct=level.target_pct,
+        dofs=runs[-1].dofs, level_dofs=tuple(r.dofs for r in runs), refinements=refinements_holed,
+        elapsed_s=time.perf_counter() - t0, warnings=tuple(warnings))
+    if keep_fields:
+        last = runs[-1]
+        return result, StabilityFields(p=last.p, t=last.t, modes=last.factors)
+    return result
+
+
+def critical_stress_coefficient(stress: float, width_loaded: float, thickness: float, youngs_modulus: float,
+                                poisson_ratio: float) -> float:
+    """k in sigma_cr = k pi^2 E / (12 (1 - nu^2)) (t / b)^2 for a critical stress ``stress`` (MPa) on a plate of
+    loaded width b (mm)."""
+    return stress / (math.pi ** 2 * youngs_modulus / (12.0 * (1.0 - poisson_ratio ** 2))
+                     * (thickness / width_loaded) ** 2)
