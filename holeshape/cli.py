@@ -198,12 +198,15 @@ def _sweep(args) -> int:
         where = ", ".join(f"{k} = {v:.4g}" for k, v in p["coords"].items())
         if p.get("solved"):
             flag = "" if p["feasible"] else f"  [breaks: {p.get('reason', '')}]"
+            buck = "" if "buckling_load_factor" not in p else (
+                ", does not buckle" if p["buckling_load_factor"] is None else
+                f", buckling factor {p['buckling_load_factor']:.3f}")
             print(f"  {where:<28} peak {p['peak_stress_mpa']:8.2f} MPa, Kt {p['kt']:.3f},"
-                  f" area {p['area_mm2']:.0f} mm^2{flag}")
+                  f" area {p['area_mm2']:.0f} mm^2{buck}{flag}")
         else:
             print(f"  {where:<28} not solved: {p.get('reason', '')}")
     print(f"  report        {res['report']}")
-    print("\n  CAUTION: " + CAUTIONS)
+    print("\n  CAUTION: " + cautions("required_buckling_factor" in res))
     return 0
 
 
@@ -220,12 +223,13 @@ def _compare(args) -> int:
         if r["feasible"]:
             imp = r["improvement_over_circle_pct"]
             vs = "" if imp is None else f", {imp:+.1f} % against the circle"
+            buck = "" if r.get("buckling_load_factor") is None else f", buckling factor {r['buckling_load_factor']:.3f}"
             print(f"  {r['rank']}. {r['shape']:<18} {r['peak_stress_mpa']:8.2f} MPa, Kt {r['kt']:.3f},"
-                  f" area {r['area_mm2']:.0f} mm^2{vs}")
+                  f" area {r['area_mm2']:.0f} mm^2{buck}{vs}")
         else:
             print(f"  -  {r['shape']:<18} no feasible design: {r['reason']}")
     print(f"  report        {top['report']}")
-    print("\n  CAUTION: " + CAUTIONS)
+    print("\n  CAUTION: " + top.get("cautions", CAUTIONS))
     return 0
 
 

@@ -322,7 +322,8 @@ def _finish(study_def, study, space, baselines, out_dir: Path, storage_name: str
         e = own[3]
         family_best = {"shape": own[1], "peak_stress_mpa": e.peak_stress_mpa, "kt": e.kt, "area_mm2": e.area_mm2,
                        "error_estimate_pct": e.error_estimate_pct, "params": _jsonable(own[2].parameters()),
-                       "governing_load_case": e.governing_load_case, "dxf": str(out_dir / "family_best.dxf")}
+                       "governing_load_case": e.governing_load_case, "dxf": str(out_dir / "family_best.dxf"),
+                       "buckling_load_factor": None if e.stability is None else e.stability.load_factor}
     plot_paths = [
         search_plots.plot_history(out_dir / "search_history.png", trials, study_def.title,
                                   "lowest_peak" if trade_off else goal),
@@ -461,6 +462,7 @@ def _inputs(study_def) -> dict:
     return {"title": study_def.title, "source": study_def.source, "panel": asdict(study_def.panel),
             "material": asdict(study_def.material), "load_cases": [asdict(c) for c in study_def.load_cases],
             "constraints": cons, "search": asdict(study_def.search), "measure": asdict(study_def.measure),
+            "stability": None if study_def.stability is None else asdict(study_def.stability),
             "finished": datetime.now(timezone.utc).strftime("%Y-%m-%d %H:%M UTC")}
 
 

@@ -57,7 +57,7 @@ def run_sweep(study_path: str, out: str, vary_texts: list[str]) -> dict:
     from holeshape.output import files
     from holeshape.output.report import build_report
     from holeshape.output.search_plots import plot_sweep
-    from holeshape.search.constraints import constraint_values
+    from holeshape.search.constraints import constraint_values, solved_constraint_values
     from holeshape.validation import run_validation
 
     study = load_study(study_path)
@@ -100,10 +100,18 @@ def run_sweep(study_path: str, out: str, vary_texts: list[str]) -> dict:
             if reasons:
                 row["reason"] = "; ".join(reasons)
             if cons.get("inside_panel", 1.0) < 0 and "outline" not in cons:
-                ev = evaluate(study.panel, study.material, study.load_cases, cut, study.measure)
-                row.update(feasible=not reasons, solved=True, peak_stress_mpa=ev.peak_stress_mpa, kt=ev.kt,
-                           error_estimate_pct=ev.error_estimate_pct, governing_load_case=ev.governing_load_case,
-                           warnings=list(ev.warnings))
+                ev = evaluate(study.panel, study.material, study.load_cases, cut, study.measure,
+                              stability=study.stability)
+                post = solved_constraint_values(ev, study.constraints)[1]
+                if post:
+                    row["reason"] = "; ".join(reasons + post)
+                row.update(feasible=not reasons and not post, solved=True, peak_stress_mpa=ev.peak_stress_mpa,
+                           kt=ev.kt, error_estimate_pct=ev.error_estimate_pct,
+                           governing_load_case=ev.governing_load_case, warnings=list(ev.warnings))
+                if ev.stability is not None:
+                    row.update(buckling_load_factor=ev.stability.load_factor,
+                               buckling_governing_load_case=getattr(ev.stability.governing, "name", None),
+                               buckling_error_estimate_pct=ev.stability.error_estimate_pct)
         except (GeometryError, StudyError) as err:
             row["reason"] = " ".join(str(err).split())
         except HoleshapeError as err:
@@ -111,6 +119,9 @@ def run_sweep(study_path: str, out: str, vary_texts: list[str]) -> dict:
         points.append(row)
     result = {"study": study.title, "vary": [v.__dict__ for v in varies], "points": points,
               "accuracy": study.measure.accuracy, "elapsed_s": time.perf_counter() - t0}
+    if study.stability is not None:
+        result["required_buckling_factor"] = max(study.stability.required_factor,
+                                                 study.constraints.min_buckling_factor or 0.0)
     files.write_json(out_dir / "sweep.json", result)
     plot_sweep(out_dir / "sweep.png", result, study.material.allowable_stress)
     files.write_json(out_dir / "inputs.json", _inputs(study))

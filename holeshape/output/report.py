@@ -11,8 +11,16 @@ from pathlib import Path
 
 from holeshape.output.files import atomic_write
 
-SECTIONS = ("The job", "Study inputs", "Recommendation", "Comparison", "Stress", "Evidence of accuracy",
+SECTIONS = ("The job", "Study inputs", "Recommendation", "Comparison", "Stress", "Stability", "Evidence of accuracy",
             "Validation appendix", "Search history", "Assumptions and cautions")
+
+SUPPORTS = {"simply_supported": "simply supported (deflection held, free to rotate)",
+            "clamped": "clamped (deflection and slope held)"}
+FACTOR_MEANING = {
+    "traction": "the factor multiplies the applied edge stresses of the load case",
+    "displacement": "the factor multiplies the imposed edge strain of the load case (the remote strain of an "
+                    "uncut panel under the stated stresses)",
+}
 
 JOB = ("This report records how a cutout in a thin loaded panel was chosen: the opening was searched for the lowest "
        "peak stress over every load case that still meets the access, area, ligament and radius requirements, "
@@ -53,6 +61,16 @@ def _round(v):
     if isinstance(v, list):
         return "[" + ", ".join(_round(x) for x in v) + "]"
     return f"{v:.3f}".rstrip("0").rstrip(".") if isinstance(v, float) else str(v)
+
+
+def _factor(f) -> str:
+    return "does not buckle" if f is None else f"{f:.3f}"
+
+
+def _shown(v) -> str:
+    if v is None:
+        return "does not buckle"
+    return f"{v:.4g}" if isinstance(v, float) else str(v)
 
 
 def build_report(run_dir: str | Path, fmt: str = "html") -> Path:
@@ -105,6 +123,14 @@ def build_report(run_dir: str | Path, fmt: str = "html") -> Path:
     cons = [{"constraint": k, "value": json.dumps(v) if isinstance(v, dict) else v}
             for k, v in inputs["constraints"].items() if v not in (None, 0.0)]
     parts.append(_table(cons, [("constraint", "constraint"), ("value", "value (mm, mm^2)")], md))
+    search = inputs.get("search", {})
+    if search.get("goal") == "largest_opening":
+        para("Goal: the largest removed area that meets every constraint (a weight-reduction study).")
+    stab_in = inputs.get("stability")
+    if stab_in:
+        parts.append(_table([stab_in], [("edge_support", "buckling: panel edge support"),
+                                        ("required_factor", "required buckling factor"),
+                                        ("modes", "mode shapes plotted")], md))
     h2(SECTIONS[2])
     x0, y0, x1, y1 = b["bounds_mm"]
     dims = ", ".join(f"{k} = {_round(v)}" for k, v in b["params"].items())
@@ -117,53 +143,109 @@ def build_report(run_dir: str | Path, fmt: str = "html") -> Path:
     parts.append(_table(b["load_cases"], [("name", "load case"), ("peak_stress_mpa", "peak (MPa)"), ("kt", "Kt"),
                                           ("x_mm", "x (mm)"), ("y_mm", "y (mm)"),
                                           ("margin_of_safety", "margin of safety")], md))
+    reqs = b.get("requirements", [])
+    if reqs:
+        failed = [r for r in reqs if not r["met"]]
+        if failed:
+            para(f"The recommended design FAILS {len(failed)} of {len(reqs)} requirements of the study: "
+                 + "; ".join(f"{r['requirement']} is {_shown(r['value'])}, required {r['limit']}" for r in failed)
+                 + ".", "warn")
+        else:
+            para(f"The recommended design meets every requirement of the study ({len(reqs)} checked at the "
+                 f"{b['accuracy']} level).")
+        parts.append(_table([{**r, "value": _shown(r["value"]), "met": "yes" if r["met"] else "NO"} for r in reqs],
+                            [("requirement", "requirement"), ("value", "design"), ("limit", "required"),
+                             ("met", "met")], md))
     for w in b.get("warnings", []):
         para("WARNING: " + w, "warn")
     img("best_shape.png", "recommended profile in the panel with the access envelope and the standard shapes")
     h2(SECTIONS[3])
     rows = [{"shape": "recommended " + b["shape"], "peak_stress_mpa": b["peak_stress_mpa"], "kt": b["kt"],
-             "area_mm2": b["area_mm2"], "note": ""}]
+             "area_mm2": b["area_mm2"], "buckling_load_factor": b.get("buckling_load_factor"), "note": ""}]
     for r in summary["baselines"]:
         imp = summary["improvement_over_baselines_pct"].get(r["shape"])
         rows.append({"shape": r["shape"], "peak_stress_mpa": r.get("peak_stress_mpa"), "kt": r.get("kt"),
-                     "area_mm2": r.get("area_mm2"),
+                     "area_mm2": r.get("area_mm2"), "buckling_load_factor": r.get("buckling_load_factor"),
                      "note": f"recommended is {imp:+.1f} % lower" if imp is not None else r.get("reason", "")})
-    parts.append(_table(rows, [("shape", "design"), ("peak_stress_mpa", "peak (MPa)"), ("kt", "Kt"),
-                               ("area_mm2", "area (mm^2)"), ("note", "")], md))
+    cols = [("shape", "design"), ("peak_stress_mpa", "peak (MPa)"), ("kt", "Kt"), ("area_mm2", "area (mm^2)"),
+            ("note", "")]
+    if b.get("stability") is not None:
+        cols.insert(4, ("buckling_load_factor", "buckling factor"))
+    parts.append(_table(rows, cols, md))
     if summary.get("comparison"):
         para("Best design of every shape family, same constraints and load cases, fine level:")
         parts.append(_table(summary["comparison"], [
             ("rank", "rank"), ("shape", "family"), ("peak_stress_mpa", "peak (MPa)"), ("kt", "Kt"),
-            ("area_mm2", "area (mm^2)"), ("governing_load_case", "governing load case"),
+            ("area_mm2", "area (mm^2)"), ("buckling_load_factor", "buckling factor"),
+            ("governing_load_case", "governing load case"),
             ("improvement_over_circle_pct", "improvement over circle (%)"), ("reason", "note")], md))
         img("compare_shapes.png", "best outline of every family, overlaid")
     h2(SECTIONS[4])
     img("best_stress_field.png", "stress field of the recommended design, governing load case")
     img("best_boundary_stress.png", "stress along the cutout edge, every load case, allowable drawn in")
-    h2(SECTIONS[5])
+    h2("Stability")
+    st = b.get("stability")
+    if st is None:
+        para("Not assessed: the study has no [stability] table, so whether the web buckles under these loads is not "
+             "checked here. In a thin web the opening often governs through buckling before the peak stress reaches "
+             "the allowable: add [stability] to the study to check it.", "warn")
+    else:
+        edges_ip = st["in_plane_edges"]
+        para(f"Linear (eigenvalue) buckling of the panel with its cutout: Kirchhoff plate of the panel's thickness "
+             f"under the plane-stress prestress of each load case; panel edges {SUPPORTS[st['edge_support']]}, "
+             f"cutout edge free; in-plane edges '{edges_ip}': {FACTOR_MEANING[edges_ip]}. Required factor "
+             f"{st['required_factor']:g}.")
+        rows = []
+        for c in st["cases"]:
+            f, fu = c["load_factor"], c["unperforated_factor"]
+            cost = None if f is None or fu is None else 100 * (1 - f / fu)
+            rows.append({"name": c["name"], "factor": _factor(f), "reserve": c["reserve"],
+                         "estimate": c["error_estimate_pct"], "plain": _factor(fu),
+                         "cost": None if cost is None else f"{cost:+.1f} %",
+                         "levels": ", ".join(_factor(x) for x in c["level_factors"])})
+        parts.append(_table(rows, [("name", "load case"), ("factor", "buckling load factor"),
+                                   ("reserve", "reserve (factor / required)"), ("estimate", "error estimate (%)"),
+                                   ("plain", "without the cutout"), ("cost", "lost to the opening"),
+                                   ("levels", "factor per plate mesh (coarse to fine)")], md))
+        gov = st.get("buckling_governing_load_case")
+        if gov is None:
+            para("No load case buckles the web below the factor ceiling (no compression to buckle it).")
+        else:
+            verdict = "meets" if st["meets_required_factor"] else "DOES NOT meet"
+            para(f"Lowest buckling load factor {st['buckling_load_factor']:.3f} ({gov}): {verdict} the required "
+                 f"{st['required_factor']:g}. Reported factors are Richardson extrapolations of the two finest plate "
+                 f"meshes (Morley elements, {', '.join(str(n) for n in st['level_dofs'])} DOFs); the estimate is the "
+                 "whole extrapolation step plus a measured floor.", None if st["meets_required_factor"] else "warn")
+        img("best_buckling_mode.png", "buckling mode shape of the governing load case")
+        para("Linear buckling of the perfectly flat plate is not conservative for real plates with initial "
+             "imperfections and residual stresses: apply the knock-down factors of the applicable code. A web allowed "
+             "to work post-buckled (tension field) is a design choice outside this model.", "caution")
+    h2(SECTIONS[6])
     parts.append(_table(b.get("levels", []), [
         ("accuracy", "accuracy level"), ("dofs", "DOFs"), ("peak_stress_mpa", "peak (MPa)"),
         ("change_pct", "change from finest (%)"), ("error_estimate_pct", "error estimate (%)")], md))
     para(f"Reported figures are at the {b['accuracy']} level; error estimate {b['error_estimate_pct']:.3f} % "
          "(change of the peak to a mesh with every element size doubled, plus the measured scatter floor).")
-    h2(SECTIONS[6])
+    h2(SECTIONS[7])
     para("The same pipeline at the same accuracy level on published reference cases:")
     parts.append(_table(validation, [("case", "case"), ("source", "source"), ("published", "published (MPa)"),
                                      ("holeshape", "holeshape (MPa)"), ("error_pct", "error (%)"),
                                      ("tolerance_pct", "tolerance (%)"), ("within", "within")], md))
-    h2(SECTIONS[7])
+    h2(SECTIONS[8])
     img("search_history.png", "search history, best so far against trial")
     img("trade_off_front.png", "trade-off front, removed area against peak stress")
     para(f"{summary['trials_completed']} trials completed ({summary['trials_infeasible']} infeasible, not solved), "
          f"{summary['trials_failed']} failed; storage {summary['storage']}.")
-    h2(SECTIONS[8])
+    h2(SECTIONS[9])
     edges = inputs["panel"]["edges"]
     meaning = ("remote stress applied as edge tractions: a large panel free to redistribute load" if edges == "traction"
                else "remote strain imposed on the edges: a web bounded by stiff members")
     para(f"Linear-elastic, plane-stress model of a flat isotropic panel with uniform remote stresses; edge condition "
          f"'{edges}' ({meaning}).")
-    para(summary["cautions"] + " No buckling, fatigue, fracture or bearing assessment is included in this report; "
-         "the profile must be reviewed by a qualified engineer before use.", "caution")
+    tail = (" The profile must be reviewed by a qualified engineer before use." if st is not None else
+            " No buckling, fatigue, fracture or bearing assessment is included in this report; the profile must be"
+            " reviewed by a qualified engineer before use.")
+    para(summary["cautions"] + tail, "caution")
     if md:
         text = "\n".join(parts)
         return atomic_write(run / "report.md", text)
@@ -205,17 +287,20 @@ def build_sweep_report(run: Path, fmt: str = "html") -> Path:
     elif p.exists():
         parts.append(f'<img alt="sweep" src="data:image/png;base64,{base64.b64encode(p.read_bytes()).decode()}">')
     rows = [{"point": json.dumps({k: round(v, 4) for k, v in pt["coords"].items()}), **pt} for pt in sweep["points"]]
-    parts.append(_table(rows, [("point", "parameters"), ("peak_stress_mpa", "peak (MPa)"), ("kt", "Kt"),
-                               ("area_mm2", "area (mm^2)"), ("error_estimate_pct", "error estimate (%)"),
-                               ("feasible", "meets constraints"), ("reason", "note")], md))
+    cols = [("point", "parameters"), ("peak_stress_mpa", "peak (MPa)"), ("kt", "Kt"),
+            ("area_mm2", "area (mm^2)"), ("error_estimate_pct", "error estimate (%)"),
+            ("feasible", "meets constraints"), ("reason", "note")]
+    if any("buckling_load_factor" in r for r in rows):
+        cols.insert(3, ("buckling_load_factor", "buckling load factor"))
+    parts.append(_table(rows, cols, md))
     add(SWEEP_SECTIONS[3], "h2")
     parts.append(_table(validation, [("case", "case"), ("source", "source"), ("published", "published (MPa)"),
                                      ("holeshape", "holeshape (MPa)"), ("error_pct", "error (%)"),
                                      ("tolerance_pct", "tolerance (%)"), ("within", "within")], md))
     add(SWEEP_SECTIONS[4], "h2")
-    from holeshape import CAUTIONS
+    from holeshape import cautions
 
-    add(CAUTIONS)
+    add(cautions("required_buckling_factor" in sweep))
     if md:
         return atomic_write(run / "report.md", "\n".join(parts))
     doc = (f"<!DOCTYPE html><html lang=\"en\"><head><meta charset=\"utf-8\"><title>{html.escape(title)}</title>"

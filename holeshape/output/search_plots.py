@@ -141,12 +141,14 @@ def plot_sweep(path: Path, result: dict, allowable: float | None) -> Path:
     solved = [p for p in pts if p.get("solved")]
     if len(vary) == 1:
         name = vary[0]["name"]
-        fig, axes = plt.subplots(3, 1, figsize=(8, 8), sharex=True)
+        keys = [("peak_stress_mpa", "peak stress (MPa)"), ("kt", "Kt"), ("area_mm2", "removed area (mm^2)")]
+        if any("buckling_load_factor" in p for p in solved):
+            keys.insert(1, ("buckling_load_factor", "buckling load factor"))
+        fig, axes = plt.subplots(len(keys), 1, figsize=(8, 2.7 * len(keys)), sharex=True)
         x = np.array([p["coords"][name] for p in solved])
         ok = np.array([p["feasible"] for p in solved], dtype=bool)
-        for ax, key, label in zip(axes, ("peak_stress_mpa", "kt", "area_mm2"),
-                                  ("peak stress (MPa)", "Kt", "removed area (mm^2)")):
-            y = np.array([p[key] for p in solved])
+        for ax, (key, label) in zip(axes, keys):
+            y = np.array([np.nan if p.get(key) is None else p[key] for p in solved], dtype=float)
             ax.plot(x, y, "-", color="0.3", lw=1.2)
             ax.plot(x[ok], y[ok], "o", color="C0", ms=5, label="meets the constraints")
             ax.plot(x[~ok], y[~ok], "x", color="C3", ms=6, label="breaks a constraint")
@@ -154,6 +156,10 @@ def plot_sweep(path: Path, result: dict, allowable: float | None) -> Path:
             ax.grid(True, alpha=0.3)
         if allowable:
             axes[0].axhline(allowable, color="black", ls="--", lw=1, label=f"allowable {allowable:g} MPa")
+        if result.get("required_buckling_factor") and keys[1][0] == "buckling_load_factor":
+            axes[1].axhline(result["required_buckling_factor"], color="black", ls="--", lw=1,
+                            label=f"required {result['required_buckling_factor']:g}")
+            axes[1].legend(fontsize=8)
         axes[0].legend(fontsize=8)
         axes[-1].set_xlabel(_label(name))
         axes[0].set_title(f"{result['study']}: sweep of {name}")

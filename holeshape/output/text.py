@@ -108,10 +108,14 @@ def optimise_summary(s: dict) -> str:
         f" {b['error_estimate_pct']:.3f} % at the {b['accuracy']} level",
         f"  margin        {_fmt_mos(b['margin_of_safety'])}",
     ]
+    if s.get("goal") == "largest_opening":
+        mass = "" if b.get("mass_saved_kg") is None else f" ({b['mass_saved_kg']:.3f} kg saved)"
+        lines.insert(2, f"  goal          largest opening within every constraint: {b['area_mm2']:.0f} mm^2 removed{mass}")
     for r in b["load_cases"]:
         mos = "" if r["margin_of_safety"] is None else f", MoS {r['margin_of_safety']:+.3f}"
         lines.append(f"    {r['name']}: {r['peak_stress_mpa']:.2f} MPa at ({r['x_mm']:.1f}, {r['y_mm']:.1f}) mm{mos}")
-    lines.append("  standard shapes (same constraints, fine level):")
+    if s["baselines"]:
+        lines.append("  standard shapes (same constraints, fine level):")
     for row in s["baselines"]:
         if row.get("feasible"):
             imp = s["improvement_over_baselines_pct"][row["shape"]]
