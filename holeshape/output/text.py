@@ -110,7 +110,8 @@ def optimise_summary(s: dict) -> str:
     ]
     if s.get("goal") == "largest_opening":
         mass = "" if b.get("mass_saved_kg") is None else f" ({b['mass_saved_kg']:.3f} kg saved)"
-        lines.insert(2, f"  goal          largest opening within every constraint: {b['area_mm2']:.0f} mm^2 removed{mass}")
+        lines.insert(2, f"  goal          largest opening within every constraint: {b['area_mm2']:.0f} mm^2"
+                        f" removed{mass}")
     for r in b["load_cases"]:
         mos = "" if r["margin_of_safety"] is None else f", MoS {r['margin_of_safety']:+.3f}"
         lines.append(f"    {r['name']}: {r['peak_stress_mpa']:.2f} MPa at ({r['x_mm']:.1f}, {r['y_mm']:.1f}) mm{mos}")
