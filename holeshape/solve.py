@@ -290,13 +290,14 @@ EDGE_CONDITIONS = ("traction", "displacement")
 
 
 def solve_panel(pm, youngs_modulus: float, poisson_ratio: float, remote: np.ndarray, edges: str,
-                width: float, height: float) -> PanelSolution:
+                width: float, height: float, recover: bool = True) -> PanelSolution:
     """Solve a panel mesh (``holeshape.mesh.PanelMesh``) for m uniform remote stress states.
 
     ``remote`` (m, 3): (sigma_x, sigma_y, tau_xy) MPa per load case. ``edges``: "traction" applies sigma . n on
     the panel edges (rigid-body modes removed by three point constraints, which carry no load because the
     tractions are self-equilibrated); "displacement" imposes the remote strain field on the panel edges.
-    Mirror lines get zero normal displacement. One factorisation serves every load case.
+    Mirror lines get zero normal displacement. One factorisation serves every load case. ``recover=False`` skips
+    the cutout stress recovery (``cutout`` is then None: a prestress for the buckling check needs the field only).
     """
     remote = np.atleast_2d(np.asarray(remote, dtype=float))
     mesh = pm.mesh
@@ -337,7 +338,7 @@ def solve_panel(pm, youngs_modulus: float, poisson_ratio: float, remote: np.ndar
     system = FactorisedSystem(K, fixed)
     u = system.solve(loads, values)
     cut = boundary_stress(mesh, u, pm.cutout_facets, youngs_modulus, poisson_ratio, closed=pm.closed,
-                          s_nodes=pm.cutout_s)
+                          s_nodes=pm.cutout_s) if recover else None
     return PanelSolution(basis=basis, u=u, cutout=cut, youngs_modulus=youngs_modulus, poisson_ratio=poisson_ratio)
 
 

@@ -35,6 +35,7 @@ from holeshape.mesh import MeshSpec, Region, mesh_panel
 from holeshape.study import EDGE_SUPPORTS, StabilitySettings
 
 FACTOR_CEILING = 1000.0  # a case that needs more than this many times its load to buckle is reported as not buckling
+QUICK_RESTARTS = 60  # Lanczos restarts before asking whether there is a factor below the ceiling at all
 PLATE_QUAD_ORDER = 4  # Morley: second derivatives constant, gradients linear; prestress P1-P2 on a triangle
 
 
@@ -55,9 +56,9 @@ class StabilityLevel:
 STABILITY_LEVELS = {
     "draft": StabilityLevel("draft", MeshSpec(boundary_ratio=3.0, growth=0.3, max_fraction=1 / 16, min_segments=24,
                                               ligament_elements=3.0), 3.0, 0.1),
-    "standard": StabilityLevel("standard", MeshSpec(boundary_ratio=4.0, growth=0.3, max_fraction=1 / 24,
+    "standard": StabilityLevel("standard", MeshSpec(boundary_ratio=4.0, growth=0.3, max_fraction=1 / 28,
                                                     min_segments=32, ligament_elements=4.0), 1.0, 0.05),
-    "fine": StabilityLevel("fine", MeshSpec(boundary_ratio=6.0, growth=0.2, max_fraction=1 / 36, min_segments=48,
+    "fine": StabilityLevel("fine", MeshSpec(boundary_ratio=6.0, growth=0.2, max_fraction=1 / 44, min_segments=48,
                                             ligament_elements=6.0), 0.5, 0.05),
 }
 MAX_REFINEMENTS = 2  # further levels, each 1.5x finer, while the estimate exceeds the level's target
@@ -222,15 +223,21 @@ def lowest_factors(K, KG_cases: list, fixed: np.ndarray, n_modes: int = 1, compr
     k = min(max(1, n_modes), len(free) - 2)
     for KG, compressed in zip(KG_cases, compression):
         G = (-KG.tocsr())[free][:, free]
-        # Lanczos stalls when no eigenvalue stands clear of the cluster of mu near zero (tension): first ask
-        # whether any factor lies below the ceiling at all
-        if not compressed or not _buckles_below(Kf, G, FACTOR_CEILING):
+        if not compressed:
             out.append([])
             continue
         try:
-            mu, vec = eigsh(G, k=k, M=Kf, Minv=Minv, which="LA", ncv=max(2 * k + 1, 20), maxiter=20000)
-        except ArpackNoConvergence as err:
-            raise SolveError("the buckling eigenvalue solver did not converge") from err
+            mu, vec = eigsh(G, k=k, M=Kf, Minv=Minv, which="LA", ncv=max(2 * k + 1, 20), maxiter=QUICK_RESTARTS)
+        except ArpackNoConvergence:
+            # Lanczos stalls when no eigenvalue stands clear of the cluster of mu near zero (mostly tension): ask
+            # whether any factor lies below the ceiling at all before iterating longer
+            if not _buckles_below(Kf, G, FACTOR_CEILING):
+                out.append([])
+                continue
+            try:
+                mu, vec = eigsh(G, k=k, M=Kf, Minv=Minv, which="LA", ncv=max(2 * k + 1, 40), maxiter=20000)
+            except ArpackNoConvergence as err:
+                raise SolveError("the buckling eigenvalue solver did not converge") from err
         order = np.argsort(-mu)
         rows = []
         for i in order:
@@ -324,7 +331,7 @@ def _holed_level(panel, material, remote: np.ndarray, cutout, spec: MeshSpec, su
     region = Region(panel.width, panel.height)  # the whole panel: modes need not be symmetric
     pm = mesh_panel(panel.width, panel.height, cutout, region, spec)
     sol = solve_panel(pm, material.youngs_modulus, material.poisson_ratio, remote, panel.edges, panel.width,
-                      panel.height)
+                      panel.height, recover=False)
     facs, pb = plate_buckling(pm, sol.u, material, panel.thickness, support, n_modes)
     mesh = pm.mesh
     return _LevelRun(facs, int(pb.N), mesh.p[:, :mesh.nvertices].copy(), mesh.t.copy())

@@ -60,7 +60,8 @@ def test_aspect_one_and_a_half_buckles_in_two_half_waves():
     significant = w_line[np.abs(w_line) > 0.05]
     sign_changes = int(np.sum(np.diff(np.sign(significant)) != 0))
     assert sign_changes == 1  # two half-waves along the loaded direction
-    assert np.abs(w_line).max() == pytest.approx(1.0)
+    assert np.abs(w).max() == pytest.approx(1.0)  # normalised to a largest deflection of 1
+    assert np.abs(w_line).max() > 0.95  # the crests lie on the centre line (sin(pi y / b) across)
 
 
 def test_simply_supported_square_shear():
