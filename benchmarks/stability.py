@@ -54,12 +54,14 @@ def speed_table() -> None:
     print("|---|---|---|---|---|---|---|---|")
     for name, panel, cases, cut in DESIGNS:
         for acc in ("draft", "standard"):
-            _, t_plane = median_time(lambda: evaluate(panel, ALU, cases, cut, Measure("von_mises", acc)))
+            _, t_plane = median_time(lambda p=panel, c=cases, k=cut, a=acc: evaluate(p, ALU, c, k,
+                                                                                      Measure("von_mises", a)))
             S._PLAIN_CACHE.clear()
             t0 = time.perf_counter()
             S.buckling(panel, ALU, cases, cut, StabilitySettings(), acc)
             t_first = time.perf_counter() - t0
-            res, t_buck = median_time(lambda: S.buckling(panel, ALU, cases, cut, StabilitySettings(), acc))
+            res, t_buck = median_time(lambda p=panel, c=cases, k=cut, a=acc: S.buckling(p, ALU, c, k,
+                                                                                         StabilitySettings(), a))
             print(f"| {name} | {acc} | {t_plane:.2f} | {t_buck:.2f} | {t_first:.2f} | {t_buck / t_plane:.2f} |"
                   f" {', '.join(str(n) for n in res.level_dofs)} | {res.error_estimate_pct:.2g} |")
 
