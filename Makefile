@@ -14,8 +14,9 @@ $(STAMP): pyproject.toml
 	touch $(STAMP)
 
 demo: $(STAMP)
-	$(VENV)/bin/holeshape check studies/rib-web-access.toml --plots runs/rib-web-access/current-design
+	$(VENV)/bin/holeshape check studies/rib-web-check.toml --plots runs/rib-web-access/current-design
 	$(VENV)/bin/holeshape optimise studies/rib-web-access.toml --out runs/rib-web-access
+	$(VENV)/bin/holeshape optimise studies/rib-web-lightening.toml --out runs/rib-web-lightening
 
 test: $(STAMP)
 	$(PY) -m pytest

@@ -477,7 +477,8 @@ def _front(study, space, study_def, out_dir: Path) -> list[dict]:
         path = out_dir / f"front_{i:02d}.dxf"
         files.write_dxf(path, cut, (study_def.panel.width, study_def.panel.height), study_def.title)
         rows.append({"trial": t.number, "peak_stress_mpa": t.values[0], "area_mm2": t.values[1],
-                     "params": _jsonable(cut.parameters()), "dxf": str(path), "accuracy": "draft"})
+                     "params": _jsonable(cut.parameters()), "dxf": str(path), "accuracy": "draft",
+                     "buckling_load_factor": t.user_attrs.get("buckling_load_factor")})
     return rows
 
 

@@ -34,6 +34,13 @@ from holeshape.errors import SolveError
 from holeshape.mesh import MeshSpec, Region, mesh_panel
 from holeshape.study import EDGE_SUPPORTS, StabilitySettings
 
+SUPPORT_NOTES = {"simply_supported": "simply supported (deflection held, free to rotate)",
+                 "clamped": "clamped (deflection and slope held)"}
+FACTOR_MEANING = {
+    "traction": "the factor multiplies the applied edge stresses of the load case",
+    "displacement": "the factor multiplies the imposed edge strain of the load case (the remote strain of an "
+                    "uncut panel under the stated stresses)",
+}
 FACTOR_CEILING = 1000.0  # a case that needs more than this many times its load to buckle is reported as not buckling
 QUICK_RESTARTS = 60  # Lanczos restarts before asking whether there is a factor below the ceiling at all
 PLATE_QUAD_ORDER = 4  # Morley: second derivatives constant, gradients linear; prestress P1-P2 on a triangle

@@ -10,17 +10,12 @@ import json
 from pathlib import Path
 
 from holeshape.output.files import atomic_write
+from holeshape.stability import FACTOR_MEANING, SUPPORT_NOTES
 
 SECTIONS = ("The job", "Study inputs", "Recommendation", "Comparison", "Stress", "Stability", "Evidence of accuracy",
             "Validation appendix", "Search history", "Assumptions and cautions")
 
-SUPPORTS = {"simply_supported": "simply supported (deflection held, free to rotate)",
-            "clamped": "clamped (deflection and slope held)"}
-FACTOR_MEANING = {
-    "traction": "the factor multiplies the applied edge stresses of the load case",
-    "displacement": "the factor multiplies the imposed edge strain of the load case (the remote strain of an "
-                    "uncut panel under the stated stresses)",
-}
+
 
 JOB = ("This report records how a cutout in a thin loaded panel was chosen: the opening was searched for the lowest "
        "peak stress over every load case that still meets the access, area, ligament and radius requirements, "
@@ -192,7 +187,7 @@ def build_report(run_dir: str | Path, fmt: str = "html") -> Path:
     else:
         edges_ip = st["in_plane_edges"]
         para(f"Linear (eigenvalue) buckling of the panel with its cutout: Kirchhoff plate of the panel's thickness "
-             f"under the plane-stress prestress of each load case; panel edges {SUPPORTS[st['edge_support']]}, "
+             f"under the plane-stress prestress of each load case; panel edges {SUPPORT_NOTES[st['edge_support']]}, "
              f"cutout edge free; in-plane edges '{edges_ip}': {FACTOR_MEANING[edges_ip]}. Required factor "
              f"{st['required_factor']:g}.")
         rows = []

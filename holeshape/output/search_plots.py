@@ -97,6 +97,12 @@ def plot_front(path: Path, trials, front: list[dict], title: str) -> Path:
     if front:
         ax.plot([f["area_mm2"] for f in front], [f["peak_stress_mpa"] for f in front], "-o", color="C0", ms=5,
                 lw=1.8, label="trade-off front (one DXF each)")
+        for f in front:  # the buckling factor of each front member, where the search computed it
+            if f.get("buckling_load_factor") is not None:
+                ax.annotate(f"{f['buckling_load_factor']:.2f}", (f["area_mm2"], f["peak_stress_mpa"]),
+                            xytext=(4, -10), textcoords="offset points", fontsize=7, color="C0")
+        if any(f.get("buckling_load_factor") is not None for f in front):
+            ax.plot([], [], " ", label="numbers: buckling load factor (draft)")
     ax.set_xlabel("removed area (mm^2)")
     ax.set_ylabel("peak stress over all load cases (MPa)")
     ax.grid(True, alpha=0.3)

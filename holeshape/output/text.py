@@ -4,9 +4,7 @@ from __future__ import annotations
 
 from holeshape import cautions
 from holeshape.evaluate import STRESS_LABELS, Evaluation
-
-SUPPORT_NOTES = {"simply_supported": "simply supported (deflection held, free to rotate)",
-                 "clamped": "clamped (deflection and slope held)"}
+from holeshape.stability import FACTOR_MEANING, SUPPORT_NOTES
 
 
 def _factor(f: float | None) -> str:
@@ -19,7 +17,7 @@ def stability_lines(st) -> list[str]:
     lines = [
         "",
         f"  stability     linear buckling, panel edges {SUPPORT_NOTES[st.edge_support]}, cutout edge free;"
-        f" in-plane edges '{st.in_plane_edges}'",
+        f" in-plane edges '{st.in_plane_edges}': {FACTOR_MEANING[st.in_plane_edges]}",
         f"                {st.accuracy}: estimated error {st.error_estimate_pct:.2g} % (target"
         f" {st.accuracy_target_pct:g} %), plate DOFs per level {', '.join(str(n) for n in st.level_dofs)}",
         f"  {'load case':<34} {'buckling factor':>16} {'reserve':>9} {'error est.':>11} {'no cutout':>10}",
