@@ -96,7 +96,10 @@ def run_compare(study_path: str, out: str, workers: int = 1, progress: bool = Tr
         summaries[family] = s
         fb = s.get("family_best")
         if fb is None:
-            rows.append({"shape": family, "feasible": False, "reason": "no feasible design of this family"})
+            refused = s.get("trials_refused_after_solve", {})
+            why = [f"{n} solved designs refused for {k}" for k, n in refused.items() if n]
+            rows.append({"shape": family, "feasible": False, "reason": "no feasible design of this family"
+                         + (f" ({', '.join(why)})" if why else "")})
             continue
         rows.append({"shape": family, "feasible": True, **{k: fb.get(k) for k in (
             "peak_stress_mpa", "kt", "area_mm2", "governing_load_case", "params", "dxf", "error_estimate_pct",
