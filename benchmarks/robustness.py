@@ -115,9 +115,9 @@ def kills(times: int = 5) -> None:
             proc.wait()
             if not (out / "study.journal").exists():
                 continue
-            from holeshape.optimise import _repair_journal
+            from holeshape.optimise import repair_journal
 
-            _repair_journal(out / "study.journal")
+            repair_journal(out / "study.journal")
             now = {t.number: dict(t.params) for t in _trials(out) if t.state.name == "COMPLETE"}
             lost += sum(1 for k, v in seen.items() if now.get(k) != v)
             seen = now

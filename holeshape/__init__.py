@@ -5,7 +5,15 @@ Importing the package stays light: gmsh, scikit-fem, matplotlib and ezdxf load o
 
 __version__ = "0.1.0"
 
-from holeshape.errors import GeometryError, HoleshapeError, MeshError, SolveError, StudyError  # noqa: E402
+from holeshape.errors import (  # noqa: E402
+    GeometryError,
+    HoleshapeError,
+    MeshError,
+    SearchError,
+    SolveError,
+    StorageError,
+    StudyError,
+)
 
 CAUTIONS = (
     "Linear-elastic, plane-stress model of a flat panel: no buckling, fatigue-life, fracture or bearing "
@@ -27,5 +35,5 @@ def cautions(stability_computed: bool = False) -> str:
     return STABILITY_CAUTIONS if stability_computed else CAUTIONS
 
 
-__all__ = ["CAUTIONS", "STABILITY_CAUTIONS", "GeometryError", "HoleshapeError", "MeshError", "SolveError", "StudyError",
-           "__version__", "cautions"]
+__all__ = ["CAUTIONS", "STABILITY_CAUTIONS", "GeometryError", "HoleshapeError", "MeshError", "SearchError",
+           "SolveError", "StorageError", "StudyError", "__version__", "cautions"]

@@ -1,8 +1,10 @@
 """Command line: ``holeshape check STUDY [--json] [--plots DIR]``.
 
 ``main(argv=None) -> int`` so tests call it in-process. Errors become one line on stderr and an exit code:
-2 for bad input (study file, geometry), 3 for a mesh or solver failure, 1 for anything unexpected.
-Tracebacks only with ``--debug``.
+2 bad input (study file, geometry), 3 mesh or solver failure, 4 storage failure, 5 the search gives no answer (no
+feasible design, a worker stopped), 1 anything unexpected (a bug: the message asks for a report), 130 Ctrl-C.
+Tracebacks only with ``--debug``. The command line is the only place that sets process-wide state: logging levels
+(ours, scikit-fem's, Optuna's) and matplotlib's non-interactive backend.
 """
 
 from __future__ import annotations
@@ -15,9 +17,12 @@ import traceback
 from pathlib import Path
 
 from holeshape import CAUTIONS, __version__, cautions
-from holeshape.errors import GeometryError, HoleshapeError, StudyError
+from holeshape.errors import GeometryError, HoleshapeError, MeshError, SearchError, SolveError, StorageError, StudyError
+from holeshape.study import ACCURACIES
 
-EXIT_INPUT, EXIT_COMPUTE, EXIT_INTERNAL = 2, 3, 1
+EXIT_OK, EXIT_INTERNAL, EXIT_INPUT, EXIT_COMPUTE, EXIT_STORAGE, EXIT_SEARCH, EXIT_INTERRUPTED = 0, 1, 2, 3, 4, 5, 130
+BUG_REPORT = ("this is a bug in holeshape, not in your study: please report it with the study file and the output of"
+              " the same command with --debug; completed trials are kept and the run resumes")
 
 EDGE_NOTES = {
     "traction": "remote stress applied as edge tractions",
@@ -40,7 +45,7 @@ def _parser() -> argparse.ArgumentParser:
     ck.add_argument("study", help="study file (TOML)")
     ck.add_argument("--json", action="store_true", help="machine-readable result on stdout")
     ck.add_argument("--plots", metavar="DIR", help="write PNG plots to DIR")
-    ck.add_argument("--accuracy", choices=("draft", "standard", "fine"), help="override [measure] accuracy")
+    ck.add_argument("--accuracy", choices=ACCURACIES, help="override [measure] accuracy")
     op = sub.add_parser("optimise", aliases=["optimize"], parents=[common],
                         help="search the cutout ranges for the lowest peak stress under the constraints",
                         description="Runs or resumes a shape search; writes best.dxf, best.csv, summary.json and "
@@ -80,6 +85,10 @@ def main(argv: list[str] | None = None) -> int:
     level = logging.DEBUG if args.verbose else logging.WARNING
     logging.basicConfig(level=level, format="holeshape: %(message)s", stream=sys.stderr)
     logging.getLogger("skfem").setLevel(logging.ERROR)  # its info/warnings are not for our users
+    logging.getLogger("optuna").setLevel(logging.DEBUG if args.verbose else logging.WARNING)
+    import os
+
+    os.environ.setdefault("MPLBACKEND", "Agg")  # the command line draws to files only
     try:
         if args.command == "check":
             return _check(args)
@@ -97,11 +106,18 @@ def main(argv: list[str] | None = None) -> int:
         raise AssertionError(args.command)
     except (StudyError, GeometryError) as err:
         return _fail(args, err, EXIT_INPUT)
+    except (MeshError, SolveError) as err:
+        return _fail(args, err, EXIT_COMPUTE)
+    except StorageError as err:
+        return _fail(args, err, EXIT_STORAGE)
+    except SearchError as err:
+        return _fail(args, err, EXIT_SEARCH)
     except HoleshapeError as err:
         return _fail(args, err, EXIT_COMPUTE)
     except KeyboardInterrupt:
-        print("holeshape: interrupted", file=sys.stderr)
-        return 130
+        print("holeshape: interrupted (completed trials are kept; run the same command again to resume)",
+              file=sys.stderr)
+        return EXIT_INTERRUPTED
     except Exception as err:  # noqa: BLE001 - the one place that turns surprises into one line
         return _fail(args, err, EXIT_INTERNAL, internal=True)
 
@@ -111,7 +127,7 @@ def _fail(args, err: BaseException, code: int, internal: bool = False) -> int:
         traceback.print_exc()
     msg = " ".join(str(err).split()) or type(err).__name__
     if internal:
-        msg = f"internal error ({type(err).__name__}): {msg} (rerun with --debug for details)"
+        msg = f"internal error ({type(err).__name__}): {msg}; {BUG_REPORT}"
     print(f"holeshape: error: {msg}", file=sys.stderr)
     return code
 

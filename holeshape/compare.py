@@ -12,7 +12,7 @@ import math
 import shutil
 from pathlib import Path
 
-from holeshape.errors import HoleshapeError, StudyError
+from holeshape.errors import HoleshapeError, SearchError, StudyError
 from holeshape.study import Range, dump_toml, load_study
 
 FAMILY_ORDER = ("circle", "ellipse", "rounded_rectangle", "slot", "superellipse", "spline")
@@ -71,6 +71,7 @@ def run_compare(study_path: str, out: str, workers: int = 1, progress: bool = Tr
     out_dir = Path(out)
     out_dir.mkdir(parents=True, exist_ok=True)
     rows, summaries = [], {}
+    shared: dict = {}  # the standard shapes and the unperforated panel: the same for every family
     if not (out_dir / "validation.json").exists():  # one validation appendix serves every family's search
         from holeshape.optimise import FINAL_ACCURACY
         from holeshape.validation import run_validation
@@ -89,7 +90,7 @@ def run_compare(study_path: str, out: str, workers: int = 1, progress: bool = Tr
         if not fam_study.exists() or fam_study.read_text() != text:
             files.atomic_write(fam_study, text)
         try:
-            s = run_optimise(str(fam_study), str(fam_dir), workers=workers, progress=progress)
+            s = run_optimise(str(fam_study), str(fam_dir), workers=workers, progress=progress, cache=shared)
         except (HoleshapeError, StudyError) as err:
             rows.append({"shape": family, "feasible": False, "reason": " ".join(str(err).split())})
             continue
@@ -108,7 +109,7 @@ def run_compare(study_path: str, out: str, workers: int = 1, progress: bool = Tr
     # ranked by the study's goal: lowest peak first, or largest removed area first
     ok = sorted((r for r in rows if r["feasible"]), key=lambda r: -r["area_mm2"] if largest else r["peak_stress_mpa"])
     if not ok:
-        raise HoleshapeError("no shape family found a design that meets the constraints: " +
+        raise SearchError("no shape family found a design that meets the constraints: " +
                              "; ".join(f"{r['shape']}: {r['reason']}" for r in rows))
     circle = next((r for r in rows if r["shape"] == "circle" and r["feasible"]), None)
     for rank, r in enumerate(ok, 1):

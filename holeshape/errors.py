@@ -2,6 +2,9 @@
 
 Every error a user can cause derives from :class:`HoleshapeError`; each subclass is also the matching builtin
 so callers that catch ``ValueError`` or ``RuntimeError`` keep working. Library code raises, only the CLI prints.
+Exit codes of the command line: 2 ``StudyError``/``GeometryError`` (bad input), 3 ``MeshError``/``SolveError``
+(the numerics failed on a valid design), 4 ``StorageError``, 5 ``SearchError``, 1 anything else (a bug: the
+message asks for a report), 130 interrupted (Ctrl-C).
 """
 
 
@@ -23,3 +26,11 @@ class MeshError(HoleshapeError, RuntimeError):
 
 class SolveError(HoleshapeError, RuntimeError):
     """The linear solve failed or its result cannot be trusted (singular or ill-conditioned system)."""
+
+
+class StorageError(HoleshapeError, RuntimeError):
+    """The study's storage (journal file or database) cannot be opened, created or written."""
+
+
+class SearchError(HoleshapeError, RuntimeError):
+    """The search ran but cannot give an answer (no feasible design, a worker process stopped)."""

@@ -17,9 +17,9 @@ import numpy as np
 from holeshape.errors import SolveError
 from holeshape.geometry import Cutout
 from holeshape.mesh import MeshSpec, Region, mesh_panel
-from holeshape.solve import BoundaryStress, PanelSolution, peak_along, solve_panel
+from holeshape.solve import BoundaryStress, PanelSolution, peak_along, principal_stresses, solve_panel, von_mises
 from holeshape.stability import StabilityFields, StabilityResult, buckling
-from holeshape.study import LoadCase, Material, Measure, Panel, StabilitySettings
+from holeshape.study import ACCURACIES, LoadCase, Material, Measure, Panel, StabilitySettings
 
 
 @dataclass(frozen=True)
@@ -46,6 +46,7 @@ ACCURACY_LEVELS = {
 # The floor is added to the level-to-level change so the estimate stays an upper bound where the change happens
 # to be tiny (two unstructured meshes can agree by chance). Measured true errors (benchmarks/speed.py): draft up to
 # 0.07 %, standard and fine up to 0.03 % on Kirsch and Inglis cases up to a/b = 8.
+assert tuple(ACCURACY_LEVELS) == ACCURACIES  # one list of level names (study.ACCURACIES), in order
 UNRESOLVED_FACTOR = 10.0  # an estimate this many times the level's target is an error, not a number
 MAX_REFINEMENTS = 2  # extra levels (each 1.5x finer) tried when the estimate exceeds the level's target
 
@@ -59,11 +60,10 @@ STRESS_LABELS = {"von_mises": "von Mises stress", "max_principal": "max principa
 
 
 def reference_stress(case: LoadCase, stress: str) -> float:
-    sx, sy, txy = case.components
     if stress == "von_mises":
-        return math.sqrt(sx * sx - sx * sy + sy * sy + 3 * txy * txy)
-    c, r = 0.5 * (sx + sy), math.hypot(0.5 * (sx - sy), txy)
-    return max(abs(c + r), abs(c - r))
+        return float(von_mises(*case.components))
+    s1, s2 = principal_stresses(*case.components)
+    return float(max(abs(s1), abs(s2)))
 
 
 def measure_values(bs: BoundaryStress, stress: str) -> np.ndarray:
@@ -195,12 +195,14 @@ class EvaluationFields:
 
 def evaluate(panel: Panel, material: Material, load_cases: tuple[LoadCase, ...], cutout: Cutout,
              measure: Measure = Measure(), keep_fields: bool = False, allow_reduction: bool = True,
-             time_limit_s: float | None = None, stability: StabilitySettings | None = None):
+             time_limit_s: float | None = None, stability: StabilitySettings | None = None,
+             cache: dict | None = None):
     """Evaluate one design. Returns an :class:`Evaluation`, or ``(Evaluation, EvaluationFields)`` when
     ``keep_fields``. ``allow_reduction=False`` forces the full panel model (used to check the reduced ones).
     ``time_limit_s``: no further mesh level is started once this much time has gone; if the levels needed for
     an error estimate are not done by then, :class:`SolveError` says so. ``stability``: also the buckling load
-    factor of every load case (whole panel, its own two plate mesh levels at the same accuracy name)."""
+    factor of every load case (whole panel, its own two plate mesh levels at the same accuracy name). ``cache``: a
+    dict owned by the caller's run for results shared between designs (the unperforated panel's buckling)."""
     t0 = time.perf_counter()
     level = ACCURACY_LEVELS[measure.accuracy]
     region = choose_region(panel, cutout, load_cases) if allow_reduction else Region(panel.width, panel.height)
@@ -264,7 +266,7 @@ def evaluate(panel: Panel, material: Material, load_cases: tuple[LoadCase, ...],
     if stability is not None:
         left = None if time_limit_s is None else max(1.0, time_limit_s - (time.perf_counter() - t0))
         out = buckling(panel, material, load_cases, cutout, stability, measure.accuracy, time_limit_s=left,
-                       keep_fields=keep_fields)
+                       keep_fields=keep_fields, cache=cache)
         stab, stab_fields = out if keep_fields else (out, None)
         results = [replace(r, buckling_load_factor=c.load_factor, buckling_error_estimate_pct=c.error_estimate_pct,
                            buckling_reserve=c.reserve, buckling_load_factor_unperforated=c.unperforated_factor)
@@ -342,13 +344,11 @@ def mirror_to_full(bs: BoundaryStress, region: Region) -> BoundaryStress:
 def narrowest_ligament(panel: Panel, cutout: Cutout, pm, sol: PanelSolution, n_points: int = 24) -> Ligament:
     pts = cutout.sampling.points
     W, H = panel.width, panel.height
-    candidates = {
-        "left": (float(pts[0].min()), int(np.argmin(pts[0]))),
-        "right": (float(W - pts[0].max()), int(np.argmax(pts[0]))),
-        "bottom": (float(pts[1].min()), int(np.argmin(pts[1]))),
-        "top": (float(H - pts[1].max()), int(np.argmax(pts[1]))),
-    }
-    edge, (width, idx) = min(candidates.items(), key=lambda kv: kv[1][0])
+    gaps = cutout.edge_gaps(W, H)
+    nearest = {"left": np.argmin(pts[0]), "right": np.argmax(pts[0]), "bottom": np.argmin(pts[1]),
+               "top": np.argmax(pts[1])}  # the outline point closest to each edge
+    edge, width = min(gaps.items(), key=lambda kv: kv[1])
+    idx = int(nearest[edge])
     px, py = float(pts[0, idx]), float(pts[1, idx])
     end = {"left": (0.0, py), "right": (W, py), "bottom": (px, 0.0), "top": (px, H)}[edge]
     g, w = np.polynomial.legendre.leggauss(n_points)

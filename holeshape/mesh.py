@@ -110,7 +110,10 @@ def _graded_spacing(s: np.ndarray, h: np.ndarray, growth: float, periodic: bool)
     return np.minimum(fwd, bwd)
 
 
-LIGAMENT_ELEMENTS = 4  # at least this many elements across a ligament narrower than the curvature sizing gives
+LIGAMENT_ELEMENTS = 4  # elements across a narrow ligament at the reference boundary ratio below
+# the boundary ratio at which LIGAMENT_ELEMENTS holds: MeshSpec's default (the plane-stress levels' rule scales the
+# count by LIGAMENT_REFERENCE_RATIO / boundary_ratio; plate meshes give MeshSpec.ligament_elements instead)
+LIGAMENT_REFERENCE_RATIO = MeshSpec.boundary_ratio
 
 
 def cutout_nodes(cutout: Cutout, spec: MeshSpec, t_start: float, t_span: float, h_cap: float,
@@ -135,7 +138,7 @@ def cutout_nodes(cutout: Cutout, spec: MeshSpec, t_start: float, t_span: float, 
     if panel_size is not None:
         xy = cutout.xy(t)
         gap = np.min([xy[0], xy[1], panel_size[0] - xy[0], panel_size[1] - xy[1]], axis=0)
-        per = LIGAMENT_ELEMENTS * 16.0 / spec.boundary_ratio if spec.ligament_elements is None \
+        per = LIGAMENT_ELEMENTS * LIGAMENT_REFERENCE_RATIO / spec.boundary_ratio if spec.ligament_elements is None \
             else spec.ligament_elements
         h = np.minimum(h, np.maximum(gap, h_floor) / per)
     h = _graded_spacing(s, h, spec.growth, periodic=full)

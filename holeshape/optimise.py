@@ -8,18 +8,19 @@ shape over the standard shapes and the access envelope, stress field and edge st
 from __future__ import annotations
 
 import fcntl
-import functools
 import logging
 import multiprocessing
 import time
 from pathlib import Path
 
 from holeshape import __version__, cautions
-from holeshape.errors import HoleshapeError, StudyError
+from holeshape.errors import SearchError, StorageError, StudyError
 from holeshape.evaluate import evaluate
 from holeshape.search.baselines import standard_shapes
 from holeshape.search.constraints import edge_gaps, requirement_rows, solved_constraint_values
 from holeshape.search.runner import (
+    SEARCH_ACCURACY,
+    WORKER_BUG_EXIT,
     Objective,
     _add,
     finished,
@@ -29,12 +30,14 @@ from holeshape.search.runner import (
     shown_value,
     storage_for,
     study_fingerprint,
+    worker_error_path,
+    worker_process,
 )
 from holeshape.search.space import DesignSpace
-from holeshape.study import Measure, load_study
+from holeshape.study import ACCURACIES, Measure, flat_name, load_study, split_flat_name
 
 log = logging.getLogger("holeshape.optimise")
-FINAL_ACCURACY = "fine"
+FINAL_ACCURACY = ACCURACIES[-1]  # the finest level: the reported figures
 FINAL_TRIES = 3  # best search designs re-checked at the final level when one misses a requirement there
 
 
@@ -74,7 +77,7 @@ def _family_params(study_family: str, base_family: str, cut, space: DesignSpace)
         vals = {"a": sh.radius, "b": sh.radius}
     elif study_family == "spline" and base_family == "circle":
         n = len(space.spec.values["radii"])
-        vals = {f"radii[{i}]": sh.radius for i in range(n)}
+        vals = {flat_name("radii", i): sh.radius for i in range(n)}
     else:
         return None
     vals.update({"center[0]": cut.center[0], "center[1]": cut.center[1], "rotation": cut.rotation})
@@ -91,9 +94,10 @@ def _family_params(study_family: str, base_family: str, cut, space: DesignSpace)
     for k, v in vals.items():
         if k in dims:
             continue
-        fixed = space.values({}).get(k.split("[")[0])
-        if isinstance(fixed, list) and "[" in k:
-            fixed = fixed[int(k[:-1].split("[")[1])]
+        base, idx = split_flat_name(k)
+        fixed = space.values({}).get(base)
+        if isinstance(fixed, list) and idx is not None:
+            fixed = fixed[idx]
         if fixed is not None and not isinstance(fixed, (list, str)) and abs(float(fixed) - v) > 1e-9 * max(1, abs(v)):
             if space.constraints.area is None or k in ("center[0]", "center[1]", "rotation", "exponent"):
                 return None
@@ -101,11 +105,13 @@ def _family_params(study_family: str, base_family: str, cut, space: DesignSpace)
 
 
 def run_optimise(study_path: str, out: str, workers: int = 1, storage_url: str | None = None,
-                 trade_off: bool = False, progress: bool = True) -> dict:
+                 trade_off: bool = False, progress: bool = True, cache: dict | None = None) -> dict:
+    """Run or resume the search of one study file and write its outputs to ``out``; returns the summary.
+    ``cache``: a dict for results shared between runs on one panel (``compare`` passes one for all families)."""
     import optuna
 
-    optuna.logging.set_verbosity(optuna.logging.WARNING)
     t0 = time.perf_counter()
+    cache = {} if cache is None else cache
     study_def = load_study(study_path)
     space = DesignSpace(study_def.cutout, study_def.constraints)
     space.check()
@@ -118,7 +124,7 @@ def run_optimise(study_path: str, out: str, workers: int = 1, storage_url: str |
         raise StudyError(f"--out {out!r} cannot be created: {err.strerror}") from err
     with RunLock(out_dir):
         if storage_url is None:
-            _repair_journal(out_dir / "study.journal")
+            repair_journal(out_dir / "study.journal")
         storage, storage_name = storage_for(out_dir, storage_url)
         name = "holeshape-trade-off" if trade_off else "holeshape"
         directions = ["minimize", "maximize"] if trade_off else ["minimize"]
@@ -132,10 +138,10 @@ def run_optimise(study_path: str, out: str, workers: int = 1, storage_url: str |
             raise StudyError(f"the search in {storage_name!r} was started from a different study file; use a new --out"
                              " (or restore the original study file) to keep results consistent")
         if storage_url is None:
-            _fail_stale(study)
+            fail_stale(study, storage, name)
         baselines = standard_shapes(study_def.cutout.values, study_def.panel, study_def.constraints)
         if created:  # only the process that created the study seeds it: machines starting together add nothing twice
-            objective = Objective(study_def, space, trade_off)
+            objective = Objective(study_def, space, trade_off, cache)
             own = {k: r.value for k, r in space.dimensions.items()}
             if all(v is not None for v in own.values()):  # the study's current design first
                 rec = objective(own)
@@ -151,7 +157,7 @@ def run_optimise(study_path: str, out: str, workers: int = 1, storage_url: str |
                     _add(study, space, rec, trade_off)
         _run_workers(study_path, storage_url, out_dir, name, workers, trade_off, study_def.search.trials, progress,
                      study_def.search.goal)
-        return _finish(study_def, study, space, baselines, out_dir, storage_name, trade_off, t0)
+        return _finish(study_def, study, space, baselines, out_dir, storage_name, trade_off, t0, cache)
 
 
 def _create_or_load(optuna, name: str, storage, directions: list[str]):
@@ -168,10 +174,10 @@ def _create_or_load(optuna, name: str, storage, directions: list[str]):
         except Exception as err:  # noqa: BLE001 - a creation race can also surface as an integrity error
             last = err
             time.sleep(0.2 * (attempt + 1))
-    raise HoleshapeError(f"the study {name!r} could not be created or loaded: {last}") from last
+    raise StorageError(f"the study {name!r} could not be created or loaded: {last}") from last
 
 
-def _repair_journal(path: Path) -> None:
+def repair_journal(path: Path) -> None:
     """After a kill: drop a half-written last record and a lock left behind. Safe because the run lock makes this
     process the only user of the folder until it starts its own workers."""
     lock = Path(str(path) + ".lock")
@@ -188,13 +194,19 @@ def _repair_journal(path: Path) -> None:
         log.warning("dropped a half-written record at the end of %s (the previous run was killed)", path)
 
 
-def _fail_stale(study) -> None:
-    """Trials left RUNNING by a killed local run can never finish: mark them failed, with the reason."""
+def fail_stale(study, storage, name: str) -> None:
+    """Trials left RUNNING by a killed local run can never finish: mark them failed, with the reason (through the
+    storage's public interface; they do not count towards the budget and are re-run)."""
     from optuna.trial import TrialState
 
-    for t in study.get_trials(deepcopy=False, states=(TrialState.RUNNING,)):
-        study._storage.set_trial_user_attr(t._trial_id, "failure", "interrupted: the run was stopped mid-trial")
-        study._storage.set_trial_state_values(t._trial_id, TrialState.FAIL)
+    running = study.get_trials(deepcopy=False, states=(TrialState.RUNNING,))
+    if not running:
+        return
+    study_id = storage.get_study_id_from_name(name)
+    for t in running:
+        trial_id = storage.get_trial_id_from_study_id_trial_number(study_id, t.number)
+        storage.set_trial_user_attr(trial_id, "failure", "interrupted: the run was stopped mid-trial")
+        storage.set_trial_state_values(trial_id, TrialState.FAIL)
 
 
 def _progress_bar(total: int, enabled: bool):
@@ -229,7 +241,9 @@ def _run_workers(study_path, storage_url, out_dir, name, workers, trade_off, tot
                        on_trial=lambda s: _update(bar, s, goal))
             return
         ctx = multiprocessing.get_context("spawn")
-        procs = [ctx.Process(target=run_worker, args=(study_path, storage_url, str(out_dir), name, w, trade_off),
+        for w in range(workers):
+            worker_error_path(out_dir, w).unlink(missing_ok=True)
+        procs = [ctx.Process(target=worker_process, args=(study_path, storage_url, str(out_dir), name, w, trade_off),
                              daemon=True) for w in range(workers)]
         for p in procs:
             p.start()
@@ -239,15 +253,21 @@ def _run_workers(study_path, storage_url, out_dir, name, workers, trade_off, tot
             _update(bar, study, goal)
             time.sleep(0.5)
         _update(bar, study, goal)
-        bad = [p.exitcode for p in procs if p.exitcode != 0]
+        bad = [(w, p.exitcode) for w, p in enumerate(procs) if p.exitcode != 0]
+        messages = [worker_error_path(out_dir, w).read_text().splitlines()[0] for w, _ in bad
+                    if worker_error_path(out_dir, w).exists()]
+        if any(code == WORKER_BUG_EXIT for _, code in bad):
+            raise RuntimeError(f"a worker process stopped on an unexpected error: {messages[0] if messages else ''}")
         if bad:
-            raise HoleshapeError(f"{len(bad)} of {workers} worker processes stopped with an error (exit codes {bad});"
-                                 " rerun to resume, or use --debug with --workers 1 to see why")
+            why = f": {messages[0]}" if messages else ""
+            raise SearchError(f"{len(bad)} of {workers} worker processes stopped with an error (exit codes "
+                              f"{[c for _, c in bad]}){why}; rerun to resume (completed trials are kept)")
     finally:
         bar.close()
 
 
-def _finish(study_def, study, space, baselines, out_dir: Path, storage_name: str, trade_off: bool, t0: float) -> dict:
+def _finish(study_def, study, space, baselines, out_dir: Path, storage_name: str, trade_off: bool, t0: float,
+            cache: dict) -> dict:
     from optuna.trial import TrialState
 
     from holeshape.output import files, plots, search_plots
@@ -264,7 +284,7 @@ def _finish(study_def, study, space, baselines, out_dir: Path, storage_name: str
 
     def final(cut, keep: bool = False):
         return evaluate(study_def.panel, study_def.material, study_def.load_cases, cut, measure, keep_fields=keep,
-                        stability=stab)
+                        stability=stab, cache=cache)
 
     # the standard shapes, checked at the same (fine) level as the winner, against every requirement
     base_rows, base_evals = [], []
@@ -272,7 +292,8 @@ def _finish(study_def, study, space, baselines, out_dir: Path, storage_name: str
         if cut is None:
             base_rows.append({"shape": family, "feasible": False, "reason": note})
             continue
-        ev = _standard_shape_evaluation(study_def.panel, study_def.material, study_def.load_cases, cut, measure, stab)
+        ev = _standard_shape_evaluation(study_def.panel, study_def.material, study_def.load_cases, cut, measure, stab,
+                                        cache)
         reasons = solved_constraint_values(ev, cons)[1]
         row = {"shape": family, "peak_stress_mpa": ev.peak_stress_mpa, "area_mm2": ev.area_mm2, "kt": ev.kt,
                "error_estimate_pct": ev.error_estimate_pct, "feasible": not reasons, "params": cut.parameters()}
@@ -300,7 +321,7 @@ def _finish(study_def, study, space, baselines, out_dir: Path, storage_name: str
         final_warnings.append(f"the best design found misses a requirement at the {FINAL_ACCURACY} level: "
                               + "; ".join(fallback[6]) + " (it met it at the search's draft level)")
     if not candidates and not base_evals:
-        raise HoleshapeError(f"no feasible design among {len(trials)} trials and no standard shape meets the "
+        raise SearchError(f"no feasible design among {len(trials)} trials and no standard shape meets the "
                              "constraints; widen the ranges or relax the constraints (see summary of trials)")
     for family, cut, ev in base_evals:
         if not candidates or objective_value(ev, goal) < candidates[0][0]:
@@ -370,7 +391,7 @@ def _finish(study_def, study, space, baselines, out_dir: Path, storage_name: str
         "trials_completed": len(complete), "trials_infeasible": len(infeasible), "trials_failed": len(failed),
         "trials_interrupted": len(interrupted),
         "failures": sorted({str(t.user_attrs.get("failure")) for t in failed})[:10],
-        "storage": storage_name, "study": study_def.title, "search_accuracy": "draft",
+        "storage": storage_name, "study": study_def.title, "search_accuracy": SEARCH_ACCURACY,
         "elapsed_s": time.perf_counter() - t0, "plots": [str(p) for p in plot_paths],
         "holeshape_version": __version__, "cautions": cautions(ev.stability is not None),
     }
@@ -392,10 +413,13 @@ def _finish(study_def, study, space, baselines, out_dir: Path, storage_name: str
     return summary
 
 
-@functools.lru_cache(maxsize=64)
-def _standard_shape_evaluation(panel, material, load_cases, cutout, measure, stability=None):
-    """The standard shapes are the same for every family that ``compare`` searches: evaluate each once."""
-    return evaluate(panel, material, load_cases, cutout, measure, stability=stability)
+def _standard_shape_evaluation(panel, material, load_cases, cutout, measure, stability, cache: dict):
+    """The standard shapes are the same for every family that ``compare`` searches: evaluate each once per run
+    (``cache`` belongs to the run)."""
+    key = ("standard shape", panel, material, load_cases, cutout, measure, stability)
+    if key not in cache:
+        cache[key] = evaluate(panel, material, load_cases, cutout, measure, stability=stability, cache=cache)
+    return cache[key]
 
 
 def _case_row(r, with_stability: bool) -> dict:
@@ -443,7 +467,7 @@ def _min_radius_at(cut) -> list[float]:
 def _levels(study_def, cut, ev_fine) -> list[dict]:
     """The recommended design at the three accuracy levels (evidence for the reviewer)."""
     rows = []
-    for acc in ("draft", "standard"):
+    for acc in (a for a in ACCURACIES if a != FINAL_ACCURACY):
         e = evaluate(study_def.panel, study_def.material, study_def.load_cases, cut,
                      Measure(study_def.measure.stress, acc))
         rows.append((acc, e))
@@ -477,7 +501,7 @@ def _front(study, space, study_def, out_dir: Path) -> list[dict]:
         path = out_dir / f"front_{i:02d}.dxf"
         files.write_dxf(path, cut, (study_def.panel.width, study_def.panel.height), study_def.title)
         rows.append({"trial": t.number, "peak_stress_mpa": t.values[0], "area_mm2": t.values[1],
-                     "params": _jsonable(cut.parameters()), "dxf": str(path), "accuracy": "draft",
+                     "params": _jsonable(cut.parameters()), "dxf": str(path), "accuracy": SEARCH_ACCURACY,
                      "buckling_load_factor": t.user_attrs.get("buckling_load_factor")})
     return rows
 

@@ -19,6 +19,17 @@ FACET_SAMPLES = np.linspace(0.0, 1.0, 5)
 QUAD_ORDER = 4  # P2 stiffness on quadratic geometry: degree-2 integrand on straight cells; 4 covers the curved ones
 
 
+def von_mises(sxx, syy, sxy):
+    """Plane-stress von Mises stress of (sxx, syy, sxy), MPa (arrays or numbers; the one definition in holeshape)."""
+    return np.sqrt(np.maximum(sxx * sxx - sxx * syy + syy * syy + 3 * sxy * sxy, 0.0))
+
+
+def principal_stresses(sxx, syy, sxy):
+    """(larger, smaller) in-plane principal stress, MPa."""
+    c, r = 0.5 * (sxx + syy), np.hypot(0.5 * (sxx - syy), sxy)
+    return c + r, c - r
+
+
 def plane_stress_constants(youngs_modulus: float, poisson_ratio: float) -> tuple[float, float]:
     """Plane-stress Lame constants (lambda*, mu) in MPa.
 
@@ -142,18 +153,15 @@ class BoundaryStress:
 
     @property
     def von_mises(self) -> np.ndarray:
-        sxx, syy, sxy = self.sigma
-        return np.sqrt(np.maximum(sxx * sxx - sxx * syy + syy * syy + 3 * sxy * sxy, 0.0))
+        return von_mises(*self.sigma)
 
     @property
     def max_principal(self) -> np.ndarray:
-        sxx, syy, sxy = self.sigma
-        return 0.5 * (sxx + syy) + np.hypot(0.5 * (sxx - syy), sxy)
+        return principal_stresses(*self.sigma)[0]
 
     @property
     def min_principal(self) -> np.ndarray:
-        sxx, syy, sxy = self.sigma
-        return 0.5 * (sxx + syy) - np.hypot(0.5 * (sxx - syy), sxy)
+        return principal_stresses(*self.sigma)[1]
 
 
 def stress_from_gradient(grad: np.ndarray, youngs_modulus: float, poisson_ratio: float) -> np.ndarray:

@@ -32,7 +32,7 @@ import numpy as np
 
 from holeshape.errors import SolveError
 from holeshape.mesh import MeshSpec, Region, mesh_panel
-from holeshape.study import EDGE_SUPPORTS, StabilitySettings
+from holeshape.study import ACCURACIES, EDGE_SUPPORTS, StabilitySettings
 
 SUPPORT_NOTES = {"simply_supported": "simply supported (deflection held, free to rotate)",
                  "clamped": "clamped (deflection and slope held)"}
@@ -68,6 +68,7 @@ STABILITY_LEVELS = {
     "fine": StabilityLevel("fine", MeshSpec(boundary_ratio=6.0, growth=0.2, max_fraction=1 / 44, min_segments=48,
                                             ligament_elements=6.0), 0.5, 0.05),
 }
+assert tuple(STABILITY_LEVELS) == ACCURACIES  # the same level names as the plane-stress evaluation
 MAX_REFINEMENTS = 2  # further levels, each 1.5x finer, while the estimate exceeds the level's target
 REFINE_RATIO = 1.5
 CONVERGENCE_ORDER = 2.0  # Morley plate element, eigenvalues: O(h^2)
@@ -258,8 +259,9 @@ def lowest_factors(K, KG_cases: list, fixed: np.ndarray, n_modes: int = 1, compr
 
 def has_compression(prestress: np.ndarray, relative: float = 1e-9) -> bool:
     """Whether the smaller principal stress of ``prestress`` (3, ...) is negative anywhere (beyond round-off)."""
-    sxx, syy, sxy = prestress[0], prestress[1], prestress[2]
-    smin = 0.5 * (sxx + syy) - np.hypot(0.5 * (sxx - syy), sxy)
+    from holeshape.solve import principal_stresses
+
+    smin = principal_stresses(prestress[0], prestress[1], prestress[2])[1]
     scale = float(np.max(np.abs(prestress))) or 1.0
     return bool(np.min(smin) < -relative * scale)
 
@@ -381,11 +383,6 @@ def _plain_level(panel, material, remote: np.ndarray, n_short: int, support: str
     return _LevelRun(facs, int(pb.N), p, t)
 
 
-# The unperforated panel depends only on the panel, the material, the load cases and the support: a search asks for
-# it with every design, so it is computed once per process (keyed by those frozen inputs).
-_PLAIN_CACHE: dict = {}
-
-
 def _plain_panel(panel, material, remote, level: StabilityLevel, support: str, n_modes: int):
     """Levels, (factor, estimate) per case and refinements of the unperforated panel: nested structured meshes with
     an exact size ratio of 2 (then 1.5 per refinement)."""
@@ -422,10 +419,11 @@ def _combine(runs: list[_LevelRun], ratios: list[float], j: int, floor_pct: floa
 
 
 def buckling(panel, material, load_cases, cutout, settings: StabilitySettings, accuracy: str = "standard",
-             time_limit_s: float | None = None, keep_fields: bool = False):
+             time_limit_s: float | None = None, keep_fields: bool = False, cache: dict | None = None):
     """Buckling load factor of every load case for the panel with ``cutout`` (or without one: ``cutout=None``), and
     of the same panel without the cutout. Returns a :class:`StabilityResult`, or ``(result, StabilityFields)``
-    with ``keep_fields``."""
+    with ``keep_fields``. ``cache``: a dict owned by the caller (a search run) in which the unperforated panel,
+    the same for every design of a study, is kept between calls."""
     t0 = time.perf_counter()
     level = STABILITY_LEVELS[accuracy]
     remote = np.array([lc.components for lc in load_cases], dtype=float)
@@ -439,13 +437,14 @@ def buckling(panel, material, load_cases, cutout, settings: StabilitySettings, a
         check_time()
         return _holed_level(panel, material, remote, cutout, spec, support, n_modes)
 
-    key = (panel, material, tuple(load_cases), support, n_modes, level.name)
-    if key not in _PLAIN_CACHE:
+    key = ("unperforated panel", panel, material, tuple(load_cases), support, n_modes, level.name)
+    plain = None if cache is None else cache.get(key)
+    if plain is None:
         check_time()
-        if len(_PLAIN_CACHE) >= 32:
-            _PLAIN_CACHE.pop(next(iter(_PLAIN_CACHE)))
-        _PLAIN_CACHE[key] = _plain_panel(panel, material, remote, level, support, n_modes)
-    plain_runs, plain_res, plain_refinements = _PLAIN_CACHE[key]
+        plain = _plain_panel(panel, material, remote, level, support, n_modes)
+        if cache is not None:
+            cache[key] = plain
+    plain_runs, plain_res, plain_refinements = plain
 
     if cutout is None:
         runs, res = plain_runs, plain_res

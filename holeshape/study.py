@@ -30,6 +30,28 @@ SHAPE_PARAMETERS: dict[str, tuple[str, ...]] = {
 COMMON_CUTOUT_KEYS = ("shape", "center", "rotation")
 
 
+def flat_name(base: str, index: int | None = None) -> str:
+    """The flat name of a cutout parameter: ``a``, or ``radii[2]`` for an entry of a list parameter."""
+    return base if index is None else f"{base}[{index}]"
+
+
+def split_flat_name(name: str) -> tuple[str, int | None]:
+    """``"radii[2]"`` -> ``("radii", 2)``; ``"a"`` -> ``("a", None)`` (the inverse of :func:`flat_name`)."""
+    if name.endswith("]") and "[" in name:
+        base, idx = name[:-1].split("[", 1)
+        return base, int(idx)
+    return name, None
+
+
+def set_flat(values: dict, name: str, value) -> None:
+    """Set the parameter ``name`` (flat, as :func:`flat_name` gives it) in a dict of cutout values."""
+    base, idx = split_flat_name(name)
+    if idx is None:
+        values[base] = value
+    else:
+        values[base][idx] = value
+
+
 @dataclass(frozen=True)
 class Panel:
     """Rectangular panel, origin at its lower-left corner. Lengths mm."""
@@ -90,7 +112,7 @@ class CutoutSpec:
             if isinstance(v, Range):
                 out[k] = v
             elif isinstance(v, (list, tuple)):
-                out.update({f"{k}[{i}]": r for i, r in enumerate(v) if isinstance(r, Range)})
+                out.update({flat_name(k, i): r for i, r in enumerate(v) if isinstance(r, Range)})
         return out
 
     def build(self, overrides: dict[str, Any] | None = None):
@@ -522,9 +544,7 @@ def check_cutout_in_panel(cutout, panel: Panel) -> None:
     if not poly.is_valid:
         raise GeometryError(f"cutout ({cutout.family}, {cutout.parameters()}) crosses itself; "
                             "the outline must be a simple closed curve")
-    x0, y0, x1, y1 = cutout.bounds
-    gaps = {"left": x0, "bottom": y0, "right": panel.width - x1, "top": panel.height - y1}
-    edge, gap = min(gaps.items(), key=lambda kv: kv[1])
+    edge, gap = min(cutout.edge_gaps(panel.width, panel.height).items(), key=lambda kv: kv[1])
     if gap <= 0:
         raise GeometryError(
             f"cutout.center {list(cutout.center)} puts the {cutout.family} outside or across the {edge} panel edge"

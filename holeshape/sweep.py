@@ -12,7 +12,7 @@ from pathlib import Path
 import numpy as np
 
 from holeshape.errors import GeometryError, HoleshapeError, StudyError
-from holeshape.study import Range, load_study
+from holeshape.study import Range, flat_name, load_study, set_flat, split_flat_name
 
 MAX_POINTS = 400
 
@@ -63,7 +63,7 @@ def run_sweep(study_path: str, out: str, vary_texts: list[str]) -> dict:
     study = load_study(study_path)
     base = _base_values(study)
     allowed = [k for k, v in base.items() if isinstance(v, (int, float)) and not isinstance(v, bool)]
-    allowed += [f"{k}[{i}]" for k, v in base.items() if isinstance(v, list) for i in range(len(v))]
+    allowed += [flat_name(k, i) for k, v in base.items() if isinstance(v, list) for i in range(len(v))]
     if not 1 <= len(vary_texts) <= 2:
         raise StudyError(f"give one or two --vary options, got {len(vary_texts)}")
     varies = [parse_vary(t, allowed) for t in vary_texts]
@@ -73,7 +73,7 @@ def run_sweep(study_path: str, out: str, vary_texts: list[str]) -> dict:
         raise StudyError(f"--vary gives {int(np.prod([v.n for v in varies]))} points; at most {MAX_POINTS}")
     for k, v in base.items():
         if v is None or (isinstance(v, list) and any(x is None for x in v)):
-            if k not in [x.name.split("[")[0] for x in varies]:
+            if k not in [split_flat_name(x.name)[0] for x in varies]:
                 raise StudyError(f"cutout.{k} is a range without a value; give value = ... or vary it")
     out_dir = Path(out)
     out_dir.mkdir(parents=True, exist_ok=True)
@@ -86,11 +86,7 @@ def run_sweep(study_path: str, out: str, vary_texts: list[str]) -> dict:
         for vary, g, i in zip(varies, grids, idx):
             x = float(g[i])
             coords[vary.name] = x
-            if "[" in vary.name:
-                key, j = vary.name[:-1].split("[")
-                vals[key][int(j)] = x
-            else:
-                vals[vary.name] = x
+            set_flat(vals, vary.name, x)
         row = {"coords": coords, "feasible": False}
         try:
             cut = study.cutout.build(vals)

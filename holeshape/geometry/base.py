@@ -191,6 +191,12 @@ class Cutout:
         p = self.sampling.points
         return float(p[0].min()), float(p[1].min()), float(p[0].max()), float(p[1].max())
 
+    def edge_gaps(self, width: float, height: float) -> dict[str, float]:
+        """Distance (mm) from the outline to each edge of a ``width`` x ``height`` panel with its origin at the
+        lower-left corner: left, bottom, right, top (negative where the outline crosses the edge)."""
+        x0, y0, x1, y1 = self.bounds
+        return {"left": x0, "bottom": y0, "right": width - x1, "top": height - y1}
+
     def polygon(self, n: int = 720) -> np.ndarray:
         """(n, 2) points evenly spaced in arc length, counter-clockwise, panel coordinates."""
         return self.sampling.even_points(n).T

@@ -131,7 +131,8 @@ def write_vtk(path: Path, fields, load_case_names: list[str]) -> Path:
     atomically."""
     import meshio
 
-    from holeshape.output.plots import _mirrored_triangulation, vertex_stress
+    from holeshape.output.plots import mirrored_triangulation, vertex_stress
+    from holeshape.solve import von_mises
 
     vs = vertex_stress(fields)  # (3, nv, m)
     nv = fields.panel_mesh.mesh.nvertices
@@ -140,9 +141,9 @@ def write_vtk(path: Path, fields, load_case_names: list[str]) -> Path:
     for j, name in enumerate(load_case_names):
         key = safe_name(name, f"case{j}")
         sxx, syy, sxy = vs[:, :, j]
-        vm = np.sqrt(np.maximum(sxx**2 - sxx * syy + syy**2 + 3 * sxy**2, 0))
+        vm = von_mises(sxx, syy, sxy)
         for label, v in (("sxx", sxx), ("syy", syy), ("sxy", sxy), ("von_mises", vm)):
-            p, t, vals = _mirrored_triangulation(fields, v[:nv], odd=label == "sxy")
+            p, t, vals = mirrored_triangulation(fields, v[:nv], odd=label == "sxy")
             data[f"{key}_{label}_MPa"] = vals
     pts = np.column_stack([p.T, np.zeros(p.shape[1])])
     tmp = path.with_name(f".{path.stem}.tmp{path.suffix}")

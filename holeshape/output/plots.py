@@ -10,15 +10,15 @@ from pathlib import Path
 import numpy as np
 
 from holeshape.evaluate import STRESS_LABELS, Evaluation, EvaluationFields, measure_values
+from holeshape.solve import principal_stresses, von_mises
 
 PLOT_CAUTION = ("holeshape: linear-elastic plane stress, linear buckling only where stated; no fatigue or fracture "
                 "assessment; review by a qualified engineer; applicable codes govern")
 
 
-def _mpl():
-    import matplotlib
-
-    matplotlib.use("Agg")
+def pyplot():
+    """matplotlib's pyplot, imported on first use. The backend is the caller's choice (the command line sets the
+    non-interactive one); figures are always closed after saving, so nothing is shown."""
     import matplotlib.pyplot as plt
 
     return plt
@@ -59,7 +59,7 @@ def vertex_stress(fields: EvaluationFields) -> np.ndarray:
     return out / count[None, :, None]
 
 
-def _mirrored_triangulation(fields: EvaluationFields, values: np.ndarray, odd: bool = False):
+def mirrored_triangulation(fields: EvaluationFields, values: np.ndarray, odd: bool = False):
     """Triangles and values of the whole panel from a reduced model (for display). ``odd``: the value changes sign
     in a mirror image (the shear stress sxy)."""
     mesh, region = fields.panel_mesh.mesh, fields.panel_mesh.region
@@ -76,10 +76,9 @@ def _mirrored_triangulation(fields: EvaluationFields, values: np.ndarray, odd: b
 
 
 def field_values(stress: np.ndarray, measure: str, tangent_free: bool = False) -> np.ndarray:
-    sxx, syy, sxy = stress
     if measure == "von_mises":
-        return np.sqrt(np.maximum(sxx**2 - sxx * syy + syy**2 + 3 * sxy**2, 0))
-    return 0.5 * (sxx + syy) + np.hypot(0.5 * (sxx - syy), sxy)
+        return von_mises(*stress)
+    return principal_stresses(*stress)[0]
 
 
 def _warn(fig, ev: Evaluation) -> None:
@@ -91,11 +90,11 @@ def _warn(fig, ev: Evaluation) -> None:
 
 def plot_stress_field(path: Path, ev: Evaluation, fields: EvaluationFields, cutout_xy: np.ndarray,
                       case_index: int, panel_size: tuple[float, float], title: str) -> Path:
-    plt = _mpl()
+    plt = pyplot()
     measure = ev.stress_measure if ev.stress_measure != "hoop" else "von_mises"
     vs = vertex_stress(fields)[:, :, case_index]
     vals = field_values(vs, measure)
-    p, t, v = _mirrored_triangulation(fields, vals)
+    p, t, v = mirrored_triangulation(fields, vals)
     fig, ax = plt.subplots(figsize=(8, 8 * panel_size[1] / panel_size[0] + 0.8))
     top = max(float(np.percentile(v, 99.9)), ev.load_cases[case_index].peak_stress_mpa)
     tpc = ax.tripcolor(p[0], p[1], t.T, v, shading="gouraud", cmap="viridis", vmin=0, vmax=top)
@@ -119,7 +118,7 @@ def plot_stress_field(path: Path, ev: Evaluation, fields: EvaluationFields, cuto
 
 def plot_boundary_stress(path: Path, ev: Evaluation, fields: EvaluationFields, allowable: float | None,
                          title: str) -> Path:
-    plt = _mpl()
+    plt = pyplot()
     bs = fields.boundary
     vals = measure_values(bs, ev.stress_measure)
     fig, ax = plt.subplots(figsize=(9, 4.8))
@@ -141,7 +140,7 @@ def plot_boundary_stress(path: Path, ev: Evaluation, fields: EvaluationFields, a
 
 def plot_mesh(path: Path, fields: EvaluationFields, cutout_bounds: tuple[float, float, float, float],
               title: str) -> Path:
-    plt = _mpl()
+    plt = pyplot()
     mesh = fields.panel_mesh.mesh
     x0, y0, x1, y1 = cutout_bounds
     pad = 0.35 * max(x1 - x0, y1 - y0)
@@ -166,7 +165,7 @@ def plot_mesh(path: Path, fields: EvaluationFields, cutout_bounds: tuple[float, 
 def plot_buckling_mode(path: Path, stability, fields, cutout_xy: np.ndarray, panel, title: str) -> Path:
     """Out-of-plane deflection contours of the lowest buckling mode(s) of the governing load case (largest
     deflection scaled to 1), cutout drawn, panel edges labelled with their support."""
-    plt = _mpl()
+    plt = pyplot()
     gov = stability.governing
     names = [c.name for c in stability.cases]
     j = names.index(gov.name) if gov is not None else 0

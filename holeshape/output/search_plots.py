@@ -7,7 +7,7 @@ from pathlib import Path
 
 import numpy as np
 
-from holeshape.output.plots import _mpl, save
+from holeshape.output.plots import pyplot, save
 
 
 def plot_history(path: Path, trials, title: str, goal: str = "lowest_peak") -> Path:
@@ -15,7 +15,7 @@ def plot_history(path: Path, trials, title: str, goal: str = "lowest_peak") -> P
     ``goal = "largest_opening"`` the removed area (the best so far is the largest)."""
     from optuna.trial import TrialState
 
-    plt = _mpl()
+    plt = pyplot()
     fig, ax = plt.subplots(figsize=(8, 4.6))
     sign = 1.0 if goal == "lowest_peak" else -1.0  # the study stores minus the area for the largest opening
     feas = [(t.number, sign * t.values[0]) for t in trials if t.state == TrialState.COMPLETE
@@ -52,7 +52,7 @@ def plot_history(path: Path, trials, title: str, goal: str = "lowest_peak") -> P
 
 def plot_shapes(path: Path, best, baselines, panel, constraints, title: str, best_peak: float,
                 base_peaks: dict) -> Path:
-    plt = _mpl()
+    plt = pyplot()
     fig, ax = plt.subplots(figsize=(8, 8 * panel.height / panel.width + 0.8))
     ax.plot([0, panel.width, panel.width, 0, 0], [0, 0, panel.height, panel.height, 0], color="black", lw=1.2)
     styles = ["--", "-.", ":"]
@@ -87,7 +87,7 @@ def _finish_plan(fig, ax, path: Path, title: str) -> Path:
 def plot_front(path: Path, trials, front: list[dict], title: str) -> Path:
     from optuna.trial import TrialState
 
-    plt = _mpl()
+    plt = pyplot()
     fig, ax = plt.subplots(figsize=(8, 4.8))
     pts = [(t.values[1], t.values[0]) for t in trials if t.state == TrialState.COMPLETE
            and t.user_attrs.get("feasible") and all(v <= 0 for v in t.constraints.values())]
@@ -114,7 +114,7 @@ def plot_front(path: Path, trials, front: list[dict], title: str) -> Path:
 
 def plot_family_overlay(path: Path, study, run_dir: Path, ranked: list[dict]) -> Path:
     """Every family's best outline in one figure, from their written profiles (mm)."""
-    plt = _mpl()
+    plt = pyplot()
     panel = study.panel
     fig, ax = plt.subplots(figsize=(8, 8 * panel.height / panel.width + 0.8))
     ax.plot([0, panel.width, panel.width, 0, 0], [0, 0, panel.height, panel.height, 0], color="black", lw=1.2)
@@ -141,7 +141,7 @@ def _label(name: str) -> str:
 
 def plot_sweep(path: Path, result: dict, allowable: float | None) -> Path:
     """1-D: peak stress, Kt and removed area against the varied parameter; 2-D: a map of the peak stress."""
-    plt = _mpl()
+    plt = pyplot()
     pts = result["points"]
     vary = result["vary"]
     solved = [p for p in pts if p.get("solved")]

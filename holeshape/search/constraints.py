@@ -22,8 +22,7 @@ def outline_polygon(cutout: Cutout, n: int = 720):
 
 def edge_gaps(cutout: Cutout, panel: Panel) -> dict[str, float]:
     """Distance (mm) from the outline to each panel edge (negative when it crosses the edge)."""
-    x0, y0, x1, y1 = cutout.bounds
-    return {"left": x0, "bottom": y0, "right": panel.width - x1, "top": panel.height - y1}
+    return cutout.edge_gaps(panel.width, panel.height)
 
 
 def access_margin(cutout: Cutout, cons: Constraints, poly=None) -> float:

@@ -12,20 +12,20 @@ import hashlib
 import logging
 import math
 import time
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from pathlib import Path
 
 import numpy as np
 
-from holeshape.errors import GeometryError, HoleshapeError, StudyError
+from holeshape.errors import GeometryError, HoleshapeError, StorageError
 from holeshape.search.constraints import constraint_values, solved_constraint_values
 from holeshape.search.space import DesignSpace
-from holeshape.study import Measure, Study, load_study
+from holeshape.study import ACCURACIES, Measure, Study, load_study, split_flat_name
 
 log = logging.getLogger("holeshape.search")
 
 INFEASIBLE_VALUE = 1.0e9  # objective recorded for infeasible designs (never solved); samplers rank them by constraints
-SEARCH_ACCURACY = "draft"
+SEARCH_ACCURACY = ACCURACIES[0]  # trials are screened at the coarsest level
 TRIAL_TIME_LIMIT_S = 60.0  # per evaluation in a search; a design that needs longer is recorded as failed
 
 
@@ -35,7 +35,8 @@ def study_fingerprint(path: str | Path) -> str:
 
 def storage_for(out_dir: Path, url: str | None):
     """Optuna storage: a journal file in the output folder (robust for several processes on one machine) or the
-    database at ``url`` (PostgreSQL for several machines; heartbeats retry trials of a worker that died)."""
+    database at ``url`` (PostgreSQL for several machines). A trial left running by a worker that died is ignored
+    by the budget after STALE_AFTER_S (ask/tell studies get no heartbeat retry)."""
     import optuna
 
     if url:
@@ -50,7 +51,7 @@ def storage_for(out_dir: Path, url: str | None):
                     break
                 time.sleep(0.3 * (attempt + 1))
         msg = " ".join(str(last).split())[:300]
-        raise StudyError(f"--storage {url!r} cannot be opened: {type(last).__name__}: {msg}") from last
+        raise StorageError(f"--storage {url!r} cannot be opened: {type(last).__name__}: {msg}") from last
     from optuna.storages.journal import JournalFileBackend, JournalFileOpenLock
 
     path = out_dir / "study.journal"
@@ -75,6 +76,7 @@ class Objective:
     study: Study
     space: DesignSpace
     trade_off: bool = False
+    cache: dict = field(default_factory=dict, compare=False, hash=False)  # shared results of this run
 
     def __call__(self, params: dict[str, float]) -> dict:
         from holeshape.evaluate import evaluate
@@ -99,11 +101,12 @@ class Objective:
         try:
             ev = evaluate(study.panel, study.material, study.load_cases, cutout,
                           Measure(study.measure.stress, SEARCH_ACCURACY), time_limit_s=TRIAL_TIME_LIMIT_S,
-                          stability=search_stability(study))
-        except Exception as err:  # noqa: BLE001 - a failed design must never stop the study; its reason is kept
-            kind = "" if isinstance(err, HoleshapeError) else " (unexpected)"
+                          stability=search_stability(study), cache=self.cache)
+        except HoleshapeError as err:
+            # the project's own errors (mesh, solve, geometry) belong to the design: record it failed, with its
+            # reason, and go on; anything else is a bug and stops the study (see run_worker)
             rec["state"] = "failed"
-            rec["user_attrs"].update(feasible=True, failure=f"{type(err).__name__}{kind}: {' '.join(str(err).split())}")
+            rec["user_attrs"].update(feasible=True, failure=f"{type(err).__name__}: {' '.join(str(err).split())}")
             log.debug("trial failed", exc_info=True)
             return rec
         post, post_reasons = solved_constraint_values(ev, study.constraints)
@@ -245,10 +248,12 @@ def _penalised(rec: dict, reference: float) -> float:
 
 def run_worker(study_path: str, storage_url: str | None, out_dir: str, study_name: str, worker: int,
                trade_off: bool, on_trial=None) -> None:
-    """One search process: asks, evaluates and records trials until the study holds ``trials`` finished ones."""
-    import optuna
+    """One search process: asks, evaluates and records trials until the study holds ``trials`` finished ones.
 
-    optuna.logging.set_verbosity(optuna.logging.WARNING)
+    Raises whatever is not one of the project's own errors (a bug), after giving back the trial in hand."""
+    import optuna
+    from optuna.trial import TrialState
+
     study_def = load_study(study_path)
     space = DesignSpace(study_def.cutout, study_def.constraints)
     storage, _ = storage_for(Path(out_dir), storage_url)
@@ -276,7 +281,14 @@ def run_worker(study_path: str, storage_url: str | None, out_dir: str, study_nam
             return
         if trade_off or done < n_global or len(dists) == 0 or best_feasible(study) is None:
             trial = study.ask(dists)
-            rec = objective(trial.params)
+            try:
+                rec = objective(trial.params)
+            except BaseException:
+                # a bug or Ctrl-C: the trial is given back (not counted, re-run on resume); every completed trial is
+                # already stored
+                trial.set_user_attr("failure", "interrupted: the evaluation stopped on an unexpected error")
+                study.tell(trial, state=TrialState.FAIL)
+                raise
             with gate:
                 if len(finished(study)) >= settings.trials:
                     rec = {"state": "failed", "constraints": {}, "user_attrs": {"failure": OVER_BUDGET}}
@@ -306,6 +318,34 @@ def run_worker(study_path: str, storage_url: str | None, out_dir: str, study_nam
             reference = min(reference, rec["value"])
 
 
+WORKER_BUG_EXIT = 70  # a worker process stopped on an error that is not one of the project's own
+
+
+def worker_error_path(out_dir: str | Path, worker: int) -> Path:
+    return Path(out_dir) / f".holeshape.worker-{worker}.error"
+
+
+def worker_process(study_path: str, storage_url: str | None, out_dir: str, study_name: str, worker: int,
+                   trade_off: bool) -> None:
+    """Entry point of a spawned worker process: quiet Optuna logging in this process of our own, then
+    :func:`run_worker`; an error is written to :func:`worker_error_path` for the parent to report."""
+    import sys
+    import traceback
+
+    import optuna
+
+    optuna.logging.set_verbosity(optuna.logging.WARNING)
+    try:
+        run_worker(study_path, storage_url, out_dir, study_name, worker, trade_off)
+    except HoleshapeError as err:
+        worker_error_path(out_dir, worker).write_text(f"{type(err).__name__}: {err}")
+        sys.exit(3)
+    except Exception as err:  # noqa: BLE001 - handed to the parent, which stops the study as a bug
+        worker_error_path(out_dir, worker).write_text(
+            f"{type(err).__name__}: {err}\n{traceback.format_exc()}")
+        sys.exit(WORKER_BUG_EXIT)
+
+
 def local_dimensions(space: DesignSpace) -> list[str]:
     """The dimensions the simplex moves. With the area fixed every design is scaled to it, so one searched length
     is redundant (it only sets a scale that the area then undoes): it is held at the best design's value, which
@@ -314,7 +354,7 @@ def local_dimensions(space: DesignSpace) -> list[str]:
 
     names = list(space.dimensions)
     if space.constraints.area is not None:
-        lengths = [k for k in names if k.split("[")[0] in LENGTH_PARAMETERS]
+        lengths = [k for k in names if split_flat_name(k)[0] in LENGTH_PARAMETERS]
         if len(lengths) >= 2:
             names.remove(lengths[0])
     return names

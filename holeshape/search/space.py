@@ -8,7 +8,7 @@ from dataclasses import dataclass
 
 from holeshape.errors import StudyError
 from holeshape.geometry import Cutout
-from holeshape.study import Constraints, CutoutSpec, Range
+from holeshape.study import Constraints, CutoutSpec, Range, set_flat
 
 LENGTH_PARAMETERS = ("radius", "a", "b", "length", "width", "corner_radius", "radii")
 
@@ -61,11 +61,7 @@ class DesignSpace:
         """The full parameter set: fixed values of the study plus the searched ones."""
         vals = {k: (list(v) if isinstance(v, (list, tuple)) else v) for k, v in self.spec.values.items()}
         for name, v in params.items():
-            if "[" in name:
-                base, idx = name[:-1].split("[")
-                vals[base][int(idx)] = float(v)
-            else:
-                vals[name] = float(v)
+            set_flat(vals, name, float(v))
         return vals
 
     def decode(self, params: dict[str, float]) -> tuple[Cutout, dict]:
@@ -76,24 +72,27 @@ class DesignSpace:
         vals = self.values(params)
         cutout = self.spec.build(vals)
         if self.constraints.area is not None:
-            k = math.sqrt(self.constraints.area / cutout.area)
-            for key in LENGTH_PARAMETERS:
-                if key in vals:
-                    vals[key] = [r * k for r in vals[key]] if isinstance(vals[key], list) else vals[key] * k
+            vals.update(scaled_lengths(vals, math.sqrt(self.constraints.area / cutout.area)))
             cutout = self.spec.build(vals)
         return cutout, vals
+
+
+def scaled_lengths(values: dict, k: float) -> dict:
+    """The length parameters among ``values`` multiplied by ``k`` (lists and tuples element by element, keeping
+    their type): the one rule for scaling a design to an area."""
+    out = {}
+    for key in LENGTH_PARAMETERS:
+        if key in values:
+            v = values[key]
+            out[key] = type(v)(r * k for r in v) if isinstance(v, (list, tuple)) else v * k
+    return out
 
 
 def scaled_to_area(cutout: Cutout, area: float) -> Cutout:
     """The same outline scaled about its centre to ``area`` (mm^2)."""
     from dataclasses import fields, replace
 
-    k = math.sqrt(area / cutout.area)
-    changes = {}
-    for f in fields(cutout.shape):
-        if f.name in LENGTH_PARAMETERS:
-            v = getattr(cutout.shape, f.name)
-            changes[f.name] = tuple(r * k for r in v) if isinstance(v, tuple) else v * k
-    shape = replace(cutout.shape, **changes)
+    current = {f.name: getattr(cutout.shape, f.name) for f in fields(cutout.shape)}
+    shape = replace(cutout.shape, **scaled_lengths(current, math.sqrt(area / cutout.area)))
     shape.check()
     return replace(cutout, shape=shape)
