@@ -1,9 +1,10 @@
-"""Central circular hole in a strip under tension: Howland (1930) and the Chart 4.1 curve fit.
+"""Central circular hole in a strip under tension: Howland (1930) and the curve fit of Pilkey & Pilkey, Chart 4.1.
 
 Sources: Howland, Phil. Trans. R. Soc. A 229 (1930) 49-86 (gross-section Kt, infinitely long strip); curve fit
 from Pilkey & Pilkey, Peterson's Stress Concentration Factors, 3rd ed. (2008), Chart 4.1 (agrees with Howland to
 ~0.5 %). The strip is modelled 10 widths long, so the loaded ends are 5 widths from the hole.
-Tolerance 1 %: Howland's table is given to 3 figures and the issue's requirement is 1 %.
+Tolerance 1 %: Howland's table is given to 3 figures (up to 0.3 % in its last figure) and the curve fit agrees with
+it to ~0.5 %; the mesh error at standard is under 0.05 %.
 """
 
 import pytest

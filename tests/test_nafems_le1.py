@@ -3,7 +3,8 @@
 Source: The Standard NAFEMS Benchmarks, Rev. 3 (1990), test LE1: quarter of the region between the ellipses
 x^2/2^2 + y^2/1^2 = 1 and x^2/3.25^2 + y^2/2.75^2 = 1 (metres; modelled here in mm), E = 210 GPa, nu = 0.3,
 uniform outward pressure 10 MPa on the outer edge, symmetry on both axes. Target sigma_yy = 92.7 MPa at D = (2, 0).
-Tolerance 1 % (the issue's requirement; the published target is given to 3 figures).
+Tolerance 1 %: the published target is given to 3 figures, and the stress is read at a point (D) by the solve
+layer's own recovery on a coarse benchmark mesh, not by the refined peak search of the evaluation.
 """
 
 import numpy as np

@@ -96,8 +96,9 @@ def profile(out: Path) -> np.ndarray:
 def test_harmonic_hole_optimum(tmp_path, capsys):
     """Same-sign biaxial stress s1 = 100, s2 = 50 MPa: the best hole is the ellipse with a/b = s1/s2 = 2 and a
     uniform hoop stress s1 + s2 = 150 MPa (Bjorkman & Richards, J. Appl. Mech. 43 (1976) 414-418; from memory).
-    The circle of the same area gives Kirsch's 2.5 s1 = 250 MPa. Tolerance 1 % as the issue requires; a/b within
-    5 % (the valley is narrow: a/b +-2.5 % costs 2-3 %); exponent within 0.3 of 2."""
+    The circle of the same area gives Kirsch's 2.5 s1 = 250 MPa. Tolerance 1 %: 70 trials reach 0.2 % in the
+    benchmark, the fine-level mesh error is under 0.1 %, and the 8000 mm panel adds ~0.01 %; a/b within 5 % (the
+    valley is narrow: a/b +-2.5 % costs 2-3 %); exponent within 0.3 of 2."""
     d = optimise(capsys, write(tmp_path, HARMONIC, TRIALS=70), tmp_path / "run")
     best = d["best"]
     assert best["peak_stress_mpa"] == pytest.approx(150.0, rel=0.01)
@@ -156,7 +157,8 @@ def test_dxf_round_trip_and_json_contract(tmp_path, capsys):
     assert len(lines) == 1 and lines[0].closed
     x, y = np.array([p[:2] for p in lines[0].get_points()]).T
     area = 0.5 * abs(np.sum(x * np.roll(y, -1) - np.roll(x, -1) * y))
-    assert area == pytest.approx(d["best"]["area_mm2"], rel=1e-3)  # 0.1 % as the issue requires
+    # 0.1 %: a polyline with a chord error of at most 0.01 mm on a ~100 mm outline loses far less area than that
+    assert area == pytest.approx(d["best"]["area_mm2"], rel=1e-3)
     for f in ("best.csv", "summary.json", "search_history.png", "best_shape.png", "best_stress_field.png",
               "best_boundary_stress.png"):
         assert (tmp_path / "run" / f).stat().st_size > 0
