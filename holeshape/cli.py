@@ -151,7 +151,7 @@ def _check(args) -> int:
     out = evaluate(study.panel, study.material, study.load_cases, cutout, measure, keep_fields=want_fields,
                    stability=study.stability)
     ev, fields = out if want_fields else (out, None)
-    from holeshape.search.constraints import requirement_rows
+    from holeshape.search.constraints import requirement_rows, verdict
 
     requirements = requirement_rows(ev, cutout, study.panel, study.constraints, study.material)
     plots: list[str] = []
@@ -175,6 +175,9 @@ def _check(args) -> int:
         d.update({"title": study.title, "shape": cutout.family, "params": cutout.parameters(),
                   "holeshape_version": __version__, "plots": plots, "cautions": cautions(ev.stability is not None),
                   "requirements": requirements, "meets_every_requirement": all(r["met"] for r in requirements)})
+        d.update(verdict(requirements))
+        for c in d["load_cases"]:
+            c.update(verdict(requirements, c["name"]))
         print(json.dumps(d, indent=2))
     else:
         from holeshape.output.text import check_summary

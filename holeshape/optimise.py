@@ -17,7 +17,7 @@ from holeshape import __version__, cautions
 from holeshape.errors import SearchError, StorageError, StudyError
 from holeshape.evaluate import evaluate
 from holeshape.search.baselines import standard_shapes
-from holeshape.search.constraints import edge_gaps, requirement_rows, solved_constraint_values
+from holeshape.search.constraints import edge_gaps, requirement_rows, solved_constraint_values, verdict
 from holeshape.search.runner import (
     SEARCH_ACCURACY,
     WORKER_BUG_EXIT,
@@ -395,7 +395,11 @@ def _finish(study_def, study, space, baselines, out_dir: Path, storage_name: str
         "elapsed_s": time.perf_counter() - t0, "plots": [str(p) for p in plot_paths],
         "holeshape_version": __version__, "cautions": cautions(ev.stability is not None),
     }
-    summary["best"]["meets_every_requirement"] = all(r["met"] for r in summary["best"]["requirements"])
+    reqs = summary["best"]["requirements"]
+    summary["best"]["meets_every_requirement"] = all(r["met"] for r in reqs)
+    summary["best"].update(verdict(reqs))
+    for row in summary["best"]["load_cases"]:
+        row.update(verdict(reqs, row["name"]))
     if trade_off:
         summary["front"] = _front(study, space, study_def, out_dir)
         plot_paths.append(search_plots.plot_front(out_dir / "trade_off_front.png", trials, summary["front"],

@@ -74,6 +74,8 @@ def test_report_renders_in_a_real_browser(run_dir, tmp_path):
     assert 'data-loaded="no"' not in dom
     for section in SECTIONS:
         assert section in dom
+    rendered = _visible_text(dom)
+    assert "{" not in rendered and "null" not in rendered  # no raw JSON text in the rendered page
     shot = tmp_path / "report.png"
     _headless(browser, tmp_path / "p2", f"--screenshot={shot}", "--window-size=1200,3000", url)
     assert shot.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n" and shot.stat().st_size > 20_000
@@ -128,3 +130,44 @@ def test_sweep_one_and_two_parameters(tmp_path, capsys):
     assert len(json.loads((tmp_path / "s2" / "sweep.json").read_text())["points"]) == 4
     assert main(["sweep", str(study), "--vary", "q=1:2:3", "--out", str(tmp_path / "s3")]) == 2
     assert "not a parameter of this cutout" in capsys.readouterr().err
+
+
+@pytest.mark.parametrize("mask", [0o022, 0o027])
+def test_output_files_get_the_users_normal_permissions(tmp_path, mask):
+    # a colleague must be able to open the profile the tool was run to produce: the mode a plain open() gives
+    import os
+
+    from holeshape.output.files import atomic_write
+
+    old = os.umask(mask)
+    try:
+        atomic_write(tmp_path / "best.dxf", "0\nEOF\n")
+        (tmp_path / "plain.txt").write_text("x")
+    finally:
+        os.umask(old)
+    mode = (tmp_path / "best.dxf").stat().st_mode & 0o777
+    assert mode == 0o666 & ~mask == (tmp_path / "plain.txt").stat().st_mode & 0o777
+
+
+def test_run_folder_files_are_readable_by_others(run_dir):
+    import os
+
+    mask = os.umask(0o022)
+    os.umask(mask)
+    for name in ("best.dxf", "best.csv", "summary.json", "report.html", "best_stress_field.png"):
+        assert (run_dir / name).stat().st_mode & 0o777 == 0o666 & ~mask, name
+
+
+def _visible_text(page: str) -> str:
+    """The text a reader sees: scripts, styles and tags (with their attributes, image data included) removed."""
+    page = re.sub(r"<(script|style)\b.*?</\1>", " ", page, flags=re.S)
+    return re.sub(r"<[^>]+>", " ", page)
+
+
+def test_report_reads_like_a_design_note(run_dir):
+    text = _visible_text((run_dir / "report.html").read_text())
+    assert "{" not in text and "}" not in text and "null" not in text and "None" not in text  # no raw JSON
+    assert text.count("qualified engineer") == 1  # the cautions once
+    assert "Verdict:" in text.split("The job")[0]  # the one-screen summary comes first
+    # stresses to 0.1 MPa, no long decimal tails anywhere
+    assert not re.search(r"\d\.\d{5,}", text)

@@ -26,7 +26,24 @@ def safe_name(text: str, fallback: str = "design") -> str:
     return s or fallback
 
 
+def user_file_mode() -> int:
+    """The permissions a plain ``open()`` would give a new file: 0o666 less the process's umask (read without
+    changing it: Linux reports it in /proc; elsewhere it is set and restored at once)."""
+    try:
+        with open("/proc/self/status") as fh:
+            for line in fh:
+                if line.startswith("Umask:"):
+                    return 0o666 & ~int(line.split()[1], 8)
+    except OSError:
+        pass
+    mask = os.umask(0o022)
+    os.umask(mask)
+    return 0o666 & ~mask
+
+
 def atomic_write(path: Path, data: bytes | str) -> Path:
+    """Write ``data`` to ``path`` through a temporary file in the same folder and a rename, so a killed run never
+    leaves half a file; the file gets the user's normal permissions (the temporary file's 0600 is not kept)."""
     path = Path(path)
     fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", dir=path.parent)
     try:
@@ -34,6 +51,7 @@ def atomic_write(path: Path, data: bytes | str) -> Path:
             fh.write(data.encode() if isinstance(data, str) else data)
             fh.flush()
             os.fsync(fh.fileno())
+        os.chmod(tmp, user_file_mode())
         os.replace(tmp, path)
     except BaseException:
         if os.path.exists(tmp):

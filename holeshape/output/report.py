@@ -7,6 +7,7 @@ from __future__ import annotations
 import base64
 import html
 import json
+import math
 from pathlib import Path
 
 from holeshape.output.files import atomic_write
@@ -22,11 +23,12 @@ JOB = ("This report records how a cutout in a thin loaded panel was chosen: the 
        "compared with the standard shapes a handbook would offer, and checked with a mesh-convergence estimate and "
        "against published solutions computed by the same pipeline.")
 
-CSS = """body{font-family:Helvetica,Arial,sans-serif;max-width:60em;margin:2em auto;color:#111;line-height:1.4}
+CSS = """body{font-family:sans-serif;max-width:60em;margin:2em auto;color:#111;line-height:1.4}
 h1{font-size:1.6em}h2{font-size:1.25em;border-bottom:1px solid #888;margin-top:1.6em}
 table{border-collapse:collapse;margin:.6em 0}td,th{border:1px solid #999;padding:.25em .6em;text-align:left}
 th{background:#eee}img{max-width:100%;border:1px solid #ccc;margin:.4em 0}.warn{color:#a00;font-weight:bold}
-.caution{border:2px solid #333;padding:.6em 1em}@media print{h2{page-break-after:avoid}img{page-break-inside:avoid}}"""
+.caution{border:2px solid #333;padding:.6em 1em}.summary{border:2px solid #333;padding:.2em 1em;margin:1em 0}
+.pass{color:#060;font-weight:bold}@media print{h2{page-break-after:avoid}img{page-break-inside:avoid}}"""
 
 
 # marks every image once the page has loaded, so a headless browser's DOM dump shows whether each one decoded
@@ -35,27 +37,96 @@ LOAD_CHECK = ("<script>window.addEventListener('load',function(){var n=0;documen
               "if(ok){n++;}});document.body.setAttribute('data-images-loaded',String(n));});</script>")
 
 
+def sig(v: float, figures: int = 2) -> str:
+    """``v`` to ``figures`` significant figures, without exponent notation for the sizes a report shows."""
+    if v == 0 or not math.isfinite(v):
+        return f"{v:g}"
+    digits = max(0, figures - 1 - int(math.floor(math.log10(abs(v)))))
+    return f"{v:.{digits}f}"
+
+
+def fmt(key: str, v) -> str:
+    """One value for people, by what it is (the key's unit suffix): stresses to 0.1 MPa, percentages to 2
+    significant figures, lengths to 0.1 mm, areas to 1 mm^2, factors and Kt to 3 decimals."""
+    if v is None:
+        return "-"
+    if isinstance(v, bool):
+        return "yes" if v else "NO"
+    if isinstance(v, int):
+        return str(v)
+    if not isinstance(v, float):
+        return str(v)
+    if key.endswith("_pct") or key in ("error_pct", "tolerance_pct"):
+        return sig(v, 2)
+    if key.endswith("_mpa") or key in ("published", "holeshape", "youngs_modulus", "allowable_stress", "sigma_x",
+                                       "sigma_y", "tau_xy"):
+        return f"{v:.1f}"
+    if key.endswith("_mm2"):
+        return f"{v:.0f}"
+    if key.endswith("_mm") or key in ("width", "height", "thickness"):
+        return f"{v:.1f}"
+    if key in ("margin_of_safety",):
+        return f"{v:+.3f}"
+    if key in ("kt",) or "factor" in key or "reserve" in key:
+        return f"{v:.3f}"
+    return f"{v:.4g}"
+
+
 def _table(rows: list[dict], cols: list[tuple[str, str]], md: bool) -> str:
-    def cell(v):
-        if isinstance(v, float):
-            return f"{v:.6g}" if abs(v) >= 1000 else f"{v:.4g}"
-        if isinstance(v, bool):
-            return "yes" if v else "NO"
-        return "-" if v is None else str(v)
+    def cell_of(r, k):
+        return fmt(k, r.get(k))
 
     if md:
         head = "| " + " | ".join(t for _, t in cols) + " |\n|" + "---|" * len(cols) + "\n"
-        return head + "\n".join("| " + " | ".join(cell(r.get(k)) for k, _ in cols) + " |" for r in rows) + "\n"
+        return head + "\n".join("| " + " | ".join(cell_of(r, k) for k, _ in cols) + " |" for r in rows) + "\n"
     out = "<table><tr>" + "".join(f"<th>{html.escape(t)}</th>" for _, t in cols) + "</tr>"
     for r in rows:
-        out += "<tr>" + "".join(f"<td>{html.escape(cell(r.get(k)))}</td>" for k, _ in cols) + "</tr>"
+        out += "<tr>" + "".join(f"<td>{html.escape(cell_of(r, k))}</td>" for k, _ in cols) + "</tr>"
     return out + "</table>"
 
 
-def _round(v):
-    if isinstance(v, list):
-        return "[" + ", ".join(_round(x) for x in v) + "]"
-    return f"{v:.3f}".rstrip("0").rstrip(".") if isinstance(v, float) else str(v)
+LENGTH_KEYS = ("radius", "a", "b", "length", "width", "corner_radius", "radii", "center")
+
+
+def describe_params(params: dict) -> str:
+    """Shape parameters for people: lengths to 0.1 mm, angles to 0.1 degree, the exponent to 3 figures."""
+    def one(k, v):
+        if isinstance(v, list):
+            return "(" + ", ".join(one(k, x) for x in v) + ")"
+        if not isinstance(v, (int, float)) or isinstance(v, bool):
+            return str(v)
+        if k == "rotation":
+            return f"{v:.1f} deg"
+        if k == "exponent":
+            return f"{v:.2f}"
+        return f"{v:.1f} mm" if k in LENGTH_KEYS and k != "center" else f"{v:.1f}"
+    return ", ".join(f"{k.replace('_', ' ')} {one(k, v)}" + (" mm" if k == "center" else "")
+                     for k, v in params.items())
+
+
+def describe_constraints(cons: dict) -> list[dict]:
+    """The study's constraints as labelled rows (requirement, value with its unit)."""
+    rows = []
+    labels = {"min_area": ("removed area at least", "mm^2"), "max_area": ("removed area at most", "mm^2"),
+              "area": ("removed area exactly", "mm^2"), "clearance": ("clearance round the access envelope", "mm"),
+              "min_ligament": ("ligament to every panel edge at least", "mm"),
+              "min_radius": ("smallest radius of the outline at least", "mm"),
+              "min_margin": ("margin of safety at least", ""), "min_buckling_factor": ("buckling factor at least", "")}
+    acc = cons.get("access")
+    if acc:
+        where = ("centred on the cutout" if acc.get("center") is None
+                 else f"centred at ({acc['center'][0]:.1f}, {acc['center'][1]:.1f}) mm")
+        size = (f"circle of diameter {acc['diameter']:.1f} mm" if acc.get("diameter") is not None
+                else f"{acc['width']:.1f} x {acc['height']:.1f} mm rectangle")
+        rot = f", turned {acc['rotation']:.1f} deg" if acc.get("rotation") else ""
+        rows.append({"constraint": "access envelope the opening must contain", "value": f"{size}, {where}{rot}"})
+    for k, (label, unit) in labels.items():
+        v = cons.get(k)
+        if v is None or (k == "clearance" and not v):
+            continue
+        shown = f"{v:+.2f}" if k == "min_margin" else (f"{v:.0f}" if unit == "mm^2" else f"{v:g}")
+        rows.append({"constraint": label, "value": f"{shown} {unit}".strip()})
+    return rows
 
 
 def _factor(f) -> str:
@@ -66,6 +137,59 @@ def _shown(v) -> str:
     if v is None:
         return "does not buckle"
     return f"{v:.4g}" if isinstance(v, float) else str(v)
+
+
+def req_value(r: dict) -> str:
+    """A requirement row's value for people, by its kind."""
+    v, kind = r["value"], r.get("kind", "geometry")
+    if v is None:
+        return "does not buckle"
+    if not isinstance(v, (int, float)):
+        return str(v)
+    if kind == "margin":
+        return f"{v:+.3f}"
+    if kind == "buckling":
+        return f"{v:.3f}"
+    if kind == "accuracy":
+        return sig(v, 2)
+    return f"{v:.0f}" if "mm^2" in r["requirement"] else f"{v:.1f}"
+
+
+def _advice(failed: list[dict]) -> list[str]:
+    from holeshape.search.constraints import ADVICE
+
+    return [ADVICE[k] for k in dict.fromkeys(r.get("kind", "geometry") for r in failed)]
+
+
+def _summary_box(b: dict, summary: dict, md: bool) -> str:
+    """The one-screen summary at the top: the verdict, the shape, peak, margin and buckling per case, the DXF."""
+    reqs = b.get("requirements", [])
+    failed = [r for r in reqs if not r["met"]]
+    if not reqs:
+        head = "No requirements were set beyond the geometry of the search."
+    elif failed:
+        head = (f"FAILS {len(failed)} of {len(reqs)} requirements: "
+                + "; ".join(f"{r['requirement']} {req_value(r)} (required {r['limit']})" for r in failed))
+    else:
+        head = f"Meets every requirement of the study ({len(reqs)} checked at the {b['accuracy']} level)."
+    rows = [{"name": c["name"], "peak_stress_mpa": c["peak_stress_mpa"], "margin_of_safety": c["margin_of_safety"],
+             "buckling_load_factor": c.get("buckling_load_factor"), "verdict": c.get("verdict", "-")}
+            for c in b["load_cases"]]
+    cols = [("name", "load case"), ("peak_stress_mpa", "peak (MPa)"), ("margin_of_safety", "margin of safety")]
+    if b.get("stability") is not None:
+        cols.append(("buckling_load_factor", "buckling factor"))
+    cols.append(("verdict", "verdict"))
+    shape = f"{b['shape'].replace('_', ' ')}: {describe_params(b['params'])}"
+    goal = ("largest opening within every constraint" if summary.get("goal") == "largest_opening"
+            else "lowest peak stress within every constraint")
+    lines = [f"Verdict: {head}", f"Shape ({goal}): {shape}; removed area {b['area_mm2']:.0f} mm^2.",
+             f"Profile for CAD: {Path(b['dxf']).name}."]
+    if md:
+        return "\n" + "\n\n".join(f"**{t}**" if i == 0 else t for i, t in enumerate(lines)) + "\n\n" + \
+            _table(rows, cols, md)
+    cls = "warn" if failed else "pass"
+    return (f'<div class="summary"><p class="{cls}">{html.escape(lines[0])}</p>'
+            + "".join(f"<p>{html.escape(t)}</p>" for t in lines[1:]) + _table(rows, cols, md) + "</div>")
 
 
 def build_report(run_dir: str | Path, fmt: str = "html") -> Path:
@@ -105,6 +229,7 @@ def build_report(run_dir: str | Path, fmt: str = "html") -> Path:
     parts.append(f"# {title}: cutout design report\n" if md else f"<h1>{html.escape(title)}: cutout design report</h1>")
     para(f"holeshape {summary['holeshape_version']}; run folder {run}; generated from the stored results of the "
          f"run finished {inputs.get('finished', '')}.")
+    parts.append(_summary_box(b, summary, md))
     h2(SECTIONS[0])
     para(JOB)
     h2(SECTIONS[1])
@@ -115,26 +240,28 @@ def build_report(run_dir: str | Path, fmt: str = "html") -> Path:
                                                ("allowable_stress", "allowable (MPa)")], md))
     parts.append(_table(inputs["load_cases"], [("name", "load case"), ("sigma_x", "sigma_x (MPa)"),
                                                ("sigma_y", "sigma_y (MPa)"), ("tau_xy", "tau_xy (MPa)")], md))
-    cons = [{"constraint": k, "value": json.dumps(v) if isinstance(v, dict) else v}
-            for k, v in inputs["constraints"].items() if v not in (None, 0.0)]
-    parts.append(_table(cons, [("constraint", "constraint"), ("value", "value (mm, mm^2)")], md))
+    cons = describe_constraints(inputs["constraints"])
+    if cons:
+        parts.append(_table(cons, [("constraint", "requirement"), ("value", "value")], md))
     search = inputs.get("search", {})
     if search.get("goal") == "largest_opening":
         para("Goal: the largest removed area that meets every constraint (a weight-reduction study).")
     stab_in = inputs.get("stability")
     if stab_in:
-        parts.append(_table([stab_in], [("edge_support", "buckling: panel edge support"),
-                                        ("required_factor", "required buckling factor"),
-                                        ("modes", "mode shapes plotted")], md))
+        parts.append(_table([{**stab_in, "edge_support": stab_in["edge_support"].replace("_", " ")}],
+                            [("edge_support", "buckling: panel edge support"),
+                             ("required_factor", "required buckling factor"), ("modes", "mode shapes plotted")], md))
     h2(SECTIONS[2])
     x0, y0, x1, y1 = b["bounds_mm"]
-    dims = ", ".join(f"{k} = {_round(v)}" for k, v in b["params"].items())
-    para(f"Recommended: {b['shape'].replace('_', ' ')} ({dims}); overall {x1 - x0:.1f} x "
-         f"{y1 - y0:.1f} mm; smallest radius {b['min_radius_mm']:.2f} mm"
+    para(f"Recommended: {b['shape'].replace('_', ' ')} ({describe_params(b['params'])}); overall {x1 - x0:.1f} x "
+         f"{y1 - y0:.1f} mm; smallest radius {b['min_radius_mm']:.1f} mm"
          + (f" at ({b['min_radius_at_mm'][0]:.1f}, {b['min_radius_at_mm'][1]:.1f}) mm" if b.get("min_radius_at_mm")
             else "") + f"; removed area {b['area_mm2']:.0f} mm^2"
          + (f" ({b['mass_saved_kg']:.3f} kg saved)" if b.get("mass_saved_kg") is not None else "")
-         + f"; ligaments to the edges (mm): {json.dumps(b.get('ligaments_mm', {}))}; profile {Path(b['dxf']).name}.")
+         + f"; profile {Path(b['dxf']).name}.")
+    ligs = [{"edge": k, "ligament_mm": v} for k, v in b.get("ligaments_mm", {}).items()]
+    if ligs:
+        parts.append(_table(ligs, [("edge", "panel edge"), ("ligament_mm", "ligament from the opening (mm)")], md))
     parts.append(_table(b["load_cases"], [("name", "load case"), ("peak_stress_mpa", "peak (MPa)"), ("kt", "Kt"),
                                           ("x_mm", "x (mm)"), ("y_mm", "y (mm)"),
                                           ("margin_of_safety", "margin of safety")], md))
@@ -143,12 +270,13 @@ def build_report(run_dir: str | Path, fmt: str = "html") -> Path:
         failed = [r for r in reqs if not r["met"]]
         if failed:
             para(f"The recommended design FAILS {len(failed)} of {len(reqs)} requirements of the study: "
-                 + "; ".join(f"{r['requirement']} is {_shown(r['value'])}, required {r['limit']}" for r in failed)
-                 + ".", "warn")
+                 + "; ".join(f"{r['requirement']} is {req_value(r)}, required {r['limit']}" for r in failed)
+                 + ". It is the best the search found, not a design that passes. What can change: "
+                 + "; ".join(_advice(failed)) + ".", "warn")
         else:
             para(f"The recommended design meets every requirement of the study ({len(reqs)} checked at the "
                  f"{b['accuracy']} level).")
-        parts.append(_table([{**r, "value": _shown(r["value"]), "met": "yes" if r["met"] else "NO"} for r in reqs],
+        parts.append(_table([{**r, "value": req_value(r), "met": "yes" if r["met"] else "NO"} for r in reqs],
                             [("requirement", "requirement"), ("value", "design"), ("limit", "required"),
                              ("met", "met")], md))
     for w in b.get("warnings", []):
@@ -195,11 +323,12 @@ def build_report(run_dir: str | Path, fmt: str = "html") -> Path:
             f, fu = c["load_factor"], c["unperforated_factor"]
             cost = None if f is None or fu is None else 100 * (1 - f / fu)
             rows.append({"name": c["name"], "factor": _factor(f), "reserve": c["reserve"],
-                         "estimate": c["error_estimate_pct"], "plain": _factor(fu),
-                         "cost": None if cost is None else f"{cost:+.1f} %",
+                         "estimate_pct": c["error_estimate_pct"], "plain": _factor(fu),
+                         "cost": None if cost is None else f"{cost:.0f} %",
                          "levels": ", ".join(_factor(x) for x in c["level_factors"])})
         parts.append(_table(rows, [("name", "load case"), ("factor", "buckling load factor"),
-                                   ("reserve", "reserve (factor / required)"), ("estimate", "error estimate (%)"),
+                                   ("reserve", "reserve (factor / required)"),
+                                   ("estimate_pct", "error estimate (%)"),
                                    ("plain", "without the cutout"), ("cost", "lost to the opening"),
                                    ("levels", "factor per plate mesh (coarse to fine)")], md))
         gov = st.get("buckling_governing_load_case")
@@ -212,14 +341,11 @@ def build_report(run_dir: str | Path, fmt: str = "html") -> Path:
                  f"meshes (Morley elements, {', '.join(str(n) for n in st['level_dofs'])} DOFs); the estimate is the "
                  "whole extrapolation step plus a measured floor.", None if st["meets_required_factor"] else "warn")
         img("best_buckling_mode.png", "buckling mode shape of the governing load case")
-        para("Linear buckling of the perfectly flat plate is not conservative for real plates with initial "
-             "imperfections and residual stresses: apply the knock-down factors of the applicable code. A web allowed "
-             "to work post-buckled (tension field) is a design choice outside this model.", "caution")
     h2(SECTIONS[6])
     parts.append(_table(b.get("levels", []), [
         ("accuracy", "accuracy level"), ("dofs", "DOFs"), ("peak_stress_mpa", "peak (MPa)"),
         ("change_pct", "change from finest (%)"), ("error_estimate_pct", "error estimate (%)")], md))
-    para(f"Reported figures are at the {b['accuracy']} level; error estimate {b['error_estimate_pct']:.3f} % "
+    para(f"Reported figures are at the {b['accuracy']} level; error estimate {sig(b['error_estimate_pct'])} % "
          "(change of the peak to a mesh with every element size doubled, plus the measured scatter floor).")
     h2(SECTIONS[7])
     para("The same pipeline at the same accuracy level on published reference cases:")
@@ -235,12 +361,8 @@ def build_report(run_dir: str | Path, fmt: str = "html") -> Path:
     edges = inputs["panel"]["edges"]
     meaning = ("remote stress applied as edge tractions: a large panel free to redistribute load" if edges == "traction"
                else "remote strain imposed on the edges: a web bounded by stiff members")
-    para(f"Linear-elastic, plane-stress model of a flat isotropic panel with uniform remote stresses; edge condition "
-         f"'{edges}' ({meaning}).")
-    tail = (" The profile must be reviewed by a qualified engineer before use." if st is not None else
-            " No buckling, fatigue, fracture or bearing assessment is included in this report; the profile must be"
-            " reviewed by a qualified engineer before use.")
-    para(summary["cautions"] + tail, "caution")
+    para(f"Isotropic material, uniform remote stresses per load case; in-plane edge condition '{edges}' ({meaning}).")
+    para(summary["cautions"], "caution")
     if md:
         text = "\n".join(parts)
         return atomic_write(run / "report.md", text)
@@ -281,7 +403,7 @@ def build_sweep_report(run: Path, fmt: str = "html") -> Path:
         parts.append("\n![sweep](sweep.png)\n")
     elif p.exists():
         parts.append(f'<img alt="sweep" src="data:image/png;base64,{base64.b64encode(p.read_bytes()).decode()}">')
-    rows = [{"point": json.dumps({k: round(v, 4) for k, v in pt["coords"].items()}), **pt} for pt in sweep["points"]]
+    rows = [{"point": ", ".join(f"{k} = {v:.4g}" for k, v in pt["coords"].items()), **pt} for pt in sweep["points"]]
     cols = [("point", "parameters"), ("peak_stress_mpa", "peak (MPa)"), ("kt", "Kt"),
             ("area_mm2", "area (mm^2)"), ("error_estimate_pct", "error estimate (%)"),
             ("feasible", "meets constraints"), ("reason", "note")]

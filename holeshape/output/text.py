@@ -40,6 +40,8 @@ def stability_lines(st) -> list[str]:
 def requirement_lines(rows: list[dict]) -> list[str]:
     if not rows:
         return []
+    from holeshape.search.constraints import verdict
+
     failed = [r for r in rows if not r["met"]]
     head = "MEETS every requirement of the study" if not failed else \
         f"FAILS {len(failed)} of {len(rows)} requirements"
@@ -48,6 +50,8 @@ def requirement_lines(rows: list[dict]) -> list[str]:
         v = r["value"]
         shown = "does not buckle" if v is None else (f"{v:+.3f}" if "margin" in r["requirement"] else f"{v:.4g}")
         lines.append(f"    {'ok  ' if r['met'] else 'FAIL'} {r['requirement']:<52} {shown:>14}  required {r['limit']}")
+    for a in verdict(rows)["advice"]:
+        lines.append(f"  what to change {a}")
     return lines
 
 

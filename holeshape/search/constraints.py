@@ -108,8 +108,9 @@ def requirement_rows(ev, cutout: Cutout, panel: Panel, cons: Constraints, materi
     what the design achieves and whether it is met (the verdict tables of the outputs)."""
     rows = []
 
-    def add(name, value, limit, met):
-        rows.append({"requirement": name, "value": value, "limit": limit, "met": bool(met)})
+    def add(name, value, limit, met, load_case=None, kind="geometry"):
+        rows.append({"requirement": name, "value": value, "limit": limit, "met": bool(met), "kind": kind,
+                     "load_case": load_case})
 
     gap = min(edge_gaps(cutout, panel).values())
     if cons.min_ligament is not None:
@@ -129,16 +130,44 @@ def requirement_rows(ev, cutout: Cutout, panel: Panel, cons: Constraints, materi
     if material.allowable_stress is not None:
         limit = cons.min_margin if cons.min_margin is not None else 0.0
         for r in ev.load_cases:
-            add(f"margin of safety, {r.name}", r.margin_of_safety, f">= {limit:+g}", r.margin_of_safety >= limit)
+            add(f"margin of safety, {r.name}", r.margin_of_safety, f">= {limit:+g}", r.margin_of_safety >= limit,
+                r.name, "margin")
     st = ev.stability
     if st is not None:
         need = max(st.required_factor, cons.min_buckling_factor or 0.0)
         for c in st.cases:
             add(f"buckling load factor, {c.name}", c.load_factor, f">= {need:g}",
-                c.load_factor is None or c.load_factor >= need)
+                c.load_factor is None or c.load_factor >= need, c.name, "buckling")
     add("mesh error estimate of the peak (%)", ev.error_estimate_pct, f"<= {ev.accuracy_target_pct:g}",
-        ev.within_target)
+        ev.within_target, kind="accuracy")
     if st is not None:
         add("mesh error estimate of the buckling factor (%)", st.error_estimate_pct,
-            f"<= {st.accuracy_target_pct:g}", st.error_estimate_pct <= st.accuracy_target_pct)
+            f"<= {st.accuracy_target_pct:g}", st.error_estimate_pct <= st.accuracy_target_pct, kind="accuracy")
     return rows
+
+
+ADVICE = {
+    "margin": "to lower the peak: search the shape (holeshape optimise), use larger radii, a thicker web, or"
+              " reinforce the opening",
+    "buckling": "to raise the buckling factor: a smaller or better-shaped opening (search with"
+                " constraints.min_buckling_factor), a thicker web, stiffeners, or a flanged or reinforced opening",
+    "accuracy": "to meet the accuracy target: use a finer accuracy level (--accuracy fine)",
+    "geometry": "to meet the geometric requirements: change the design or search within the ranges",
+}
+
+
+def verdict(rows: list[dict], load_case: str | None = None) -> dict:
+    """``{"verdict": "pass" | "fail", "verdict_reasons": [...], "advice": [...]}`` over the requirement rows (those
+    of one load case with ``load_case``): every failed requirement with the design's value and the limit, and
+    what the user can change."""
+    sel = [r for r in rows if load_case is None or r.get("load_case") == load_case]
+    failed = [r for r in sel if not r["met"]]
+    reasons = [f"{r['requirement']}: {_shown(r['value'])}, required {r['limit']}" for r in failed]
+    advice = [ADVICE[k] for k in dict.fromkeys(r.get("kind", "geometry") for r in failed)]
+    return {"verdict": "fail" if failed else "pass", "verdict_reasons": reasons, "advice": advice}
+
+
+def _shown(v) -> str:
+    if v is None:
+        return "does not buckle"
+    return f"{v:.4g}" if isinstance(v, float) else str(v)
