@@ -162,7 +162,7 @@ _GMSH_READY = False
 MAX_CUTOUT_SEGMENTS = 20000  # beyond this a single evaluation would take minutes: refuse rather than hang
 
 
-def _gmsh():
+def gmsh_session():
     """The process's gmsh instance with every option at its default (options outlive ``gmsh.clear()``, so a size
     limit set by one caller would silently coarsen the next caller's mesh)."""
     global _GMSH_READY
@@ -218,7 +218,7 @@ def mesh_panel(width: float, height: float, cutout: Cutout, region: Region, spec
     node_h = np.minimum(np.concatenate([seg_len, seg_len[-1:]])[: xy_ring.shape[1]],
                         np.concatenate([seg_len[:1], seg_len])[: xy_ring.shape[1]])
 
-    gmsh = _gmsh()
+    gmsh = gmsh_session()
     gmsh.clear()
     gmsh.model.add("panel")
     geo = gmsh.model.geo

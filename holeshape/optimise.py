@@ -16,13 +16,14 @@ from pathlib import Path
 from holeshape import __version__, cautions
 from holeshape.errors import SearchError, StorageError, StudyError
 from holeshape.evaluate import evaluate
+from holeshape.record import RunInputs
 from holeshape.search.baselines import standard_shapes
 from holeshape.search.constraints import edge_gaps, requirement_rows, solved_constraint_values, verdict
 from holeshape.search.runner import (
     SEARCH_ACCURACY,
     WORKER_BUG_EXIT,
     Objective,
-    _add,
+    add_record,
     finished,
     is_feasible,
     objective_value,
@@ -146,7 +147,7 @@ def run_optimise(study_path: str, out: str, workers: int = 1, storage_url: str |
             if all(v is not None for v in own.values()):  # the study's current design first
                 rec = objective(own)
                 rec["user_attrs"]["standard_shape"] = "study design"
-                _add(study, space, rec, trade_off)
+                add_record(study, space, rec, trade_off)
             for family, cut, _ in baselines:
                 if cut is None:
                     continue
@@ -154,7 +155,7 @@ def run_optimise(study_path: str, out: str, workers: int = 1, storage_url: str |
                 if params is not None:
                     rec = objective(params)
                     rec["user_attrs"]["standard_shape"] = family
-                    _add(study, space, rec, trade_off)
+                    add_record(study, space, rec, trade_off)
         _run_workers(study_path, storage_url, out_dir, name, workers, trade_off, study_def.search.trials, progress,
                      study_def.search.goal)
         return _finish(study_def, study, space, baselines, out_dir, storage_name, trade_off, t0, cache)
@@ -405,7 +406,7 @@ def _finish(study_def, study, space, baselines, out_dir: Path, storage_name: str
         plot_paths.append(search_plots.plot_front(out_dir / "trade_off_front.png", trials, summary["front"],
                                                   study_def.title))
         summary["plots"] = [str(p) for p in plot_paths]
-    files.write_json(out_dir / "inputs.json", _inputs(study_def))
+    files.write_json(out_dir / "inputs.json", RunInputs.from_study(study_def).to_dict())
     if not (out_dir / "validation.json").exists():
         from holeshape.validation import run_validation
 
@@ -480,18 +481,6 @@ def _levels(study_def, cut, ev_fine) -> list[dict]:
     return [{"accuracy": a, "dofs": e.dofs, "peak_stress_mpa": e.peak_stress_mpa,
              "change_pct": 100 * (e.peak_stress_mpa / fine - 1), "error_estimate_pct": e.error_estimate_pct}
             for a, e in rows]
-
-
-def _inputs(study_def) -> dict:
-    from dataclasses import asdict
-    from datetime import datetime, timezone
-
-    cons = asdict(study_def.constraints)
-    return {"title": study_def.title, "source": study_def.source, "panel": asdict(study_def.panel),
-            "material": asdict(study_def.material), "load_cases": [asdict(c) for c in study_def.load_cases],
-            "constraints": cons, "search": asdict(study_def.search), "measure": asdict(study_def.measure),
-            "stability": None if study_def.stability is None else asdict(study_def.stability),
-            "finished": datetime.now(timezone.utc).strftime("%Y-%m-%d %H:%M UTC")}
 
 
 def _front(study, space, study_def, out_dir: Path) -> list[dict]:

@@ -53,10 +53,10 @@ def _base_values(study) -> dict:
 
 def run_sweep(study_path: str, out: str, vary_texts: list[str]) -> dict:
     from holeshape.evaluate import evaluate
-    from holeshape.optimise import _inputs
     from holeshape.output import files
     from holeshape.output.report import build_report
     from holeshape.output.search_plots import plot_sweep
+    from holeshape.record import RunInputs
     from holeshape.search.constraints import constraint_values, solved_constraint_values
     from holeshape.validation import run_validation
 
@@ -120,7 +120,7 @@ def run_sweep(study_path: str, out: str, vary_texts: list[str]) -> dict:
                                                  study.constraints.min_buckling_factor or 0.0)
     files.write_json(out_dir / "sweep.json", result)
     plot_sweep(out_dir / "sweep.png", result, study.material.allowable_stress)
-    files.write_json(out_dir / "inputs.json", _inputs(study))
+    files.write_json(out_dir / "inputs.json", RunInputs.from_study(study).to_dict())
     if not (out_dir / "validation.json").exists():
         files.write_json(out_dir / "validation.json", run_validation(study.measure.accuracy))
     result["report"] = str(build_report(out_dir))

@@ -17,9 +17,9 @@ BIG = 4000.0  # 400 hole sizes across: finite-panel effect ~0.005 % on the peak
 
 def le1_mesh(size_mm: float):
     """NAFEMS LE1 quarter elliptic membrane (mm) meshed by gmsh on its own ellipse arcs, 6-node triangles."""
-    from holeshape.mesh import _gmsh, mesh_from_gmsh
+    from holeshape.mesh import gmsh_session, mesh_from_gmsh
 
-    gmsh = _gmsh()
+    gmsh = gmsh_session()
     gmsh.clear()
     gmsh.model.add("le1")
     g = gmsh.model.geo

@@ -115,11 +115,11 @@ def test_several_load_cases_share_one_solve_and_superpose():
 
 def test_mesher_options_do_not_leak_between_calls():
     """A caller that changes gmsh's global options (as the NAFEMS LE1 test does) must not change later meshes."""
-    from holeshape.mesh import MeshSpec, Region, _gmsh, mesh_panel
+    from holeshape.mesh import MeshSpec, Region, gmsh_session, mesh_panel
 
     c = centred("circle", radius=10.0)
     region = Region(BIG, BIG, True, True)
     before = mesh_panel(BIG, BIG, c, region, MeshSpec()).n_elements
-    _gmsh().option.setNumber("Mesh.MeshSizeMin", 50.0)
+    gmsh_session().option.setNumber("Mesh.MeshSizeMin", 50.0)
     after = mesh_panel(BIG, BIG, c, region, MeshSpec()).n_elements
     assert after == before

@@ -161,7 +161,7 @@ def _record(study, trial, rec: dict, trade_off: bool) -> None:
         study.tell(trial, _values(rec, trade_off))
 
 
-def _add(study, space: DesignSpace, rec: dict, trade_off: bool) -> None:
+def add_record(study, space: DesignSpace, rec: dict, trade_off: bool) -> None:
     """Record an evaluation made outside the sampler (standard shapes, simplex steps) as a finished trial."""
     from optuna.trial import TrialState, create_trial
 
@@ -312,7 +312,7 @@ def run_worker(study_path: str, storage_url: str | None, out_dir: str, study_nam
         with gate:
             if len(finished(study)) >= settings.trials:
                 return
-            _add(study, space, rec, trade_off)
+            add_record(study, space, rec, trade_off)
         pending = _penalised(rec, reference)
         if rec["state"] == "complete" and rec["user_attrs"].get("feasible"):
             reference = min(reference, rec["value"])
