@@ -85,7 +85,6 @@ def main(argv: list[str] | None = None) -> int:
     level = logging.DEBUG if args.verbose else logging.WARNING
     logging.basicConfig(level=level, format="holeshape: %(message)s", stream=sys.stderr)
     logging.getLogger("skfem").setLevel(logging.ERROR)  # its info/warnings are not for our users
-    logging.getLogger("optuna").setLevel(logging.DEBUG if args.verbose else logging.WARNING)
     import os
 
     os.environ.setdefault("MPLBACKEND", "Agg")  # the command line draws to files only
@@ -232,6 +231,7 @@ def _sweep(args) -> int:
 def _compare(args) -> int:
     from holeshape.compare import run_compare
 
+    _quiet_optuna(args)
     out = _run_folder(args, "-compare")
     top = run_compare(args.study, out, workers=args.workers, progress=not args.quiet)
     if args.json:
@@ -252,9 +252,17 @@ def _compare(args) -> int:
     return 0
 
 
+def _quiet_optuna(args) -> None:
+    """Optuna configures its own logger on import (level INFO): set ours after it is imported."""
+    import optuna
+
+    optuna.logging.set_verbosity(optuna.logging.DEBUG if args.verbose else optuna.logging.WARNING)
+
+
 def _optimise(args) -> int:
     from holeshape.optimise import run_optimise
 
+    _quiet_optuna(args)
     out = _run_folder(args, "")
     summary = run_optimise(args.study, out, workers=args.workers, storage_url=args.storage,
                            trade_off=args.trade_off, progress=not args.quiet)
@@ -262,8 +270,9 @@ def _optimise(args) -> int:
         print(json.dumps(summary, indent=2))
         return 0
     from holeshape.output.text import optimise_summary
+    from holeshape.record import RunRecord
 
-    print(optimise_summary(summary))
+    print(optimise_summary(RunRecord.from_summary(summary)))
     return 0
 
 

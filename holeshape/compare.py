@@ -10,9 +10,11 @@ from __future__ import annotations
 import json
 import math
 import shutil
+from dataclasses import replace
 from pathlib import Path
 
 from holeshape.errors import HoleshapeError, SearchError, StudyError
+from holeshape.record import RunInputs, RunRecord
 from holeshape.study import Range, dump_toml, load_study
 
 FAMILY_ORDER = ("circle", "ellipse", "rounded_rectangle", "slot", "superellipse", "spline")
@@ -129,16 +131,14 @@ def run_compare(study_path: str, out: str, workers: int = 1, progress: bool = Tr
         if (src / name).exists():
             shutil.copyfile(src / name, out_dir / f".{name}.copy")
             (out_dir / f".{name}.copy").replace(out_dir / name)
-    top = dict(summaries[winner])
-    top["best"] = dict(top["best"], dxf=str(out_dir / "best.dxf"))
-    top["comparison"] = ok + [r for r in rows if not r["feasible"]]
-    top["family_best"] = summaries[winner]["family_best"]
-    top["study"] = study.title
+    won = RunRecord.from_summary(summaries[winner])
+    record = replace(won, best=replace(won.best, dxf=str(out_dir / "best.dxf")), study=study.title,
+                     comparison=tuple(ok + [r for r in rows if not r["feasible"]]))
     search_plots.plot_family_overlay(out_dir / "compare_shapes.png", study, out_dir, ok)
-    inputs = json.loads((out_dir / "inputs.json").read_text())
-    inputs["title"] = study.title
-    files.write_json(out_dir / "inputs.json", inputs)
-    files.write_json(out_dir / "compare.json", top["comparison"])
+    inputs = RunInputs.from_dict(json.loads((out_dir / "inputs.json").read_text()))
+    files.write_json(out_dir / "inputs.json", replace(inputs, title=study.title).to_dict())
+    files.write_json(out_dir / "compare.json", list(record.comparison))
+    top = record.to_summary()
     files.write_json(out_dir / "summary.json", top)
     top["report"] = str(build_report(out_dir))
     return top

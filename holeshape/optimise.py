@@ -11,12 +11,22 @@ import fcntl
 import logging
 import multiprocessing
 import time
+from dataclasses import asdict, dataclass
 from pathlib import Path
 
 from holeshape import __version__, cautions
 from holeshape.errors import SearchError, StorageError, StudyError
 from holeshape.evaluate import evaluate
-from holeshape.record import RunInputs
+from holeshape.record import (
+    Baseline,
+    CaseCheck,
+    DesignCheck,
+    LevelCheck,
+    Requirement,
+    RunInputs,
+    RunRecord,
+    TrialCounts,
+)
 from holeshape.search.baselines import standard_shapes
 from holeshape.search.constraints import edge_gaps, requirement_rows, solved_constraint_values, verdict
 from holeshape.search.runner import (
@@ -267,153 +277,214 @@ def _run_workers(study_path, storage_url, out_dir, name, workers, trade_off, tot
         bar.close()
 
 
-def _finish(study_def, study, space, baselines, out_dir: Path, storage_name: str, trade_off: bool, t0: float,
-            cache: dict) -> dict:
+@dataclass(frozen=True)
+class Candidate:
+    """A design checked at the final level: its objective (lower is better), family, outline, evaluation, fields
+    for plots and the trial it came from (None for a standard shape)."""
+
+    score: float
+    family: str
+    cutout: object
+    evaluation: object
+    fields: object
+    trial: int | None
+
+
+@dataclass(frozen=True)
+class FinalChecks:
+    """How the final level is run for one study: the level, the study, the run's cache."""
+
+    study: object
+    cache: dict
+
+    @property
+    def measure(self) -> Measure:
+        return Measure(self.study.measure.stress, FINAL_ACCURACY)
+
+    def evaluate(self, cut, keep: bool = False):
+        s = self.study
+        return evaluate(s.panel, s.material, s.load_cases, cut, self.measure, keep_fields=keep,
+                        stability=s.stability, cache=self.cache)
+
+    def candidate(self, cut, family: str, trial: int | None) -> Candidate:
+        ev, fields = self.evaluate(cut, keep=True)
+        return Candidate(objective_value(ev, self.study.search.goal), family, cut, ev, fields, trial)
+
+
+def trial_counts(study) -> TrialCounts:
+    """The trials of a study by outcome, as the summary reports them."""
     from optuna.trial import TrialState
 
-    from holeshape.output import files, plots, search_plots
-
-    measure = Measure(study_def.measure.stress, FINAL_ACCURACY)
     trials = study.get_trials(deepcopy=False)
     complete = [t for t in trials if t.state == TrialState.COMPLETE]
     counted = {t.number for t in finished(study)}
     failed = [t for t in trials if t.state == TrialState.FAIL and t.number in counted]
     interrupted = [t for t in trials if t.state == TrialState.FAIL and t.number not in counted]
-    infeasible = [t for t in complete if not is_feasible(t)]
+    return TrialCounts(completed=len(complete), infeasible=len([t for t in complete if not is_feasible(t)]),
+                       failed=len(failed), interrupted=len(interrupted),
+                       refused_after_solve=_refused_after_solve(complete),
+                       failures=tuple(sorted({str(t.user_attrs.get("failure")) for t in failed})[:10]))
 
-    goal, stab, cons = study_def.search.goal, study_def.stability, study_def.constraints
 
-    def final(cut, keep: bool = False):
-        return evaluate(study_def.panel, study_def.material, study_def.load_cases, cut, measure, keep_fields=keep,
-                        stability=stab, cache=cache)
-
-    # the standard shapes, checked at the same (fine) level as the winner, against every requirement
-    base_rows, base_evals = [], []
+def check_standard_shapes(checks: FinalChecks, baselines) -> tuple[list[Baseline], list[tuple]]:
+    """The standard shapes at the final level against every requirement: their rows, and (family, cutout,
+    evaluation) for those that meet them."""
+    s = checks.study
+    rows, usable = [], []
     for family, cut, note in baselines:
         if cut is None:
-            base_rows.append({"shape": family, "feasible": False, "reason": note})
+            rows.append(Baseline(shape=family, feasible=False, reason=note))
             continue
-        ev = _standard_shape_evaluation(study_def.panel, study_def.material, study_def.load_cases, cut, measure, stab,
-                                        cache)
-        reasons = solved_constraint_values(ev, cons)[1]
-        row = {"shape": family, "peak_stress_mpa": ev.peak_stress_mpa, "area_mm2": ev.area_mm2, "kt": ev.kt,
-               "error_estimate_pct": ev.error_estimate_pct, "feasible": not reasons, "params": cut.parameters()}
-        if ev.stability is not None:
-            row["buckling_load_factor"] = ev.stability.load_factor
-        if reasons:
-            row["reason"] = "; ".join(reasons)
-        base_rows.append(row)
+        ev = _standard_shape_evaluation(s.panel, s.material, s.load_cases, cut, checks.measure, s.stability,
+                                        checks.cache)
+        reasons = solved_constraint_values(ev, s.constraints)[1]
+        rows.append(Baseline(shape=family, feasible=not reasons, reason="; ".join(reasons) or None,
+                             peak_stress_mpa=ev.peak_stress_mpa, area_mm2=ev.area_mm2, kt=ev.kt,
+                             error_estimate_pct=ev.error_estimate_pct, params=cut.parameters(),
+                             buckling_load_factor=None if ev.stability is None else ev.stability.load_factor))
         if not reasons:
-            base_evals.append((family, cut, ev))
-    # the best trials (draft level) re-checked at the final level; the first that still meets every requirement
-    ranked = sorted((t for t in finished(study) if is_feasible(t)), key=lambda t: t.values[0])
-    candidates, final_warnings, fallback = [], [], None
-    for t in ranked[:FINAL_TRIES]:
-        cut, _ = space.decode(t.params)
-        ev, fields = final(cut, keep=True)
-        reasons = solved_constraint_values(ev, cons)[1]
-        if not reasons:
-            candidates.append((objective_value(ev, goal), study_def.cutout.shape, cut, ev, fields, t.number))
-            break
-        fallback = fallback or (objective_value(ev, goal), study_def.cutout.shape, cut, ev, fields, t.number,
-                                reasons)
-    if not candidates and fallback is not None and not base_evals:
-        candidates.append(fallback[:6])
-        final_warnings.append(f"the best design found misses a requirement at the {FINAL_ACCURACY} level: "
-                              + "; ".join(fallback[6]) + " (it met it at the search's draft level)")
-    if not candidates and not base_evals:
-        raise SearchError(f"no feasible design among {len(trials)} trials and no standard shape meets the "
-                             "constraints; widen the ranges or relax the constraints (see summary of trials)")
-    for family, cut, ev in base_evals:
-        if not candidates or objective_value(ev, goal) < candidates[0][0]:
-            ev2, fields2 = final(cut, keep=True)
-            candidates.append((objective_value(ev2, goal), family, cut, ev2, fields2, None))
-    own = candidates[0] if candidates and candidates[0][5] is not None else None  # the study family's own best
-    peak, family, cut, ev, fields, number = min(candidates, key=lambda c: c[0])
-    if ev.warnings:
-        final_warnings = list(ev.warnings) + final_warnings
+            usable.append((family, cut, ev))
+    return rows, usable
 
-    dxf = out_dir / "best.dxf"
-    dxf_info = files.write_dxf(dxf, cut, (study_def.panel.width, study_def.panel.height), study_def.title)
-    files.write_csv(out_dir / "best.csv", cut)
-    family_best = None
-    if own is not None:
-        files.write_csv(out_dir / "family_best.csv", own[2])
-        files.write_dxf(out_dir / "family_best.dxf", own[2], (study_def.panel.width, study_def.panel.height),
-                        study_def.title)
-        e = own[3]
-        family_best = {"shape": own[1], "peak_stress_mpa": e.peak_stress_mpa, "kt": e.kt, "area_mm2": e.area_mm2,
-                       "error_estimate_pct": e.error_estimate_pct, "params": _jsonable(own[2].parameters()),
-                       "governing_load_case": e.governing_load_case, "dxf": str(out_dir / "family_best.dxf"),
-                       "buckling_load_factor": None if e.stability is None else e.stability.load_factor}
-    plot_paths = [
-        search_plots.plot_history(out_dir / "search_history.png", trials, study_def.title,
-                                  "lowest_peak" if trade_off else goal),
-        search_plots.plot_shapes(out_dir / "best_shape.png", cut, [(f, c) for f, c, _ in base_evals],
+
+def choose_recommendation(checks: FinalChecks, study, space, usable_baselines
+                          ) -> tuple[Candidate, Candidate | None, list[str]]:
+    """(the recommended design, the study family's own best or None, warnings): the best trials re-checked at the
+    final level until one still meets every requirement; a standard shape that does better wins."""
+    s = checks.study
+    ranked = sorted((t for t in finished(study) if is_feasible(t)), key=lambda t: t.values[0])
+    own, fallback, warnings = None, None, []
+    for t in ranked[:FINAL_TRIES]:
+        cand = checks.candidate(space.decode(t.params)[0], s.cutout.shape, t.number)
+        reasons = solved_constraint_values(cand.evaluation, s.constraints)[1]
+        if not reasons:
+            own = cand
+            break
+        fallback = fallback or (cand, reasons)
+    if own is None and fallback is not None and not usable_baselines:
+        own = fallback[0]
+        warnings.append(f"the best design found misses a requirement at the {FINAL_ACCURACY} level: "
+                        + "; ".join(fallback[1]) + " (it met it at the search's draft level)")
+    if own is None and not usable_baselines:
+        raise SearchError(f"no feasible design among {len(study.get_trials(deepcopy=False))} trials and no standard"
+                          " shape meets the constraints; widen the ranges or relax the constraints (see summary of"
+                          " trials)")
+    candidates = [own] if own is not None else []
+    for family, cut, ev in usable_baselines:
+        if not candidates or objective_value(ev, s.search.goal) < candidates[0].score:
+            candidates.append(checks.candidate(cut, family, None))
+    best = min(candidates, key=lambda c: c.score)
+    return best, own, list(best.evaluation.warnings) + warnings
+
+
+def write_profiles(out_dir: Path, study_def, best: Candidate, own: Candidate | None) -> tuple[dict, dict | None]:
+    """best.dxf / best.csv (and the family's own best when a standard shape won): (DXF info, family best)."""
+    from holeshape.output import files
+
+    size = (study_def.panel.width, study_def.panel.height)
+    dxf_info = files.write_dxf(out_dir / "best.dxf", best.cutout, size, study_def.title)
+    files.write_csv(out_dir / "best.csv", best.cutout)
+    if own is None:
+        return dxf_info, None
+    files.write_csv(out_dir / "family_best.csv", own.cutout)
+    files.write_dxf(out_dir / "family_best.dxf", own.cutout, size, study_def.title)
+    e = own.evaluation
+    return dxf_info, {"shape": own.family, "peak_stress_mpa": e.peak_stress_mpa, "kt": e.kt, "area_mm2": e.area_mm2,
+                      "error_estimate_pct": e.error_estimate_pct, "params": _jsonable(own.cutout.parameters()),
+                      "governing_load_case": e.governing_load_case, "dxf": str(out_dir / "family_best.dxf"),
+                      "buckling_load_factor": None if e.stability is None else e.stability.load_factor}
+
+
+def write_plots(out_dir: Path, study_def, trials, best: Candidate, usable_baselines, goal: str) -> list[Path]:
+    """Search history, the shape over the standard shapes, stress field, edge stress, buckling mode, VTK field."""
+    from holeshape.output import files, plots, search_plots
+
+    ev, fields, cut = best.evaluation, best.fields, best.cutout
+    size = (study_def.panel.width, study_def.panel.height)
+    paths = [
+        search_plots.plot_history(out_dir / "search_history.png", trials, study_def.title, goal),
+        search_plots.plot_shapes(out_dir / "best_shape.png", cut, [(f, c) for f, c, _ in usable_baselines],
                                  study_def.panel, study_def.constraints, study_def.title, ev.peak_stress_mpa,
-                                 {f: e.peak_stress_mpa for f, _, e in base_evals}),
+                                 {f: e.peak_stress_mpa for f, _, e in usable_baselines}),
     ]
     gov = [r.name for r in ev.load_cases].index(ev.governing_load_case)
-    plot_paths.append(plots.plot_stress_field(out_dir / "best_stress_field.png", ev, fields, cut.polygon(720).T, gov,
-                                              (study_def.panel.width, study_def.panel.height), study_def.title))
-    plot_paths.append(plots.plot_boundary_stress(out_dir / "best_boundary_stress.png", ev, fields,
-                                                 study_def.material.allowable_stress, study_def.title))
+    paths.append(plots.plot_stress_field(out_dir / "best_stress_field.png", ev, fields, cut.polygon(720).T, gov, size,
+                                         study_def.title))
+    paths.append(plots.plot_boundary_stress(out_dir / "best_boundary_stress.png", ev, fields,
+                                            study_def.material.allowable_stress, study_def.title))
     if ev.stability is not None:
-        plot_paths.append(plots.plot_buckling_mode(out_dir / "best_buckling_mode.png", ev.stability,
-                                                   fields.stability, cut.polygon(720).T, study_def.panel,
-                                                   study_def.title))
+        paths.append(plots.plot_buckling_mode(out_dir / "best_buckling_mode.png", ev.stability, fields.stability,
+                                              cut.polygon(720).T, study_def.panel, study_def.title))
     files.write_vtk(out_dir / "best_stress_field.vtu", fields, [r.name for r in ev.load_cases])
-    levels = _levels(study_def, cut, ev)
-    gaps = edge_gaps(cut, study_def.panel)
-    improvement = {row["shape"]: 100.0 * (1 - ev.peak_stress_mpa / row["peak_stress_mpa"])
-                   for row in base_rows if row.get("feasible")}
-    summary = {
-        "best": {
-            "peak_stress_mpa": ev.peak_stress_mpa, "kt": ev.kt, "kt_reference": ev.kt_reference,
-            "area_mm2": ev.area_mm2, "error_estimate_pct": ev.error_estimate_pct,
-            "params": _jsonable(cut.parameters()), "shape": family, "dxf": str(dxf), "feasible": True,
-            "trial": number, "margin_of_safety": ev.margin_of_safety, "accuracy": FINAL_ACCURACY,
-            "min_radius_mm": cut.min_radius, "min_radius_at_mm": _min_radius_at(cut), "bounds_mm": list(cut.bounds),
-            "load_cases": [_case_row(r, ev.stability is not None) for r in ev.load_cases],
-            "dxf_vertices": dxf_info["vertices"], "dxf_chord_error_mm": dxf_info["chord_error_mm"],
-            "warnings": final_warnings, "levels": levels,
-            "ligaments_mm": {k: round(v, 3) for k, v in gaps.items()},
-            "mass_saved_kg": (study_def.material.density * ev.area_mm2 * study_def.panel.thickness * 1e-9
-                              if study_def.material.density else None),
-            "vtk": str(out_dir / "best_stress_field.vtu"),
-            "requirements": requirement_rows(ev, cut, study_def.panel, cons, study_def.material),
-            **_stability_keys(ev),
-        },
-        "goal": goal,
-        "trials_refused_after_solve": _refused_after_solve(complete),
-        "family_best": family_best,
-        "baselines": base_rows,
-        "improvement_over_baselines_pct": improvement,
-        "trials_completed": len(complete), "trials_infeasible": len(infeasible), "trials_failed": len(failed),
-        "trials_interrupted": len(interrupted),
-        "failures": sorted({str(t.user_attrs.get("failure")) for t in failed})[:10],
-        "storage": storage_name, "study": study_def.title, "search_accuracy": SEARCH_ACCURACY,
-        "elapsed_s": time.perf_counter() - t0, "plots": [str(p) for p in plot_paths],
-        "holeshape_version": __version__, "cautions": cautions(ev.stability is not None),
-    }
-    reqs = summary["best"]["requirements"]
-    summary["best"]["meets_every_requirement"] = all(r["met"] for r in reqs)
-    summary["best"].update(verdict(reqs))
-    for row in summary["best"]["load_cases"]:
-        row.update(verdict(reqs, row["name"]))
+    return paths
+
+
+def design_check(study_def, best: Candidate, out_dir: Path, dxf_info: dict, warnings: list[str]) -> DesignCheck:
+    """The typed ``best`` block: the recommended design at the final level with its evidence and verdicts."""
+    ev, cut = best.evaluation, best.cutout
+    reqs = tuple(Requirement(**r) for r in requirement_rows(ev, cut, study_def.panel, study_def.constraints,
+                                                            study_def.material))
+    req_dicts = [asdict(r) for r in reqs]
+    with_stab = ev.stability is not None
+    cases = []
+    for r in ev.load_cases:
+        v = verdict(req_dicts, r.name)
+        cases.append(CaseCheck(
+            name=r.name, peak_stress_mpa=r.peak_stress_mpa, kt=r.kt, x_mm=r.x_mm, y_mm=r.y_mm,
+            margin_of_safety=r.margin_of_safety, error_estimate_pct=r.error_estimate_pct, verdict=v["verdict"],
+            verdict_reasons=tuple(v["verdict_reasons"]), advice=tuple(v["advice"]),
+            buckling_load_factor=r.buckling_load_factor, buckling_error_estimate_pct=r.buckling_error_estimate_pct,
+            buckling_reserve=r.buckling_reserve, buckling_load_factor_unperforated=r.buckling_load_factor_unperforated,
+            with_stability=with_stab))
+    density = study_def.material.density
+    return DesignCheck(
+        peak_stress_mpa=ev.peak_stress_mpa, kt=ev.kt, kt_reference=ev.kt_reference, area_mm2=ev.area_mm2,
+        error_estimate_pct=ev.error_estimate_pct, params=_jsonable(cut.parameters()), shape=best.family,
+        dxf=str(out_dir / "best.dxf"), trial=best.trial, margin_of_safety=ev.margin_of_safety,
+        accuracy=FINAL_ACCURACY, min_radius_mm=cut.min_radius, min_radius_at_mm=tuple(_min_radius_at(cut)),
+        bounds_mm=tuple(cut.bounds), load_cases=tuple(cases), dxf_vertices=dxf_info["vertices"],
+        dxf_chord_error_mm=dxf_info["chord_error_mm"], warnings=tuple(warnings),
+        levels=tuple(LevelCheck(**row) for row in _levels(study_def, cut, ev)),
+        ligaments_mm={k: round(v, 3) for k, v in edge_gaps(cut, study_def.panel).items()},
+        mass_saved_kg=density * ev.area_mm2 * study_def.panel.thickness * 1e-9 if density else None,
+        vtk=str(out_dir / "best_stress_field.vtu"), requirements=reqs,
+        stability=None if ev.stability is None else ev.stability.to_dict())
+
+
+def _finish(study_def, study, space, baselines, out_dir: Path, storage_name: str, trade_off: bool, t0: float,
+            cache: dict) -> dict:
+    """The end of a run, in named steps: final checks, choice, profiles, plots, the typed record, the files."""
+    from holeshape.output import files, search_plots
+    from holeshape.output.report import build_report
+
+    checks = FinalChecks(study_def, cache)
+    goal = study_def.search.goal
+    trials = study.get_trials(deepcopy=False)
+    base_rows, usable = check_standard_shapes(checks, baselines)
+    best, own, warnings = choose_recommendation(checks, study, space, usable)
+    dxf_info, family_best = write_profiles(out_dir, study_def, best, own)
+    plot_paths = write_plots(out_dir, study_def, trials, best, usable, "lowest_peak" if trade_off else goal)
+    ev = best.evaluation
+    front = None
     if trade_off:
-        summary["front"] = _front(study, space, study_def, out_dir)
-        plot_paths.append(search_plots.plot_front(out_dir / "trade_off_front.png", trials, summary["front"],
+        front = tuple(_front(study, space, study_def, out_dir))
+        plot_paths.append(search_plots.plot_front(out_dir / "trade_off_front.png", trials, list(front),
                                                   study_def.title))
-        summary["plots"] = [str(p) for p in plot_paths]
+    record = RunRecord(
+        best=design_check(study_def, best, out_dir, dxf_info, warnings), family_best=family_best,
+        baselines=tuple(base_rows),
+        improvement_over_baselines_pct={b.shape: 100.0 * (1 - ev.peak_stress_mpa / b.peak_stress_mpa)
+                                        for b in base_rows if b.feasible},
+        goal=goal, trials=trial_counts(study), storage=storage_name, study=study_def.title,
+        search_accuracy=SEARCH_ACCURACY, elapsed_s=time.perf_counter() - t0, plots=tuple(str(p) for p in plot_paths),
+        holeshape_version=__version__, cautions=cautions(ev.stability is not None), front=front)
     files.write_json(out_dir / "inputs.json", RunInputs.from_study(study_def).to_dict())
     if not (out_dir / "validation.json").exists():
         from holeshape.validation import run_validation
 
         files.write_json(out_dir / "validation.json", run_validation(FINAL_ACCURACY))
+    summary = record.to_summary()
     files.write_json(out_dir / "summary.json", summary)
-    from holeshape.output.report import build_report
-
     summary["report"] = str(build_report(out_dir))
     return summary
 
@@ -425,26 +496,6 @@ def _standard_shape_evaluation(panel, material, load_cases, cutout, measure, sta
     if key not in cache:
         cache[key] = evaluate(panel, material, load_cases, cutout, measure, stability=stability, cache=cache)
     return cache[key]
-
-
-def _case_row(r, with_stability: bool) -> dict:
-    row = {"name": r.name, "peak_stress_mpa": r.peak_stress_mpa, "kt": r.kt, "x_mm": r.x_mm, "y_mm": r.y_mm,
-           "margin_of_safety": r.margin_of_safety, "error_estimate_pct": r.error_estimate_pct}
-    if with_stability:
-        row.update(buckling_load_factor=r.buckling_load_factor,
-                   buckling_error_estimate_pct=r.buckling_error_estimate_pct, buckling_reserve=r.buckling_reserve,
-                   buckling_load_factor_unperforated=r.buckling_load_factor_unperforated)
-    return row
-
-
-def _stability_keys(ev) -> dict:
-    """The stability figures of the recommended design (none without [stability])."""
-    if ev.stability is None:
-        return {}
-    st = ev.stability.to_dict()
-    keys = ("buckling_load_factor", "buckling_governing_load_case", "buckling_load_factor_unperforated",
-            "buckling_error_estimate_pct", "buckling_reserve")
-    return {k: st[k] for k in keys} | {"stability": st}
 
 
 def _refused_after_solve(complete) -> dict:

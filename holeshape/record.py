@@ -48,3 +48,262 @@ class RunInputs:
         d = asdict(self)
         d["load_cases"] = list(self.load_cases)
         return d
+
+
+# ----- what a search run found ------------------------------------------------------------------------------------
+def _drop_none(d: dict, keys: tuple[str, ...]) -> dict:
+    """``d`` without those of ``keys`` that are None (optional blocks a study without them does not store)."""
+    return {k: v for k, v in d.items() if not (k in keys and v is None)}
+
+
+@dataclass(frozen=True)
+class Requirement:
+    """One requirement of the study checked on a design: what it achieves, the limit, met or not."""
+
+    requirement: str
+    value: float | None
+    limit: str
+    met: bool
+    kind: str = "geometry"  # geometry, margin, buckling or accuracy
+    load_case: str | None = None
+
+
+BUCKLING_CASE_KEYS = ("buckling_load_factor", "buckling_error_estimate_pct", "buckling_reserve",
+                      "buckling_load_factor_unperforated")
+
+
+@dataclass(frozen=True)
+class CaseCheck:
+    """One load case of the recommended design at the final level (MPa, mm)."""
+
+    name: str
+    peak_stress_mpa: float
+    kt: float
+    x_mm: float
+    y_mm: float
+    margin_of_safety: float | None
+    error_estimate_pct: float
+    verdict: str = "pass"
+    verdict_reasons: tuple[str, ...] = ()
+    advice: tuple[str, ...] = ()
+    buckling_load_factor: float | None = None
+    buckling_error_estimate_pct: float | None = None
+    buckling_reserve: float | None = None
+    buckling_load_factor_unperforated: float | None = None
+    with_stability: bool = False
+
+    def to_dict(self) -> dict:
+        d = asdict(self)
+        d.pop("with_stability")
+        d["verdict_reasons"], d["advice"] = list(self.verdict_reasons), list(self.advice)
+        if not self.with_stability:
+            for k in BUCKLING_CASE_KEYS:
+                d.pop(k)
+        return d
+
+    @classmethod
+    def from_dict(cls, d: dict) -> CaseCheck:
+        return cls(**{k: (tuple(v) if k in ("verdict_reasons", "advice") else v) for k, v in d.items()},
+                   with_stability="buckling_load_factor" in d)
+
+
+@dataclass(frozen=True)
+class LevelCheck:
+    """The recommended design at one accuracy level (the evidence table)."""
+
+    accuracy: str
+    dofs: int
+    peak_stress_mpa: float
+    change_pct: float
+    error_estimate_pct: float
+
+
+BUCKLING_DESIGN_KEYS = ("buckling_load_factor", "buckling_governing_load_case", "buckling_load_factor_unperforated",
+                        "buckling_error_estimate_pct", "buckling_reserve", "stability")
+
+
+@dataclass(frozen=True)
+class DesignCheck:
+    """The recommended design as checked at the final level: the ``best`` block of summary.json."""
+
+    peak_stress_mpa: float
+    kt: float
+    kt_reference: str
+    area_mm2: float
+    error_estimate_pct: float
+    params: dict
+    shape: str
+    dxf: str
+    trial: int | None
+    margin_of_safety: float | None
+    accuracy: str
+    min_radius_mm: float
+    min_radius_at_mm: tuple[float, float]
+    bounds_mm: tuple[float, float, float, float]
+    load_cases: tuple[CaseCheck, ...]
+    dxf_vertices: int
+    dxf_chord_error_mm: float
+    warnings: tuple[str, ...]
+    levels: tuple[LevelCheck, ...]
+    ligaments_mm: dict
+    mass_saved_kg: float | None
+    vtk: str
+    requirements: tuple[Requirement, ...]
+    stability: dict | None = None  # StabilityResult.to_dict() of the final check, None without [stability]
+    feasible: bool = True
+
+    @property
+    def meets_every_requirement(self) -> bool:
+        return all(r.met for r in self.requirements)
+
+    @property
+    def failed_requirements(self) -> tuple[Requirement, ...]:
+        return tuple(r for r in self.requirements if not r.met)
+
+    @property
+    def buckling_load_factor(self) -> float | None:
+        return None if self.stability is None else self.stability["buckling_load_factor"]
+
+    def verdict(self, load_case: str | None = None) -> dict:
+        from holeshape.search.constraints import verdict
+
+        return verdict([asdict(r) for r in self.requirements], load_case)
+
+    def to_dict(self) -> dict:
+        d = {f: getattr(self, f) for f in self.__dataclass_fields__}
+        d.update(load_cases=[c.to_dict() for c in self.load_cases], levels=[asdict(x) for x in self.levels],
+                 requirements=[asdict(r) for r in self.requirements], warnings=list(self.warnings),
+                 min_radius_at_mm=list(self.min_radius_at_mm), bounds_mm=list(self.bounds_mm))
+        stab = d.pop("stability")
+        if stab is not None:
+            d.update({k: stab[k] for k in BUCKLING_DESIGN_KEYS[:-1]}, stability=stab)
+        d["meets_every_requirement"] = self.meets_every_requirement
+        d.update(self.verdict())
+        return d
+
+    @classmethod
+    def from_dict(cls, d: dict) -> DesignCheck:
+        names = set(cls.__dataclass_fields__)
+        kw = {k: v for k, v in d.items() if k in names}
+        kw.update(load_cases=tuple(CaseCheck.from_dict(c) for c in d["load_cases"]),
+                  levels=tuple(LevelCheck(**x) for x in d.get("levels", [])),
+                  requirements=tuple(Requirement(**r) for r in d.get("requirements", [])),
+                  warnings=tuple(d.get("warnings", [])), min_radius_at_mm=tuple(d.get("min_radius_at_mm") or (0, 0)),
+                  bounds_mm=tuple(d["bounds_mm"]), stability=d.get("stability"))
+        kw.setdefault("requirements", ())
+        return cls(**kw)
+
+
+@dataclass(frozen=True)
+class Baseline:
+    """A standard shape checked at the final level (``feasible`` False with the reason when it cannot meet the
+    requirements)."""
+
+    shape: str
+    feasible: bool
+    reason: str | None = None
+    peak_stress_mpa: float | None = None
+    area_mm2: float | None = None
+    kt: float | None = None
+    error_estimate_pct: float | None = None
+    params: dict | None = None
+    buckling_load_factor: float | None = None
+
+    def to_dict(self) -> dict:
+        return _drop_none(asdict(self), ("reason", "peak_stress_mpa", "area_mm2", "kt", "error_estimate_pct",
+                                         "params", "buckling_load_factor"))
+
+    @classmethod
+    def from_dict(cls, d: dict) -> Baseline:
+        return cls(**{k: v for k, v in d.items() if k in cls.__dataclass_fields__})
+
+
+@dataclass(frozen=True)
+class TrialCounts:
+    completed: int
+    infeasible: int
+    failed: int
+    interrupted: int
+    refused_after_solve: dict
+    failures: tuple[str, ...]
+
+
+@dataclass(frozen=True)
+class RunRecord:
+    """Everything a search run leaves for its reader; ``summary.json`` is :meth:`to_summary` (its keys are a
+    contract), and the report and the text summary are built from :meth:`from_summary`."""
+
+    best: DesignCheck
+    family_best: dict | None
+    baselines: tuple[Baseline, ...]
+    improvement_over_baselines_pct: dict
+    goal: str
+    trials: TrialCounts
+    storage: str
+    study: str
+    search_accuracy: str
+    elapsed_s: float
+    plots: tuple[str, ...]
+    holeshape_version: str
+    cautions: str
+    front: tuple[dict, ...] | None = None
+    comparison: tuple[dict, ...] | None = None
+
+    def to_summary(self) -> dict:
+        t = self.trials
+        d = {"best": self.best.to_dict(), "goal": self.goal, "trials_refused_after_solve": t.refused_after_solve,
+             "family_best": self.family_best, "baselines": [b.to_dict() for b in self.baselines],
+             "improvement_over_baselines_pct": self.improvement_over_baselines_pct,
+             "trials_completed": t.completed, "trials_infeasible": t.infeasible, "trials_failed": t.failed,
+             "trials_interrupted": t.interrupted, "failures": list(t.failures), "storage": self.storage,
+             "study": self.study, "search_accuracy": self.search_accuracy, "elapsed_s": self.elapsed_s,
+             "plots": list(self.plots), "holeshape_version": self.holeshape_version, "cautions": self.cautions}
+        if self.front is not None:
+            d["front"] = list(self.front)
+        if self.comparison is not None:
+            d["comparison"] = list(self.comparison)
+        return d
+
+    @classmethod
+    def from_summary(cls, d: dict) -> RunRecord:
+        trials = TrialCounts(d["trials_completed"], d["trials_infeasible"], d["trials_failed"],
+                             d.get("trials_interrupted", 0), d.get("trials_refused_after_solve", {}),
+                             tuple(d.get("failures", [])))
+        return cls(best=DesignCheck.from_dict(d["best"]), family_best=d.get("family_best"),
+                   baselines=tuple(Baseline.from_dict(b) for b in d.get("baselines", [])),
+                   improvement_over_baselines_pct=d.get("improvement_over_baselines_pct", {}),
+                   goal=d.get("goal", "lowest_peak"), trials=trials, storage=d.get("storage", ""),
+                   study=d.get("study", ""), search_accuracy=d.get("search_accuracy", ""),
+                   elapsed_s=d.get("elapsed_s", 0.0), plots=tuple(d.get("plots", [])),
+                   holeshape_version=d.get("holeshape_version", ""), cautions=d.get("cautions", ""),
+                   front=None if d.get("front") is None else tuple(d["front"]),
+                   comparison=None if d.get("comparison") is None else tuple(d["comparison"]))
+
+
+@dataclass(frozen=True)
+class SweepRecord:
+    """What a parameter sweep found (``sweep.json``): the varied parameters, every point with its evaluation or the
+    reason it has none, and the level."""
+
+    study: str
+    vary: tuple[dict, ...]
+    points: tuple[dict, ...]
+    accuracy: str
+    elapsed_s: float
+    required_buckling_factor: float | None = None
+
+    @property
+    def with_stability(self) -> bool:
+        return self.required_buckling_factor is not None
+
+    def to_dict(self) -> dict:
+        d = {"study": self.study, "vary": list(self.vary), "points": list(self.points), "accuracy": self.accuracy,
+             "elapsed_s": self.elapsed_s}
+        if self.required_buckling_factor is not None:
+            d["required_buckling_factor"] = self.required_buckling_factor
+        return d
+
+    @classmethod
+    def from_dict(cls, d: dict) -> SweepRecord:
+        return cls(study=d["study"], vary=tuple(d["vary"]), points=tuple(d["points"]), accuracy=d["accuracy"],
+                   elapsed_s=d.get("elapsed_s", 0.0), required_buckling_factor=d.get("required_buckling_factor"))

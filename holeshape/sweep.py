@@ -56,7 +56,7 @@ def run_sweep(study_path: str, out: str, vary_texts: list[str]) -> dict:
     from holeshape.output import files
     from holeshape.output.report import build_report
     from holeshape.output.search_plots import plot_sweep
-    from holeshape.record import RunInputs
+    from holeshape.record import RunInputs, SweepRecord
     from holeshape.search.constraints import constraint_values, solved_constraint_values
     from holeshape.validation import run_validation
 
@@ -113,11 +113,12 @@ def run_sweep(study_path: str, out: str, vary_texts: list[str]) -> dict:
         except HoleshapeError as err:
             row["reason"] = f"{type(err).__name__}: {' '.join(str(err).split())}"
         points.append(row)
-    result = {"study": study.title, "vary": [v.__dict__ for v in varies], "points": points,
-              "accuracy": study.measure.accuracy, "elapsed_s": time.perf_counter() - t0}
-    if study.stability is not None:
-        result["required_buckling_factor"] = max(study.stability.required_factor,
-                                                 study.constraints.min_buckling_factor or 0.0)
+    record = SweepRecord(
+        study=study.title, vary=tuple(dict(v.__dict__) for v in varies), points=tuple(points),
+        accuracy=study.measure.accuracy, elapsed_s=time.perf_counter() - t0,
+        required_buckling_factor=None if study.stability is None else max(
+            study.stability.required_factor, study.constraints.min_buckling_factor or 0.0))
+    result = record.to_dict()
     files.write_json(out_dir / "sweep.json", result)
     plot_sweep(out_dir / "sweep.png", result, study.material.allowable_stress)
     files.write_json(out_dir / "inputs.json", RunInputs.from_study(study).to_dict())

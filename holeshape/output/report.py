@@ -8,9 +8,11 @@ import base64
 import html
 import json
 import math
+from dataclasses import asdict
 from pathlib import Path
 
 from holeshape.output.files import atomic_write
+from holeshape.record import DesignCheck, RunInputs, RunRecord, SweepRecord
 from holeshape.stability import FACTOR_MEANING, SUPPORT_NOTES
 
 SECTIONS = ("The job", "Study inputs", "Recommendation", "Comparison", "Stress", "Stability", "Evidence of accuracy",
@@ -161,9 +163,9 @@ def _advice(failed: list[dict]) -> list[str]:
     return [ADVICE[k] for k in dict.fromkeys(r.get("kind", "geometry") for r in failed)]
 
 
-def _summary_box(b: dict, summary: dict, md: bool) -> str:
+def _summary_box(b: DesignCheck, rec: RunRecord, md: bool) -> str:
     """The one-screen summary at the top: the verdict, the shape, peak, margin and buckling per case, the DXF."""
-    reqs = b.get("requirements", [])
+    reqs = [asdict(r) for r in b.requirements]
     failed = [r for r in reqs if not r["met"]]
     if not reqs:
         head = "No requirements were set beyond the geometry of the search."
@@ -171,19 +173,19 @@ def _summary_box(b: dict, summary: dict, md: bool) -> str:
         head = (f"FAILS {len(failed)} of {len(reqs)} requirements: "
                 + "; ".join(f"{r['requirement']} {req_value(r)} (required {r['limit']})" for r in failed))
     else:
-        head = f"Meets every requirement of the study ({len(reqs)} checked at the {b['accuracy']} level)."
+        head = f"Meets every requirement of the study ({len(reqs)} checked at the {b.accuracy} level)."
     rows = [{"name": c["name"], "peak_stress_mpa": c["peak_stress_mpa"], "margin_of_safety": c["margin_of_safety"],
              "buckling_load_factor": c.get("buckling_load_factor"), "verdict": c.get("verdict", "-")}
-            for c in b["load_cases"]]
+            for c in [c.to_dict() for c in b.load_cases]]
     cols = [("name", "load case"), ("peak_stress_mpa", "peak (MPa)"), ("margin_of_safety", "margin of safety")]
-    if b.get("stability") is not None:
+    if b.stability is not None:
         cols.append(("buckling_load_factor", "buckling factor"))
     cols.append(("verdict", "verdict"))
-    shape = f"{b['shape'].replace('_', ' ')}: {describe_params(b['params'])}"
-    goal = ("largest opening within every constraint" if summary.get("goal") == "largest_opening"
+    shape = f"{b.shape.replace('_', ' ')}: {describe_params(b.params)}"
+    goal = ("largest opening within every constraint" if rec.goal == "largest_opening"
             else "lowest peak stress within every constraint")
-    lines = [f"Verdict: {head}", f"Shape ({goal}): {shape}; removed area {b['area_mm2']:.0f} mm^2.",
-             f"Profile for CAD: {Path(b['dxf']).name}."]
+    lines = [f"Verdict: {head}", f"Shape ({goal}): {shape}; removed area {b.area_mm2:.0f} mm^2.",
+             f"Profile for CAD: {Path(b.dxf).name}."]
     if md:
         return "\n" + "\n\n".join(f"**{t}**" if i == 0 else t for i, t in enumerate(lines)) + "\n\n" + \
             _table(rows, cols, md)
@@ -197,8 +199,8 @@ def build_report(run_dir: str | Path, fmt: str = "html") -> Path:
     if (run / "sweep.json").exists() and not (run / "summary.json").exists():
         return build_sweep_report(run, fmt)
     try:
-        summary = json.loads((run / "summary.json").read_text())
-        inputs = json.loads((run / "inputs.json").read_text())
+        rec = RunRecord.from_summary(json.loads((run / "summary.json").read_text()))
+        inputs = RunInputs.from_dict(json.loads((run / "inputs.json").read_text()))
     except FileNotFoundError as err:
         from holeshape.errors import StudyError
 
@@ -224,48 +226,48 @@ def build_report(run_dir: str | Path, fmt: str = "html") -> Path:
             data = base64.b64encode(p.read_bytes()).decode()
             parts.append(f'<img alt="{html.escape(alt)}" src="data:image/png;base64,{data}">')
 
-    b = summary["best"]
-    title = inputs["title"]
+    b = rec.best
+    title = inputs.title
     parts.append(f"# {title}: cutout design report\n" if md else f"<h1>{html.escape(title)}: cutout design report</h1>")
-    para(f"holeshape {summary['holeshape_version']}; run folder {run}; generated from the stored results of the "
-         f"run finished {inputs.get('finished', '')}.")
-    parts.append(_summary_box(b, summary, md))
+    para(f"holeshape {rec.holeshape_version}; run folder {run}; generated from the stored results of the "
+         f"run finished {inputs.finished}.")
+    parts.append(_summary_box(b, rec, md))
     h2(SECTIONS[0])
     para(JOB)
     h2(SECTIONS[1])
-    parts.append(_table([inputs["panel"]], [("width", "width (mm)"), ("height", "height (mm)"),
+    parts.append(_table([inputs.panel], [("width", "width (mm)"), ("height", "height (mm)"),
                                             ("thickness", "thickness (mm)"), ("edges", "edge condition")], md))
-    parts.append(_table([inputs["material"]], [("name", "material"), ("youngs_modulus", "E (MPa)"),
+    parts.append(_table([inputs.material], [("name", "material"), ("youngs_modulus", "E (MPa)"),
                                                ("poisson_ratio", "Poisson's ratio"),
                                                ("allowable_stress", "allowable (MPa)")], md))
-    parts.append(_table(inputs["load_cases"], [("name", "load case"), ("sigma_x", "sigma_x (MPa)"),
+    parts.append(_table(list(inputs.load_cases), [("name", "load case"), ("sigma_x", "sigma_x (MPa)"),
                                                ("sigma_y", "sigma_y (MPa)"), ("tau_xy", "tau_xy (MPa)")], md))
-    cons = describe_constraints(inputs["constraints"])
+    cons = describe_constraints(inputs.constraints)
     if cons:
         parts.append(_table(cons, [("constraint", "requirement"), ("value", "value")], md))
-    search = inputs.get("search", {})
+    search = inputs.search
     if search.get("goal") == "largest_opening":
         para("Goal: the largest removed area that meets every constraint (a weight-reduction study).")
-    stab_in = inputs.get("stability")
+    stab_in = inputs.stability
     if stab_in:
         parts.append(_table([{**stab_in, "edge_support": stab_in["edge_support"].replace("_", " ")}],
                             [("edge_support", "buckling: panel edge support"),
                              ("required_factor", "required buckling factor"), ("modes", "mode shapes plotted")], md))
     h2(SECTIONS[2])
-    x0, y0, x1, y1 = b["bounds_mm"]
-    para(f"Recommended: {b['shape'].replace('_', ' ')} ({describe_params(b['params'])}); overall {x1 - x0:.1f} x "
-         f"{y1 - y0:.1f} mm; smallest radius {b['min_radius_mm']:.1f} mm"
-         + (f" at ({b['min_radius_at_mm'][0]:.1f}, {b['min_radius_at_mm'][1]:.1f}) mm" if b.get("min_radius_at_mm")
-            else "") + f"; removed area {b['area_mm2']:.0f} mm^2"
-         + (f" ({b['mass_saved_kg']:.3f} kg saved)" if b.get("mass_saved_kg") is not None else "")
-         + f"; profile {Path(b['dxf']).name}.")
-    ligs = [{"edge": k, "ligament_mm": v} for k, v in b.get("ligaments_mm", {}).items()]
+    x0, y0, x1, y1 = b.bounds_mm
+    para(f"Recommended: {b.shape.replace('_', ' ')} ({describe_params(b.params)}); overall {x1 - x0:.1f} x "
+         f"{y1 - y0:.1f} mm; smallest radius {b.min_radius_mm:.1f} mm"
+         + (f" at ({b.min_radius_at_mm[0]:.1f}, {b.min_radius_at_mm[1]:.1f}) mm" if b.min_radius_at_mm
+            else "") + f"; removed area {b.area_mm2:.0f} mm^2"
+         + (f" ({b.mass_saved_kg:.3f} kg saved)" if b.mass_saved_kg is not None else "")
+         + f"; profile {Path(b.dxf).name}.")
+    ligs = [{"edge": k, "ligament_mm": v} for k, v in b.ligaments_mm.items()]
     if ligs:
         parts.append(_table(ligs, [("edge", "panel edge"), ("ligament_mm", "ligament from the opening (mm)")], md))
-    parts.append(_table(b["load_cases"], [("name", "load case"), ("peak_stress_mpa", "peak (MPa)"), ("kt", "Kt"),
-                                          ("x_mm", "x (mm)"), ("y_mm", "y (mm)"),
-                                          ("margin_of_safety", "margin of safety")], md))
-    reqs = b.get("requirements", [])
+    parts.append(_table([c.to_dict() for c in b.load_cases], [
+        ("name", "load case"), ("peak_stress_mpa", "peak (MPa)"), ("kt", "Kt"), ("x_mm", "x (mm)"),
+        ("y_mm", "y (mm)"), ("margin_of_safety", "margin of safety")], md))
+    reqs = [asdict(r) for r in b.requirements]
     if reqs:
         failed = [r for r in reqs if not r["met"]]
         if failed:
@@ -275,29 +277,29 @@ def build_report(run_dir: str | Path, fmt: str = "html") -> Path:
                  + "; ".join(_advice(failed)) + ".", "warn")
         else:
             para(f"The recommended design meets every requirement of the study ({len(reqs)} checked at the "
-                 f"{b['accuracy']} level).")
+                 f"{b.accuracy} level).")
         parts.append(_table([{**r, "value": req_value(r), "met": "yes" if r["met"] else "NO"} for r in reqs],
                             [("requirement", "requirement"), ("value", "design"), ("limit", "required"),
                              ("met", "met")], md))
-    for w in b.get("warnings", []):
+    for w in b.warnings:
         para("WARNING: " + w, "warn")
     img("best_shape.png", "recommended profile in the panel with the access envelope and the standard shapes")
     h2(SECTIONS[3])
-    rows = [{"shape": "recommended " + b["shape"], "peak_stress_mpa": b["peak_stress_mpa"], "kt": b["kt"],
-             "area_mm2": b["area_mm2"], "buckling_load_factor": b.get("buckling_load_factor"), "note": ""}]
-    for r in summary["baselines"]:
-        imp = summary["improvement_over_baselines_pct"].get(r["shape"])
+    rows = [{"shape": "recommended " + b.shape, "peak_stress_mpa": b.peak_stress_mpa, "kt": b.kt,
+             "area_mm2": b.area_mm2, "buckling_load_factor": b.buckling_load_factor, "note": ""}]
+    for r in [x.to_dict() for x in rec.baselines]:
+        imp = rec.improvement_over_baselines_pct.get(r["shape"])
         rows.append({"shape": r["shape"], "peak_stress_mpa": r.get("peak_stress_mpa"), "kt": r.get("kt"),
                      "area_mm2": r.get("area_mm2"), "buckling_load_factor": r.get("buckling_load_factor"),
                      "note": f"recommended is {imp:+.1f} % lower" if imp is not None else r.get("reason", "")})
     cols = [("shape", "design"), ("peak_stress_mpa", "peak (MPa)"), ("kt", "Kt"), ("area_mm2", "area (mm^2)"),
             ("note", "")]
-    if b.get("stability") is not None:
+    if b.stability is not None:
         cols.insert(4, ("buckling_load_factor", "buckling factor"))
     parts.append(_table(rows, cols, md))
-    if summary.get("comparison"):
+    if rec.comparison:
         para("Best design of every shape family, same constraints and load cases, fine level:")
-        parts.append(_table(summary["comparison"], [
+        parts.append(_table(list(rec.comparison), [
             ("rank", "rank"), ("shape", "family"), ("peak_stress_mpa", "peak (MPa)"), ("kt", "Kt"),
             ("area_mm2", "area (mm^2)"), ("buckling_load_factor", "buckling factor"),
             ("governing_load_case", "governing load case"),
@@ -307,7 +309,7 @@ def build_report(run_dir: str | Path, fmt: str = "html") -> Path:
     img("best_stress_field.png", "stress field of the recommended design, governing load case")
     img("best_boundary_stress.png", "stress along the cutout edge, every load case, allowable drawn in")
     h2("Stability")
-    st = b.get("stability")
+    st = b.stability
     if st is None:
         para("Not assessed: the study has no [stability] table, so whether the web buckles under these loads is not "
              "checked here. In a thin web the opening often governs through buckling before the peak stress reaches "
@@ -342,10 +344,10 @@ def build_report(run_dir: str | Path, fmt: str = "html") -> Path:
                  "whole extrapolation step plus a measured floor.", None if st["meets_required_factor"] else "warn")
         img("best_buckling_mode.png", "buckling mode shape of the governing load case")
     h2(SECTIONS[6])
-    parts.append(_table(b.get("levels", []), [
+    parts.append(_table([asdict(x) for x in b.levels], [
         ("accuracy", "accuracy level"), ("dofs", "DOFs"), ("peak_stress_mpa", "peak (MPa)"),
         ("change_pct", "change from finest (%)"), ("error_estimate_pct", "error estimate (%)")], md))
-    para(f"Reported figures are at the {b['accuracy']} level; error estimate {sig(b['error_estimate_pct'])} % "
+    para(f"Reported figures are at the {b.accuracy} level; error estimate {sig(b.error_estimate_pct)} % "
          "(change of the peak to a mesh with every element size doubled, plus the measured scatter floor).")
     h2(SECTIONS[7])
     para("The same pipeline at the same accuracy level on published reference cases:")
@@ -355,14 +357,14 @@ def build_report(run_dir: str | Path, fmt: str = "html") -> Path:
     h2(SECTIONS[8])
     img("search_history.png", "search history, best so far against trial")
     img("trade_off_front.png", "trade-off front, removed area against peak stress")
-    para(f"{summary['trials_completed']} trials completed ({summary['trials_infeasible']} infeasible, not solved), "
-         f"{summary['trials_failed']} failed; storage {summary['storage']}.")
+    para(f"{rec.trials.completed} trials completed ({rec.trials.infeasible} infeasible, not solved), "
+         f"{rec.trials.failed} failed; storage {rec.storage}.")
     h2(SECTIONS[9])
-    edges = inputs["panel"]["edges"]
+    edges = inputs.panel["edges"]
     meaning = ("remote stress applied as edge tractions: a large panel free to redistribute load" if edges == "traction"
                else "remote strain imposed on the edges: a web bounded by stiff members")
     para(f"Isotropic material, uniform remote stresses per load case; in-plane edge condition '{edges}' ({meaning}).")
-    para(summary["cautions"], "caution")
+    para(rec.cautions, "caution")
     if md:
         text = "\n".join(parts)
         return atomic_write(run / "report.md", text)
@@ -376,8 +378,8 @@ SWEEP_SECTIONS = ("The job", "Study inputs", "Sweep", "Validation appendix", "As
 
 def build_sweep_report(run: Path, fmt: str = "html") -> Path:
     """Report of a parameter sweep: inputs, the curves or map, every point, the validation appendix, cautions."""
-    sweep = json.loads((run / "sweep.json").read_text())
-    inputs = json.loads((run / "inputs.json").read_text())
+    sweep = SweepRecord.from_dict(json.loads((run / "sweep.json").read_text()))
+    inputs = RunInputs.from_dict(json.loads((run / "inputs.json").read_text()))
     validation = json.loads((run / "validation.json").read_text()) if (run / "validation.json").exists() else []
     md = fmt == "markdown"
     parts: list[str] = []
@@ -386,16 +388,16 @@ def build_sweep_report(run: Path, fmt: str = "html") -> Path:
         parts.append((f"\n## {t}\n" if tag == "h2" else f"\n{t}\n") if md else
                      f"<{tag}>{html.escape(t)}</{tag}>")
 
-    title = inputs["title"]
+    title = inputs.title
     parts.append(f"# {title}: parameter sweep\n" if md else f"<h1>{html.escape(title)}: parameter sweep</h1>")
     add(SWEEP_SECTIONS[0], "h2")
     add("A classic parameter study of the cutout: every point is a verified evaluation (two mesh levels, error "
-        f"estimate) at the {sweep['accuracy']} level, for every load case; points that break a constraint are kept"
+        f"estimate) at the {sweep.accuracy} level, for every load case; points that break a constraint are kept"
         " and marked.")
     add(SWEEP_SECTIONS[1], "h2")
-    parts.append(_table([inputs["panel"]], [("width", "width (mm)"), ("height", "height (mm)"),
+    parts.append(_table([inputs.panel], [("width", "width (mm)"), ("height", "height (mm)"),
                                             ("thickness", "thickness (mm)"), ("edges", "edge condition")], md))
-    parts.append(_table(inputs["load_cases"], [("name", "load case"), ("sigma_x", "sigma_x (MPa)"),
+    parts.append(_table(list(inputs.load_cases), [("name", "load case"), ("sigma_x", "sigma_x (MPa)"),
                                                ("sigma_y", "sigma_y (MPa)"), ("tau_xy", "tau_xy (MPa)")], md))
     add(SWEEP_SECTIONS[2], "h2")
     p = run / "sweep.png"
@@ -403,7 +405,7 @@ def build_sweep_report(run: Path, fmt: str = "html") -> Path:
         parts.append("\n![sweep](sweep.png)\n")
     elif p.exists():
         parts.append(f'<img alt="sweep" src="data:image/png;base64,{base64.b64encode(p.read_bytes()).decode()}">')
-    rows = [{"point": ", ".join(f"{k} = {v:.4g}" for k, v in pt["coords"].items()), **pt} for pt in sweep["points"]]
+    rows = [{"point": ", ".join(f"{k} = {v:.4g}" for k, v in pt["coords"].items()), **pt} for pt in sweep.points]
     cols = [("point", "parameters"), ("peak_stress_mpa", "peak (MPa)"), ("kt", "Kt"),
             ("area_mm2", "area (mm^2)"), ("error_estimate_pct", "error estimate (%)"),
             ("feasible", "meets constraints"), ("reason", "note")]
@@ -417,7 +419,7 @@ def build_sweep_report(run: Path, fmt: str = "html") -> Path:
     add(SWEEP_SECTIONS[4], "h2")
     from holeshape import cautions
 
-    add(cautions("required_buckling_factor" in sweep))
+    add(cautions(sweep.with_stability))
     if md:
         return atomic_write(run / "report.md", "\n".join(parts))
     doc = (f"<!DOCTYPE html><html lang=\"en\"><head><meta charset=\"utf-8\"><title>{html.escape(title)}</title>"

@@ -2,8 +2,11 @@
 
 from __future__ import annotations
 
+from dataclasses import asdict
+
 from holeshape import cautions
 from holeshape.evaluate import STRESS_LABELS, Evaluation
+from holeshape.record import RunRecord
 from holeshape.stability import FACTOR_MEANING, SUPPORT_NOTES
 
 
@@ -95,40 +98,42 @@ def check_summary(title: str, family: str, params: dict, ev: Evaluation, edges_n
     return "\n".join(lines)
 
 
-def optimise_summary(s: dict) -> str:
-    b = s["best"]
-    dims = ", ".join(f"{k} = {_num(v)}" for k, v in b["params"].items())
-    x0, y0, x1, y1 = b["bounds_mm"]
+def optimise_summary(rec: RunRecord) -> str:
+    """The text summary of a search run, from its typed record."""
+    b = rec.best
+    dims = ", ".join(f"{k} = {_num(v)}" for k, v in b.params.items())
+    x0, y0, x1, y1 = b.bounds_mm
+    t = rec.trials
     lines = [
-        f"holeshape optimise: {s['study']}",
-        f"  trials        {s['trials_completed']} completed ({s['trials_infeasible']} infeasible, not solved),"
-        f" {s['trials_failed']} failed; storage {s['storage']}",
-        f"  best          {b['shape']}: {dims}",
-        f"  size          {x1 - x0:.1f} x {y1 - y0:.1f} mm overall, smallest radius {b['min_radius_mm']:.2f} mm,"
-        f" removed area {b['area_mm2']:.0f} mm^2",
-        f"  peak          {b['peak_stress_mpa']:.2f} MPa, Kt {b['kt']:.3f} ({b['kt_reference']}), error estimate"
-        f" {b['error_estimate_pct']:.3f} % at the {b['accuracy']} level",
-        f"  margin        {_fmt_mos(b['margin_of_safety'])}",
+        f"holeshape optimise: {rec.study}",
+        f"  trials        {t.completed} completed ({t.infeasible} infeasible), {t.failed} failed;"
+        f" storage {rec.storage}",
+        f"  best          {b.shape}: {dims}",
+        f"  size          {x1 - x0:.1f} x {y1 - y0:.1f} mm overall, smallest radius {b.min_radius_mm:.2f} mm,"
+        f" removed area {b.area_mm2:.0f} mm^2",
+        f"  peak          {b.peak_stress_mpa:.2f} MPa, Kt {b.kt:.3f} ({b.kt_reference}), error estimate"
+        f" {b.error_estimate_pct:.3f} % at the {b.accuracy} level",
+        f"  margin        {_fmt_mos(b.margin_of_safety)}",
     ]
-    if s.get("goal") == "largest_opening":
-        mass = "" if b.get("mass_saved_kg") is None else f" ({b['mass_saved_kg']:.3f} kg saved)"
-        lines.insert(2, f"  goal          largest opening within every constraint: {b['area_mm2']:.0f} mm^2"
+    if rec.goal == "largest_opening":
+        mass = "" if b.mass_saved_kg is None else f" ({b.mass_saved_kg:.3f} kg saved)"
+        lines.insert(2, f"  goal          largest opening within every constraint: {b.area_mm2:.0f} mm^2"
                         f" removed{mass}")
-    for r in b["load_cases"]:
-        mos = "" if r["margin_of_safety"] is None else f", MoS {r['margin_of_safety']:+.3f}"
-        lines.append(f"    {r['name']}: {r['peak_stress_mpa']:.2f} MPa at ({r['x_mm']:.1f}, {r['y_mm']:.1f}) mm{mos}")
-    if s["baselines"]:
+    for r in b.load_cases:
+        mos = "" if r.margin_of_safety is None else f", MoS {r.margin_of_safety:+.3f}"
+        lines.append(f"    {r.name}: {r.peak_stress_mpa:.2f} MPa at ({r.x_mm:.1f}, {r.y_mm:.1f}) mm{mos}")
+    if rec.baselines:
         lines.append("  standard shapes (same constraints, fine level):")
-    for row in s["baselines"]:
-        if row.get("feasible"):
-            imp = s["improvement_over_baselines_pct"][row["shape"]]
-            lines.append(f"    {row['shape']:<18} {row['peak_stress_mpa']:8.2f} MPa, area {row['area_mm2']:.0f} mm^2;"
+    for row in rec.baselines:
+        if row.feasible:
+            imp = rec.improvement_over_baselines_pct[row.shape]
+            lines.append(f"    {row.shape:<18} {row.peak_stress_mpa:8.2f} MPa, area {row.area_mm2:.0f} mm^2;"
                          f" best is {imp:+.1f} % {'lower' if imp >= 0 else 'higher'}")
         else:
-            lines.append(f"    {row['shape']:<18} cannot meet the constraints: {row['reason']}")
-    if s.get("front"):
-        lines.append(f"  trade-off     {len(s['front'])} designs on the front (draft level), one DXF each")
-    st = b.get("stability")
+            lines.append(f"    {row.shape:<18} cannot meet the constraints: {row.reason}")
+    if rec.front:
+        lines.append(f"  trade-off     {len(rec.front)} designs on the front (draft level), one DXF each")
+    st = b.stability
     if st is not None:
         lines.append(f"  stability     lowest buckling factor {_factor(st['buckling_load_factor'])}"
                      f" ({st['buckling_governing_load_case'] or 'no case buckles'}), required"
@@ -138,19 +143,18 @@ def optimise_summary(s: dict) -> str:
         for c in st["cases"]:
             lines.append(f"    {c['name']}: factor {_factor(c['load_factor'])}, without the cutout"
                          f" {_factor(c['unperforated_factor'])}")
-    refused = s.get("trials_refused_after_solve", {})
+    refused = t.refused_after_solve
     if refused.get("buckling"):
         lines.append(f"  refused       {refused['buckling']} solved designs that met every geometric constraint"
                      " buckled below the required factor")
     if refused.get("margin"):
         lines.append(f"  refused       {refused['margin']} solved designs that met every geometric constraint"
                      " missed the margin")
-    lines += requirement_lines(b.get("requirements", []))
-    for w in b["warnings"]:
+    lines += requirement_lines([asdict(r) for r in b.requirements])
+    for w in b.warnings:
         lines.append(f"  WARNING       {w}")
-    lines.append(f"  profile       {b['dxf']} ({b['dxf_vertices']} vertices,"
-                 f" chord error {b['dxf_chord_error_mm']:.4f} mm)")
-    lines += ["", "  CAUTION: " + s.get("cautions", cautions(False))]
+    lines.append(f"  profile       {b.dxf} ({b.dxf_vertices} vertices, chord error {b.dxf_chord_error_mm:.4f} mm)")
+    lines += ["", "  CAUTION: " + (rec.cautions or cautions(False))]
     return "\n".join(lines)
 
 
