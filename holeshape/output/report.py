@@ -194,7 +194,46 @@ def _summary_box(b: DesignCheck, rec: RunRecord, md: bool) -> str:
             + "".join(f"<p>{html.escape(t)}</p>" for t in lines[1:]) + _table(rows, cols, md) + "</div>")
 
 
+class Page:
+    """The report being written: HTML or Markdown blocks in order, images embedded (HTML) or beside it (Markdown)."""
+
+    def __init__(self, run: Path, md: bool):
+        self.run, self.md, self.parts = run, md, []
+
+    def h2(self, t: str) -> None:
+        self.parts.append(f"\n## {t}\n" if self.md else
+                          f'<h2 id="{t.lower().replace(" ", "-")}">{html.escape(t)}</h2>')
+
+    def para(self, t: str, cls: str | None = None) -> None:
+        self.parts.append(f"\n{t}\n" if self.md else
+                          f"<p{f' class={chr(34)}{cls}{chr(34)}' if cls else ''}>{html.escape(t)}</p>")
+
+    def table(self, rows: list[dict], cols: list[tuple[str, str]]) -> None:
+        self.parts.append(_table(rows, cols, self.md))
+
+    def raw(self, block: str) -> None:
+        self.parts.append(block)
+
+    def img(self, name: str, alt: str) -> None:
+        p = self.run / name
+        if not p.exists():
+            return
+        if self.md:
+            self.parts.append(f"\n![{alt}]({name})\n")
+        else:
+            data = base64.b64encode(p.read_bytes()).decode()
+            self.parts.append(f'<img alt="{html.escape(alt)}" src="data:image/png;base64,{data}">')
+
+    def write(self, title: str, stem: str = "report") -> Path:
+        if self.md:
+            return atomic_write(self.run / f"{stem}.md", "\n".join(self.parts))
+        doc = (f"<!DOCTYPE html><html lang=\"en\"><head><meta charset=\"utf-8\"><title>{html.escape(title)}</title>"
+               f"<style>{CSS}</style></head><body>" + "\n".join(self.parts) + LOAD_CHECK + "</body></html>\n")
+        return atomic_write(self.run / f"{stem}.html", doc)
+
+
 def build_report(run_dir: str | Path, fmt: str = "html") -> Path:
+    """report.html (or report.md) of a finished run, from its stored record only: the sections of SECTIONS."""
     run = Path(run_dir)
     if (run / "sweep.json").exists() and not (run / "summary.json").exists():
         return build_sweep_report(run, fmt)
@@ -207,170 +246,173 @@ def build_report(run_dir: str | Path, fmt: str = "html") -> Path:
         raise StudyError(f"{str(run)!r} holds no finished run (summary.json and inputs.json are written at the end of"
                          " holeshape optimise)") from err
     validation = json.loads((run / "validation.json").read_text()) if (run / "validation.json").exists() else []
-    md = fmt == "markdown"
-    parts: list[str] = []
-
-    def h2(t):
-        parts.append(f"\n## {t}\n" if md else f'<h2 id="{t.lower().replace(" ", "-")}">{html.escape(t)}</h2>')
-
-    def para(t, cls=None):
-        parts.append(f"\n{t}\n" if md else f"<p{f' class={chr(34)}{cls}{chr(34)}' if cls else ''}>{html.escape(t)}</p>")
-
-    def img(name, alt):
-        p = run / name
-        if not p.exists():
-            return
-        if md:
-            parts.append(f"\n![{alt}]({name})\n")
-        else:
-            data = base64.b64encode(p.read_bytes()).decode()
-            parts.append(f'<img alt="{html.escape(alt)}" src="data:image/png;base64,{data}">')
-
-    b = rec.best
+    page = Page(run, fmt == "markdown")
     title = inputs.title
-    parts.append(f"# {title}: cutout design report\n" if md else f"<h1>{html.escape(title)}: cutout design report</h1>")
-    para(f"holeshape {rec.holeshape_version}; run folder {run}; generated from the stored results of the "
-         f"run finished {inputs.finished}.")
-    parts.append(_summary_box(b, rec, md))
-    h2(SECTIONS[0])
-    para(JOB)
-    h2(SECTIONS[1])
-    parts.append(_table([inputs.panel], [("width", "width (mm)"), ("height", "height (mm)"),
-                                            ("thickness", "thickness (mm)"), ("edges", "edge condition")], md))
-    parts.append(_table([inputs.material], [("name", "material"), ("youngs_modulus", "E (MPa)"),
-                                               ("poisson_ratio", "Poisson's ratio"),
-                                               ("allowable_stress", "allowable (MPa)")], md))
-    parts.append(_table(list(inputs.load_cases), [("name", "load case"), ("sigma_x", "sigma_x (MPa)"),
-                                               ("sigma_y", "sigma_y (MPa)"), ("tau_xy", "tau_xy (MPa)")], md))
+    page.raw(f"# {title}: cutout design report\n" if page.md else
+             f"<h1>{html.escape(title)}: cutout design report</h1>")
+    page.para(f"holeshape {rec.holeshape_version}; run folder {run}; generated from the stored results of the "
+              f"run finished {inputs.finished}.")
+    page.raw(_summary_box(rec.best, rec, page.md))
+    page.h2(SECTIONS[0])
+    page.para(JOB)
+    section_inputs(page, inputs)
+    section_recommendation(page, rec.best)
+    section_comparison(page, rec)
+    page.h2(SECTIONS[4])
+    page.img("best_stress_field.png", "stress field of the recommended design, governing load case")
+    page.img("best_boundary_stress.png", "stress along the cutout edge, every load case, allowable drawn in")
+    section_stability(page, rec.best.stability)
+    section_evidence(page, rec.best)
+    section_validation(page, validation)
+    page.h2(SECTIONS[8])
+    page.img("search_history.png", "search history, best so far against trial")
+    page.img("trade_off_front.png", "trade-off front, removed area against peak stress")
+    page.para(f"{rec.trials.completed} trials completed ({rec.trials.infeasible} infeasible), "
+              f"{rec.trials.failed} failed; storage {rec.storage}.")
+    section_cautions(page, inputs, rec.cautions)
+    return page.write(title)
+
+
+def section_inputs(page: Page, inputs: RunInputs) -> None:
+    page.h2(SECTIONS[1])
+    page.table([inputs.panel], [("width", "width (mm)"), ("height", "height (mm)"), ("thickness", "thickness (mm)"),
+                                ("edges", "edge condition")])
+    page.table([inputs.material], [("name", "material"), ("youngs_modulus", "E (MPa)"),
+                                   ("poisson_ratio", "Poisson's ratio"), ("allowable_stress", "allowable (MPa)")])
+    page.table(list(inputs.load_cases), [("name", "load case"), ("sigma_x", "sigma_x (MPa)"),
+                                         ("sigma_y", "sigma_y (MPa)"), ("tau_xy", "tau_xy (MPa)")])
     cons = describe_constraints(inputs.constraints)
     if cons:
-        parts.append(_table(cons, [("constraint", "requirement"), ("value", "value")], md))
-    search = inputs.search
-    if search.get("goal") == "largest_opening":
-        para("Goal: the largest removed area that meets every constraint (a weight-reduction study).")
+        page.table(cons, [("constraint", "requirement"), ("value", "value")])
+    if inputs.search.get("goal") == "largest_opening":
+        page.para("Goal: the largest removed area that meets every constraint (a weight-reduction study).")
     stab_in = inputs.stability
     if stab_in:
-        parts.append(_table([{**stab_in, "edge_support": stab_in["edge_support"].replace("_", " ")}],
-                            [("edge_support", "buckling: panel edge support"),
-                             ("required_factor", "required buckling factor"), ("modes", "mode shapes plotted")], md))
-    h2(SECTIONS[2])
+        page.table([{**stab_in, "edge_support": stab_in["edge_support"].replace("_", " ")}],
+                   [("edge_support", "buckling: panel edge support"), ("required_factor", "required buckling factor"),
+                    ("modes", "mode shapes plotted")])
+
+
+def section_recommendation(page: Page, b: DesignCheck) -> None:
+    page.h2(SECTIONS[2])
     x0, y0, x1, y1 = b.bounds_mm
-    para(f"Recommended: {b.shape.replace('_', ' ')} ({describe_params(b.params)}); overall {x1 - x0:.1f} x "
-         f"{y1 - y0:.1f} mm; smallest radius {b.min_radius_mm:.1f} mm"
-         + (f" at ({b.min_radius_at_mm[0]:.1f}, {b.min_radius_at_mm[1]:.1f}) mm" if b.min_radius_at_mm
-            else "") + f"; removed area {b.area_mm2:.0f} mm^2"
-         + (f" ({b.mass_saved_kg:.3f} kg saved)" if b.mass_saved_kg is not None else "")
-         + f"; profile {Path(b.dxf).name}.")
+    page.para(f"Recommended: {b.shape.replace('_', ' ')} ({describe_params(b.params)}); overall {x1 - x0:.1f} x "
+              f"{y1 - y0:.1f} mm; smallest radius {b.min_radius_mm:.1f} mm"
+              + (f" at ({b.min_radius_at_mm[0]:.1f}, {b.min_radius_at_mm[1]:.1f}) mm" if b.min_radius_at_mm else "")
+              + f"; removed area {b.area_mm2:.0f} mm^2"
+              + (f" ({b.mass_saved_kg:.3f} kg saved)" if b.mass_saved_kg is not None else "")
+              + f"; profile {Path(b.dxf).name}.")
     ligs = [{"edge": k, "ligament_mm": v} for k, v in b.ligaments_mm.items()]
     if ligs:
-        parts.append(_table(ligs, [("edge", "panel edge"), ("ligament_mm", "ligament from the opening (mm)")], md))
-    parts.append(_table([c.to_dict() for c in b.load_cases], [
+        page.table(ligs, [("edge", "panel edge"), ("ligament_mm", "ligament from the opening (mm)")])
+    page.table([c.to_dict() for c in b.load_cases], [
         ("name", "load case"), ("peak_stress_mpa", "peak (MPa)"), ("kt", "Kt"), ("x_mm", "x (mm)"),
-        ("y_mm", "y (mm)"), ("margin_of_safety", "margin of safety")], md))
+        ("y_mm", "y (mm)"), ("margin_of_safety", "margin of safety")])
     reqs = [asdict(r) for r in b.requirements]
     if reqs:
         failed = [r for r in reqs if not r["met"]]
         if failed:
-            para(f"The recommended design FAILS {len(failed)} of {len(reqs)} requirements of the study: "
-                 + "; ".join(f"{r['requirement']} is {req_value(r)}, required {r['limit']}" for r in failed)
-                 + ". It is the best the search found, not a design that passes. What can change: "
-                 + "; ".join(_advice(failed)) + ".", "warn")
+            page.para(f"The recommended design FAILS {len(failed)} of {len(reqs)} requirements of the study: "
+                      + "; ".join(f"{r['requirement']} is {req_value(r)}, required {r['limit']}" for r in failed)
+                      + ". It is the best the search found, not a design that passes. What can change: "
+                      + "; ".join(_advice(failed)) + ".", "warn")
         else:
-            para(f"The recommended design meets every requirement of the study ({len(reqs)} checked at the "
-                 f"{b.accuracy} level).")
-        parts.append(_table([{**r, "value": req_value(r), "met": "yes" if r["met"] else "NO"} for r in reqs],
-                            [("requirement", "requirement"), ("value", "design"), ("limit", "required"),
-                             ("met", "met")], md))
+            page.para(f"The recommended design meets every requirement of the study ({len(reqs)} checked at the "
+                      f"{b.accuracy} level).")
+        page.table([{**r, "value": req_value(r), "met": "yes" if r["met"] else "NO"} for r in reqs],
+                   [("requirement", "requirement"), ("value", "design"), ("limit", "required"), ("met", "met")])
     for w in b.warnings:
-        para("WARNING: " + w, "warn")
-    img("best_shape.png", "recommended profile in the panel with the access envelope and the standard shapes")
-    h2(SECTIONS[3])
+        page.para("WARNING: " + w, "warn")
+    page.img("best_shape.png", "recommended profile in the panel with the access envelope and the standard shapes")
+
+
+def section_comparison(page: Page, rec: RunRecord) -> None:
+    b = rec.best
+    page.h2(SECTIONS[3])
     rows = [{"shape": "recommended " + b.shape, "peak_stress_mpa": b.peak_stress_mpa, "kt": b.kt,
              "area_mm2": b.area_mm2, "buckling_load_factor": b.buckling_load_factor, "note": ""}]
-    for r in [x.to_dict() for x in rec.baselines]:
-        imp = rec.improvement_over_baselines_pct.get(r["shape"])
-        rows.append({"shape": r["shape"], "peak_stress_mpa": r.get("peak_stress_mpa"), "kt": r.get("kt"),
-                     "area_mm2": r.get("area_mm2"), "buckling_load_factor": r.get("buckling_load_factor"),
-                     "note": f"recommended is {imp:+.1f} % lower" if imp is not None else r.get("reason", "")})
+    for r in rec.baselines:
+        imp = rec.improvement_over_baselines_pct.get(r.shape)
+        rows.append({"shape": r.shape, "peak_stress_mpa": r.peak_stress_mpa, "kt": r.kt, "area_mm2": r.area_mm2,
+                     "buckling_load_factor": r.buckling_load_factor,
+                     "note": f"recommended is {imp:+.1f} % lower" if imp is not None else (r.reason or "")})
     cols = [("shape", "design"), ("peak_stress_mpa", "peak (MPa)"), ("kt", "Kt"), ("area_mm2", "area (mm^2)"),
             ("note", "")]
     if b.stability is not None:
         cols.insert(4, ("buckling_load_factor", "buckling factor"))
-    parts.append(_table(rows, cols, md))
+    page.table(rows, cols)
     if rec.comparison:
-        para("Best design of every shape family, same constraints and load cases, fine level:")
-        parts.append(_table(list(rec.comparison), [
+        page.para("Best design of every shape family, same constraints and load cases, fine level:")
+        page.table(list(rec.comparison), [
             ("rank", "rank"), ("shape", "family"), ("peak_stress_mpa", "peak (MPa)"), ("kt", "Kt"),
             ("area_mm2", "area (mm^2)"), ("buckling_load_factor", "buckling factor"),
             ("governing_load_case", "governing load case"),
-            ("improvement_over_circle_pct", "improvement over circle (%)"), ("reason", "note")], md))
-        img("compare_shapes.png", "best outline of every family, overlaid")
-    h2(SECTIONS[4])
-    img("best_stress_field.png", "stress field of the recommended design, governing load case")
-    img("best_boundary_stress.png", "stress along the cutout edge, every load case, allowable drawn in")
-    h2("Stability")
-    st = b.stability
+            ("improvement_over_circle_pct", "improvement over circle (%)"), ("reason", "note")])
+        page.img("compare_shapes.png", "best outline of every family, overlaid")
+
+
+def section_stability(page: Page, st: dict | None) -> None:
+    page.h2(SECTIONS[5])
     if st is None:
-        para("Not assessed: the study has no [stability] table, so whether the web buckles under these loads is not "
-             "checked here. In a thin web the opening often governs through buckling before the peak stress reaches "
-             "the allowable: add [stability] to the study to check it.", "warn")
+        page.para("Not assessed: the study has no [stability] table, so whether the web buckles under these loads is "
+                  "not checked here. In a thin web the opening often governs through buckling before the peak stress "
+                  "reaches the allowable: add [stability] to the study to check it.", "warn")
+        return
+    edges_ip = st["in_plane_edges"]
+    page.para(f"Linear (eigenvalue) buckling of the panel with its cutout: Kirchhoff plate of the panel's thickness "
+              f"under the plane-stress prestress of each load case; panel edges {SUPPORT_NOTES[st['edge_support']]}, "
+              f"cutout edge free; in-plane edges '{edges_ip}': {FACTOR_MEANING[edges_ip]}. Required factor "
+              f"{st['required_factor']:g}.")
+    rows = []
+    for c in st["cases"]:
+        f, fu = c["load_factor"], c["unperforated_factor"]
+        cost = None if f is None or fu is None else 100 * (1 - f / fu)
+        rows.append({"name": c["name"], "factor": _factor(f), "reserve": c["reserve"],
+                     "estimate_pct": c["error_estimate_pct"], "plain": _factor(fu),
+                     "cost": None if cost is None else f"{cost:.0f} %",
+                     "levels": ", ".join(_factor(x) for x in c["level_factors"])})
+    page.table(rows, [("name", "load case"), ("factor", "buckling load factor"),
+                      ("reserve", "reserve (factor / required)"), ("estimate_pct", "error estimate (%)"),
+                      ("plain", "without the cutout"), ("cost", "lost to the opening"),
+                      ("levels", "factor per plate mesh (coarse to fine)")])
+    gov = st.get("buckling_governing_load_case")
+    if gov is None:
+        page.para("No load case buckles the web below the factor ceiling (no compression to buckle it).")
     else:
-        edges_ip = st["in_plane_edges"]
-        para(f"Linear (eigenvalue) buckling of the panel with its cutout: Kirchhoff plate of the panel's thickness "
-             f"under the plane-stress prestress of each load case; panel edges {SUPPORT_NOTES[st['edge_support']]}, "
-             f"cutout edge free; in-plane edges '{edges_ip}': {FACTOR_MEANING[edges_ip]}. Required factor "
-             f"{st['required_factor']:g}.")
-        rows = []
-        for c in st["cases"]:
-            f, fu = c["load_factor"], c["unperforated_factor"]
-            cost = None if f is None or fu is None else 100 * (1 - f / fu)
-            rows.append({"name": c["name"], "factor": _factor(f), "reserve": c["reserve"],
-                         "estimate_pct": c["error_estimate_pct"], "plain": _factor(fu),
-                         "cost": None if cost is None else f"{cost:.0f} %",
-                         "levels": ", ".join(_factor(x) for x in c["level_factors"])})
-        parts.append(_table(rows, [("name", "load case"), ("factor", "buckling load factor"),
-                                   ("reserve", "reserve (factor / required)"),
-                                   ("estimate_pct", "error estimate (%)"),
-                                   ("plain", "without the cutout"), ("cost", "lost to the opening"),
-                                   ("levels", "factor per plate mesh (coarse to fine)")], md))
-        gov = st.get("buckling_governing_load_case")
-        if gov is None:
-            para("No load case buckles the web below the factor ceiling (no compression to buckle it).")
-        else:
-            verdict = "meets" if st["meets_required_factor"] else "DOES NOT meet"
-            para(f"Lowest buckling load factor {st['buckling_load_factor']:.3f} ({gov}): {verdict} the required "
-                 f"{st['required_factor']:g}. Reported factors are Richardson extrapolations of the two finest plate "
-                 f"meshes (Morley elements, {', '.join(str(n) for n in st['level_dofs'])} DOFs); the estimate is the "
-                 "whole extrapolation step plus a measured floor.", None if st["meets_required_factor"] else "warn")
-        img("best_buckling_mode.png", "buckling mode shape of the governing load case")
-    h2(SECTIONS[6])
-    parts.append(_table([asdict(x) for x in b.levels], [
+        meets = st["meets_required_factor"]
+        page.para(f"Lowest buckling load factor {st['buckling_load_factor']:.3f} ({gov}): "
+                  f"{'meets' if meets else 'DOES NOT meet'} the required {st['required_factor']:g}. Reported factors "
+                  f"are Richardson extrapolations of the two finest plate meshes (Morley elements, "
+                  f"{', '.join(str(n) for n in st['level_dofs'])} DOFs); the estimate is the whole extrapolation "
+                  "step plus a measured floor.", None if meets else "warn")
+    page.img("best_buckling_mode.png", "buckling mode shape of the governing load case")
+
+
+def section_evidence(page: Page, b: DesignCheck) -> None:
+    page.h2(SECTIONS[6])
+    page.table([asdict(x) for x in b.levels], [
         ("accuracy", "accuracy level"), ("dofs", "DOFs"), ("peak_stress_mpa", "peak (MPa)"),
-        ("change_pct", "change from finest (%)"), ("error_estimate_pct", "error estimate (%)")], md))
-    para(f"Reported figures are at the {b.accuracy} level; error estimate {sig(b.error_estimate_pct)} % "
-         "(change of the peak to a mesh with every element size doubled, plus the measured scatter floor).")
-    h2(SECTIONS[7])
-    para("The same pipeline at the same accuracy level on published reference cases:")
-    parts.append(_table(validation, [("case", "case"), ("source", "source"), ("published", "published (MPa)"),
-                                     ("holeshape", "holeshape (MPa)"), ("error_pct", "error (%)"),
-                                     ("tolerance_pct", "tolerance (%)"), ("within", "within")], md))
-    h2(SECTIONS[8])
-    img("search_history.png", "search history, best so far against trial")
-    img("trade_off_front.png", "trade-off front, removed area against peak stress")
-    para(f"{rec.trials.completed} trials completed ({rec.trials.infeasible} infeasible, not solved), "
-         f"{rec.trials.failed} failed; storage {rec.storage}.")
-    h2(SECTIONS[9])
+        ("change_pct", "change from finest (%)"), ("error_estimate_pct", "error estimate (%)")])
+    page.para(f"Reported figures are at the {b.accuracy} level; error estimate {sig(b.error_estimate_pct)} % "
+              "(change of the peak to a mesh with every element size doubled, plus the measured scatter floor).")
+
+
+def section_validation(page: Page, validation: list[dict]) -> None:
+    page.h2(SECTIONS[7])
+    page.para("The same pipeline at the same accuracy level on published reference cases:")
+    page.table(validation, [("case", "case"), ("source", "source"), ("published", "published (MPa)"),
+                            ("holeshape", "holeshape (MPa)"), ("error_pct", "error (%)"),
+                            ("tolerance_pct", "tolerance (%)"), ("within", "within")])
+
+
+def section_cautions(page: Page, inputs: RunInputs, cautions_text: str) -> None:
+    page.h2(SECTIONS[9])
     edges = inputs.panel["edges"]
     meaning = ("remote stress applied as edge tractions: a large panel free to redistribute load" if edges == "traction"
                else "remote strain imposed on the edges: a web bounded by stiff members")
-    para(f"Isotropic material, uniform remote stresses per load case; in-plane edge condition '{edges}' ({meaning}).")
-    para(rec.cautions, "caution")
-    if md:
-        text = "\n".join(parts)
-        return atomic_write(run / "report.md", text)
-    doc = (f"<!DOCTYPE html><html lang=\"en\"><head><meta charset=\"utf-8\"><title>{html.escape(title)}</title>"
-           f"<style>{CSS}</style></head><body>" + "\n".join(parts) + LOAD_CHECK + "</body></html>\n")
-    return atomic_write(run / "report.html", doc)
+    page.para(f"Isotropic material, uniform remote stresses per load case; in-plane edge condition '{edges}' "
+              f"({meaning}).")
+    page.para(cautions_text, "caution")
 
 
 SWEEP_SECTIONS = ("The job", "Study inputs", "Sweep", "Validation appendix", "Assumptions and cautions")
@@ -378,50 +420,33 @@ SWEEP_SECTIONS = ("The job", "Study inputs", "Sweep", "Validation appendix", "As
 
 def build_sweep_report(run: Path, fmt: str = "html") -> Path:
     """Report of a parameter sweep: inputs, the curves or map, every point, the validation appendix, cautions."""
+    from holeshape import cautions
+
     sweep = SweepRecord.from_dict(json.loads((run / "sweep.json").read_text()))
     inputs = RunInputs.from_dict(json.loads((run / "inputs.json").read_text()))
     validation = json.loads((run / "validation.json").read_text()) if (run / "validation.json").exists() else []
-    md = fmt == "markdown"
-    parts: list[str] = []
-
-    def add(t, tag="p"):
-        parts.append((f"\n## {t}\n" if tag == "h2" else f"\n{t}\n") if md else
-                     f"<{tag}>{html.escape(t)}</{tag}>")
-
+    page = Page(run, fmt == "markdown")
     title = inputs.title
-    parts.append(f"# {title}: parameter sweep\n" if md else f"<h1>{html.escape(title)}: parameter sweep</h1>")
-    add(SWEEP_SECTIONS[0], "h2")
-    add("A classic parameter study of the cutout: every point is a verified evaluation (two mesh levels, error "
-        f"estimate) at the {sweep.accuracy} level, for every load case; points that break a constraint are kept"
-        " and marked.")
-    add(SWEEP_SECTIONS[1], "h2")
-    parts.append(_table([inputs.panel], [("width", "width (mm)"), ("height", "height (mm)"),
-                                            ("thickness", "thickness (mm)"), ("edges", "edge condition")], md))
-    parts.append(_table(list(inputs.load_cases), [("name", "load case"), ("sigma_x", "sigma_x (MPa)"),
-                                               ("sigma_y", "sigma_y (MPa)"), ("tau_xy", "tau_xy (MPa)")], md))
-    add(SWEEP_SECTIONS[2], "h2")
-    p = run / "sweep.png"
-    if md:
-        parts.append("\n![sweep](sweep.png)\n")
-    elif p.exists():
-        parts.append(f'<img alt="sweep" src="data:image/png;base64,{base64.b64encode(p.read_bytes()).decode()}">')
+    page.raw(f"# {title}: parameter sweep\n" if page.md else f"<h1>{html.escape(title)}: parameter sweep</h1>")
+    page.h2(SWEEP_SECTIONS[0])
+    page.para("A classic parameter study of the cutout: every point is a verified evaluation (two mesh levels, error "
+              f"estimate) at the {sweep.accuracy} level, for every load case; points that break a constraint are"
+              " kept and marked.")
+    page.h2(SWEEP_SECTIONS[1])
+    page.table([inputs.panel], [("width", "width (mm)"), ("height", "height (mm)"), ("thickness", "thickness (mm)"),
+                                ("edges", "edge condition")])
+    page.table(list(inputs.load_cases), [("name", "load case"), ("sigma_x", "sigma_x (MPa)"),
+                                         ("sigma_y", "sigma_y (MPa)"), ("tau_xy", "tau_xy (MPa)")])
+    page.h2(SWEEP_SECTIONS[2])
+    page.img("sweep.png", "the swept quantities against the varied parameters")
     rows = [{"point": ", ".join(f"{k} = {v:.4g}" for k, v in pt["coords"].items()), **pt} for pt in sweep.points]
     cols = [("point", "parameters"), ("peak_stress_mpa", "peak (MPa)"), ("kt", "Kt"),
             ("area_mm2", "area (mm^2)"), ("error_estimate_pct", "error estimate (%)"),
             ("feasible", "meets constraints"), ("reason", "note")]
     if any("buckling_load_factor" in r for r in rows):
         cols.insert(3, ("buckling_load_factor", "buckling load factor"))
-    parts.append(_table(rows, cols, md))
-    add(SWEEP_SECTIONS[3], "h2")
-    parts.append(_table(validation, [("case", "case"), ("source", "source"), ("published", "published (MPa)"),
-                                     ("holeshape", "holeshape (MPa)"), ("error_pct", "error (%)"),
-                                     ("tolerance_pct", "tolerance (%)"), ("within", "within")], md))
-    add(SWEEP_SECTIONS[4], "h2")
-    from holeshape import cautions
-
-    add(cautions(sweep.with_stability))
-    if md:
-        return atomic_write(run / "report.md", "\n".join(parts))
-    doc = (f"<!DOCTYPE html><html lang=\"en\"><head><meta charset=\"utf-8\"><title>{html.escape(title)}</title>"
-           f"<style>{CSS}</style></head><body>" + "\n".join(parts) + LOAD_CHECK + "</body></html>\n")
-    return atomic_write(run / "report.html", doc)
+    page.table(rows, cols)
+    section_validation(page, validation)
+    page.h2(SWEEP_SECTIONS[4])
+    page.para(cautions(sweep.with_stability), "caution")
+    return page.write(title)
