@@ -18,7 +18,7 @@ from holeshape.errors import SolveError
 from holeshape.geometry import Cutout
 from holeshape.mesh import MeshSpec, Region, mesh_panel
 from holeshape.solve import BoundaryStress, PanelSolution, peak_along, principal_stresses, solve_panel, von_mises
-from holeshape.stability import StabilityFields, StabilityResult, buckling
+from holeshape.stability import CASE_KEYS, DESIGN_KEYS, StabilityFields, StabilityResult, buckling
 from holeshape.study import ACCURACIES, LoadCase, Material, Measure, Panel, StabilitySettings
 
 
@@ -163,22 +163,18 @@ class Evaluation:
         from dataclasses import asdict
 
         d = asdict(self)
-        buckling_keys = ("buckling_load_factor", "buckling_error_estimate_pct", "buckling_reserve",
-                         "buckling_load_factor_unperforated")
         d["load_cases"] = [asdict(c) for c in self.load_cases]
         d["levels"] = [{"dofs": n, "peak_stress_mpa": p} for n, p in self.levels]
         d["within_accuracy_target"] = self.within_target
         if self.stability is None:  # a study without [stability] keeps its JSON as it was
             d.pop("stability")
             for c in d["load_cases"]:
-                for k in buckling_keys:
+                for k in CASE_KEYS:
                     c.pop(k)
         else:
             st = self.stability.to_dict()
             d["stability"] = st
-            for k in ("buckling_load_factor", "buckling_governing_load_case", "buckling_load_factor_unperforated",
-                      "buckling_error_estimate_pct", "buckling_reserve"):
-                d[k] = st[k]
+            d.update({k: st[k] for k in DESIGN_KEYS})
         return d
 
 

@@ -9,6 +9,7 @@ from __future__ import annotations
 from dataclasses import asdict, dataclass
 from datetime import datetime, timezone
 
+from holeshape.stability import CASE_KEYS, DESIGN_KEYS
 from holeshape.study import Study
 
 
@@ -68,10 +69,6 @@ class Requirement:
     load_case: str | None = None
 
 
-BUCKLING_CASE_KEYS = ("buckling_load_factor", "buckling_error_estimate_pct", "buckling_reserve",
-                      "buckling_load_factor_unperforated")
-
-
 @dataclass(frozen=True)
 class CaseCheck:
     """One load case of the recommended design at the final level (MPa, mm)."""
@@ -97,7 +94,7 @@ class CaseCheck:
         d.pop("with_stability")
         d["verdict_reasons"], d["advice"] = list(self.verdict_reasons), list(self.advice)
         if not self.with_stability:
-            for k in BUCKLING_CASE_KEYS:
+            for k in CASE_KEYS:
                 d.pop(k)
         return d
 
@@ -116,10 +113,6 @@ class LevelCheck:
     peak_stress_mpa: float
     change_pct: float
     error_estimate_pct: float
-
-
-BUCKLING_DESIGN_KEYS = ("buckling_load_factor", "buckling_governing_load_case", "buckling_load_factor_unperforated",
-                        "buckling_error_estimate_pct", "buckling_reserve", "stability")
 
 
 @dataclass(frozen=True)
@@ -176,7 +169,7 @@ class DesignCheck:
                  min_radius_at_mm=list(self.min_radius_at_mm), bounds_mm=list(self.bounds_mm))
         stab = d.pop("stability")
         if stab is not None:
-            d.update({k: stab[k] for k in BUCKLING_DESIGN_KEYS[:-1]}, stability=stab)
+            d.update({k: stab[k] for k in DESIGN_KEYS}, stability=stab)
         d["meets_every_requirement"] = self.meets_every_requirement
         d.update(self.verdict())
         return d

@@ -41,6 +41,11 @@ FACTOR_MEANING = {
     "displacement": "the factor multiplies the imposed edge strain of the load case (the remote strain of an "
                     "uncut panel under the stated stresses)",
 }
+# the buckling keys a load case and a design carry in every JSON output (absent without [stability])
+CASE_KEYS = ("buckling_load_factor", "buckling_error_estimate_pct", "buckling_reserve",
+             "buckling_load_factor_unperforated")
+DESIGN_KEYS = ("buckling_load_factor", "buckling_governing_load_case", "buckling_load_factor_unperforated",
+               "buckling_error_estimate_pct", "buckling_reserve")
 FACTOR_CEILING = 1000.0  # a case that needs more than this many times its load to buckle is reported as not buckling
 QUICK_RESTARTS = 60  # Lanczos restarts before asking whether there is a factor below the ceiling at all
 PLATE_QUAD_ORDER = 4  # Morley: second derivatives constant, gradients linear; prestress P1-P2 on a triangle
@@ -320,17 +325,21 @@ def plate_buckling(pm, u: np.ndarray, material, thickness: float, edge_support: 
     pb = plate_basis(mesh.p[:, :mesh.nvertices], mesh.t)
     # the prestress at the plate's quadrature points: same reference points on the same elements of the curved mesh
     sb = Basis(mesh, ElementVector(ElementTriP2()), quadrature=pb.quadrature)
-    K = bending_stiffness(pb, material.youngs_modulus, material.poisson_ratio, thickness)
-    KGs, compressed = [], []
-    for c in range(u.shape[1]):
-        grad = np.asarray(sb.interpolate(u[:, c]).grad)
-        S = stress_from_gradient(grad, material.youngs_modulus, material.poisson_ratio)
-        KGs.append(geometric_stiffness(pb, S, thickness))
-        compressed.append(has_compression(S))
+    prestresses = [stress_from_gradient(np.asarray(sb.interpolate(u[:, c]).grad), material.youngs_modulus,
+                                        material.poisson_ratio) for c in range(u.shape[1])]
     edges = np.concatenate([pm.boundaries[k] for k in ("left", "right", "bottom", "top")])
-    fixed = supported_dofs(pb, edges, edge_support)
-    facs = lowest_factors(K, KGs, fixed, n_modes, compressed)
-    return [[(f, _vertex_deflection(pb, m)) for f, m in rows] for rows in facs], pb
+    return _plate_factors(pb, prestresses, material, thickness, edges, edge_support, n_modes), pb
+
+
+def _plate_factors(pb, prestresses: list[np.ndarray], material, thickness: float, edge_facets: np.ndarray,
+                   edge_support: str, n_modes: int) -> list[list[tuple[float, np.ndarray]]]:
+    """Per prestress (3, ...) MPa: the lowest positive factors and their vertex mode shapes on plate basis ``pb``
+    with ``edge_facets`` supported."""
+    K = bending_stiffness(pb, material.youngs_modulus, material.poisson_ratio, thickness)
+    KGs = [geometric_stiffness(pb, S, thickness) for S in prestresses]
+    fixed = supported_dofs(pb, edge_facets, edge_support)
+    facs = lowest_factors(K, KGs, fixed, n_modes, [has_compression(S) for S in prestresses])
+    return [[(f, _vertex_deflection(pb, m)) for f, m in rows] for rows in facs]
 
 
 def _holed_level(panel, material, remote: np.ndarray, cutout, spec: MeshSpec, support: str, n_modes: int
@@ -374,33 +383,38 @@ def _plain_level(panel, material, remote: np.ndarray, n_short: int, support: str
     ny = max(2, int(round(n_short * panel.height / short)))
     p, t = crossed_grid(panel.width, panel.height, nx, ny)
     pb = plate_basis(p, t)
-    K = bending_stiffness(pb, material.youngs_modulus, material.poisson_ratio, panel.thickness)
-    KGs = [geometric_stiffness(pb, np.asarray(r, dtype=float), panel.thickness) for r in remote]
-    mesh = MeshTri1(p, t)
-    fixed = supported_dofs(pb, mesh.boundary_facets(), support)
-    facs = lowest_factors(K, KGs, fixed, n_modes, [has_compression(np.asarray(r, dtype=float)) for r in remote])
-    facs = [[(f, _vertex_deflection(pb, m)) for f, m in rows] for rows in facs]
+    facs = _plate_factors(pb, [np.asarray(r, dtype=float) for r in remote], material, panel.thickness,
+                          MeshTri1(p, t).boundary_facets(), support, n_modes)
     return _LevelRun(facs, int(pb.N), p, t)
 
 
-def _plain_panel(panel, material, remote, level: StabilityLevel, support: str, n_modes: int):
-    """Levels, (factor, estimate) per case and refinements of the unperforated panel: nested structured meshes with
-    an exact size ratio of 2 (then 1.5 per refinement)."""
-    n = [int(math.ceil(1.0 / level.spec.max_fraction / 2.0)) * 2]
-    n.insert(0, n[0] // 2)
-    runs = [_plain_level(panel, material, remote, k, support, n_modes) for k in n]
-    ratios = [2.0]
-    refinements = 0
-    cases = range(remote.shape[0])
+def _converged(run_at, coarse, fine, refine, level: StabilityLevel, n_cases: int, out_of_time=lambda: False):
+    """Plate levels from ``coarse`` and ``fine`` (sizes 2:1), then ``refine(size) -> (finer size, ratio)`` while an
+    estimate exceeds the level's target (at most MAX_REFINEMENTS, none once ``out_of_time()``). Returns the runs,
+    (factor, estimate) per case from the last two, and the number of refinements."""
+    runs, ratios, size = [run_at(coarse), run_at(fine)], [2.0], fine
     while True:
-        ests = [_combine(runs, ratios, j, level.floor_pct)[1] for j in cases]
-        if max((e for e in ests if e is not None), default=0.0) <= level.target_pct or refinements == MAX_REFINEMENTS:
+        ests = [_combine(runs, ratios, j, level.floor_pct)[1] for j in range(n_cases)]
+        worst = max((e for e in ests if e is not None), default=0.0)
+        if worst <= level.target_pct or len(runs) - 2 == MAX_REFINEMENTS or out_of_time():
             break
-        n.append(int(round(n[-1] * REFINE_RATIO)))
-        runs.append(_plain_level(panel, material, remote, n[-1], support, n_modes))
-        ratios.append(n[-1] / n[-2])
-        refinements += 1
-    return runs, [_combine(runs, ratios, j, level.floor_pct) for j in cases], refinements
+        size, ratio = refine(size)
+        runs.append(run_at(size))
+        ratios.append(ratio)
+    return runs, [_combine(runs, ratios, j, level.floor_pct) for j in range(n_cases)], len(runs) - 2
+
+
+def _plain_panel(panel, material, remote, level: StabilityLevel, support: str, n_modes: int):
+    """The unperforated panel: nested structured meshes with an exact size ratio of 2 (then about 1.5 per
+    refinement, the exact ratio of the cell counts)."""
+    n = int(math.ceil(1.0 / level.spec.max_fraction / 2.0)) * 2
+
+    def refine(k):
+        finer = int(round(k * REFINE_RATIO))
+        return finer, finer / k
+
+    return _converged(lambda k: _plain_level(panel, material, remote, k, support, n_modes), n // 2, n, refine, level,
+                      remote.shape[0])
 
 
 def _first(run: _LevelRun, j: int) -> float | None:
@@ -450,22 +464,10 @@ def buckling(panel, material, load_cases, cutout, settings: StabilitySettings, a
         runs, res = plain_runs, plain_res
         refinements_holed = plain_refinements
     else:
-        spec = level.spec
-        runs = [holed(spec.coarsened(2.0)), holed(spec)]
-        ratios = [2.0]
-        refinements_holed = 0
-        while True:
-            ests = [_combine(runs, ratios, j, level.floor_pct)[1] for j in range(len(load_cases))]
-            worst = max((e for e in ests if e is not None), default=0.0)
-            if worst <= level.target_pct or refinements_holed == MAX_REFINEMENTS:
-                break
-            if time_limit_s is not None and time.perf_counter() - t0 > 0.5 * time_limit_s:
-                break
-            spec = spec.coarsened(1.0 / REFINE_RATIO)
-            runs.append(holed(spec))
-            ratios.append(REFINE_RATIO)
-            refinements_holed += 1
-        res = [_combine(runs, ratios, j, level.floor_pct) for j in range(len(load_cases))]
+        runs, res, refinements_holed = _converged(
+            holed, level.spec.coarsened(2.0), level.spec, lambda s: (s.coarsened(1.0 / REFINE_RATIO), REFINE_RATIO),
+            level, len(load_cases),
+            out_of_time=lambda: time_limit_s is not None and time.perf_counter() - t0 > 0.5 * time_limit_s)
 
     cases = []
     for j, lc in enumerate(load_cases):

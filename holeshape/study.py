@@ -192,11 +192,6 @@ class Constraints:
     min_buckling_factor: float | None = None  # checked after the solve (needs [stability])
     min_margin: float | None = None  # margin of safety against material.allowable_stress, checked after the solve
 
-    @property
-    def after_solve(self) -> bool:
-        """Whether some requirement can only be checked on a solved design."""
-        return self.min_buckling_factor is not None or self.min_margin is not None
-
 
 @dataclass(frozen=True)
 class SearchSettings:

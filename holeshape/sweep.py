@@ -79,6 +79,7 @@ def run_sweep(study_path: str, out: str, vary_texts: list[str]) -> dict:
     out_dir.mkdir(parents=True, exist_ok=True)
     t0 = time.perf_counter()
     points = []
+    cache: dict = {}  # the unperforated panel's buckling, the same for every point
     grids = [v.values for v in varies]
     for idx in np.ndindex(*[len(g) for g in grids]):
         vals = {k: (list(v) if isinstance(v, list) else v) for k, v in base.items()}
@@ -97,7 +98,7 @@ def run_sweep(study_path: str, out: str, vary_texts: list[str]) -> dict:
                 row["reason"] = "; ".join(reasons)
             if cons.get("inside_panel", 1.0) < 0 and "outline" not in cons:
                 ev = evaluate(study.panel, study.material, study.load_cases, cut, study.measure,
-                              stability=study.stability)
+                              stability=study.stability, cache=cache)
                 post = solved_constraint_values(ev, study.constraints)[1]
                 if post:
                     row["reason"] = "; ".join(reasons + post)

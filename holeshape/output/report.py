@@ -7,12 +7,13 @@ from __future__ import annotations
 import base64
 import html
 import json
-import math
 from dataclasses import asdict
 from pathlib import Path
 
 from holeshape.output.files import atomic_write
+from holeshape.output.text import factor_text
 from holeshape.record import DesignCheck, RunInputs, RunRecord, SweepRecord
+from holeshape.search.constraints import requirement_value, sig, verdict
 from holeshape.stability import FACTOR_MEANING, SUPPORT_NOTES
 
 SECTIONS = ("The job", "Study inputs", "Recommendation", "Comparison", "Stress", "Stability", "Evidence of accuracy",
@@ -38,14 +39,6 @@ th{background:#eee}img{max-width:100%;border:1px solid #ccc;margin:.4em 0}.warn{
 LOAD_CHECK = ("<script>window.addEventListener('load',function(){var n=0;document.querySelectorAll('img')"
               ".forEach(function(i){var ok=i.complete&&i.naturalWidth>0;i.setAttribute('data-loaded',ok?'yes':'no');"
               "if(ok){n++;}});document.body.setAttribute('data-images-loaded',String(n));});</script>")
-
-
-def sig(v: float, figures: int = 2) -> str:
-    """``v`` to ``figures`` significant figures, without exponent notation for the sizes a report shows."""
-    if v == 0 or not math.isfinite(v):
-        return f"{v:g}"
-    digits = max(0, figures - 1 - int(math.floor(math.log10(abs(v)))))
-    return f"{v:.{digits}f}"
 
 
 def fmt(key: str, v) -> str:
@@ -132,38 +125,6 @@ def describe_constraints(cons: dict) -> list[dict]:
     return rows
 
 
-def _factor(f) -> str:
-    return "does not buckle" if f is None else f"{f:.3f}"
-
-
-def _shown(v) -> str:
-    if v is None:
-        return "does not buckle"
-    return f"{v:.4g}" if isinstance(v, float) else str(v)
-
-
-def req_value(r: dict) -> str:
-    """A requirement row's value for people, by its kind."""
-    v, kind = r["value"], r.get("kind", "geometry")
-    if v is None:
-        return "does not buckle"
-    if not isinstance(v, (int, float)):
-        return str(v)
-    if kind == "margin":
-        return f"{v:+.3f}"
-    if kind == "buckling":
-        return f"{v:.3f}"
-    if kind == "accuracy":
-        return sig(v, 2)
-    return f"{v:.0f}" if "mm^2" in r["requirement"] else f"{v:.1f}"
-
-
-def _advice(failed: list[dict]) -> list[str]:
-    from holeshape.search.constraints import ADVICE
-
-    return [ADVICE[k] for k in dict.fromkeys(r.get("kind", "geometry") for r in failed)]
-
-
 def _summary_box(b: DesignCheck, rec: RunRecord, md: bool) -> str:
     """The one-screen summary at the top: the verdict, the shape, peak, margin and buckling per case, the DXF."""
     reqs = [asdict(r) for r in b.requirements]
@@ -172,7 +133,7 @@ def _summary_box(b: DesignCheck, rec: RunRecord, md: bool) -> str:
         head = "No requirements were set beyond the geometry of the search."
     elif failed:
         head = (f"FAILS {len(failed)} of {len(reqs)} requirements: "
-                + "; ".join(f"{r['requirement']} {req_value(r)} (required {r['limit']})" for r in failed))
+                + "; ".join(verdict(reqs)["verdict_reasons"]))
     else:
         head = f"Meets every requirement of the study ({len(reqs)} checked at the {b.accuracy} level)."
     rows = [{"name": c["name"], "peak_stress_mpa": c["peak_stress_mpa"], "margin_of_safety": c["margin_of_safety"],
@@ -313,14 +274,14 @@ def section_recommendation(page: Page, b: DesignCheck) -> None:
     if reqs:
         failed = [r for r in reqs if not r["met"]]
         if failed:
+            v = verdict(reqs)
             page.para(f"The recommended design FAILS {len(failed)} of {len(reqs)} requirements of the study: "
-                      + "; ".join(f"{r['requirement']} is {req_value(r)}, required {r['limit']}" for r in failed)
-                      + ". It is the best the search found, not a design that passes. What can change: "
-                      + "; ".join(_advice(failed)) + ".", "warn")
+                      + "; ".join(v["verdict_reasons"]) + ". It is the best the search found, not a design that"
+                      " passes. What can change: " + "; ".join(v["advice"]) + ".", "warn")
         else:
             page.para(f"The recommended design meets every requirement of the study ({len(reqs)} checked at the "
                       f"{b.accuracy} level).")
-        page.table([{**r, "value": req_value(r), "met": "yes" if r["met"] else "NO"} for r in reqs],
+        page.table([{**r, "value": requirement_value(r), "met": "yes" if r["met"] else "NO"} for r in reqs],
                    [("requirement", "requirement"), ("value", "design"), ("limit", "required"), ("met", "met")])
     for w in b.warnings:
         page.para("WARNING: " + w, "warn")
@@ -368,10 +329,10 @@ def section_stability(page: Page, st: dict | None) -> None:
     for c in st["cases"]:
         f, fu = c["load_factor"], c["unperforated_factor"]
         cost = None if f is None or fu is None else 100 * (1 - f / fu)
-        rows.append({"name": c["name"], "factor": _factor(f), "reserve": c["reserve"],
-                     "estimate_pct": c["error_estimate_pct"], "plain": _factor(fu),
+        rows.append({"name": c["name"], "factor": factor_text(f), "reserve": c["reserve"],
+                     "estimate_pct": c["error_estimate_pct"], "plain": factor_text(fu),
                      "cost": None if cost is None else f"{cost:.0f} %",
-                     "levels": ", ".join(_factor(x) for x in c["level_factors"])})
+                     "levels": ", ".join(factor_text(x) for x in c["level_factors"])})
     page.table(rows, [("name", "load case"), ("factor", "buckling load factor"),
                       ("reserve", "reserve (factor / required)"), ("estimate_pct", "error estimate (%)"),
                       ("plain", "without the cutout"), ("cost", "lost to the opening"),

@@ -7,10 +7,12 @@ from dataclasses import asdict
 from holeshape import cautions
 from holeshape.evaluate import STRESS_LABELS, Evaluation
 from holeshape.record import RunRecord
+from holeshape.search.constraints import requirement_value
 from holeshape.stability import FACTOR_MEANING, SUPPORT_NOTES
 
 
-def _factor(f: float | None) -> str:
+def factor_text(f: float | None) -> str:
+    """A buckling load factor for people (None: the case does not buckle below the factor ceiling)."""
     return "does not buckle" if f is None else f"{f:.3f}"
 
 
@@ -29,14 +31,14 @@ def stability_lines(st) -> list[str]:
         res = "-" if c.reserve is None else f"{c.reserve:.3f}"
         err = "-" if c.error_estimate_pct is None else f"{c.error_estimate_pct:.2g} %"
         flag = "  << BELOW REQUIRED" if c.reserve is not None and c.reserve < 1.0 else ""
-        lines.append(f"  {c.name[:34]:<34} {_factor(c.load_factor):>16} {res:>9} {err:>11}"
-                     f" {_factor(c.unperforated_factor):>10}{flag}")
+        lines.append(f"  {c.name[:34]:<34} {factor_text(c.load_factor):>16} {res:>9} {err:>11}"
+                     f" {factor_text(c.unperforated_factor):>10}{flag}")
     if g is None:
         lines.append("  buckling      no load case buckles the web below the factor ceiling (no compression)")
     else:
         lines.append(f"  buckling      lowest load factor {g.load_factor:.3f} ({g.name}); required"
                      f" {st.required_factor:g}, reserve {st.reserve:.3f}; without the cutout"
-                     f" {_factor(st.unperforated_factor)}")
+                     f" {factor_text(st.unperforated_factor)}")
     return lines
 
 
@@ -50,9 +52,8 @@ def requirement_lines(rows: list[dict]) -> list[str]:
         f"FAILS {len(failed)} of {len(rows)} requirements"
     lines = ["", f"  verdict       {head}"]
     for r in rows:
-        v = r["value"]
-        shown = "does not buckle" if v is None else (f"{v:+.3f}" if "margin" in r["requirement"] else f"{v:.4g}")
-        lines.append(f"    {'ok  ' if r['met'] else 'FAIL'} {r['requirement']:<52} {shown:>14}  required {r['limit']}")
+        lines.append(f"    {'ok  ' if r['met'] else 'FAIL'} {r['requirement']:<52} {requirement_value(r):>14}"
+                     f"  required {r['limit']}")
     for a in verdict(rows)["advice"]:
         lines.append(f"  what to change {a}")
     return lines
@@ -135,14 +136,14 @@ def optimise_summary(rec: RunRecord) -> str:
         lines.append(f"  trade-off     {len(rec.front)} designs on the front (draft level), one DXF each")
     st = b.stability
     if st is not None:
-        lines.append(f"  stability     lowest buckling factor {_factor(st['buckling_load_factor'])}"
+        lines.append(f"  stability     lowest buckling factor {factor_text(st['buckling_load_factor'])}"
                      f" ({st['buckling_governing_load_case'] or 'no case buckles'}), required"
                      f" {st['required_factor']:g}; without the cutout"
-                     f" {_factor(st['buckling_load_factor_unperforated'])};"
+                     f" {factor_text(st['buckling_load_factor_unperforated'])};"
                      f" estimated error {st['buckling_error_estimate_pct']:.2g} %")
         for c in st["cases"]:
-            lines.append(f"    {c['name']}: factor {_factor(c['load_factor'])}, without the cutout"
-                         f" {_factor(c['unperforated_factor'])}")
+            lines.append(f"    {c['name']}: factor {factor_text(c['load_factor'])}, without the cutout"
+                         f" {factor_text(c['unperforated_factor'])}")
     refused = t.refused_after_solve
     if refused.get("buckling"):
         lines.append(f"  refused       {refused['buckling']} solved designs that met every geometric constraint"

@@ -162,12 +162,31 @@ def verdict(rows: list[dict], load_case: str | None = None) -> dict:
     what the user can change."""
     sel = [r for r in rows if load_case is None or r.get("load_case") == load_case]
     failed = [r for r in sel if not r["met"]]
-    reasons = [f"{r['requirement']}: {_shown(r['value'])}, required {r['limit']}" for r in failed]
+    reasons = [f"{r['requirement']} is {requirement_value(r)}, required {r['limit']}" for r in failed]
     advice = [ADVICE[k] for k in dict.fromkeys(r.get("kind", "geometry") for r in failed)]
     return {"verdict": "fail" if failed else "pass", "verdict_reasons": reasons, "advice": advice}
 
 
-def _shown(v) -> str:
+def sig(v: float, figures: int = 2) -> str:
+    """``v`` to ``figures`` significant figures, without exponent notation for the sizes a report shows."""
+    if v == 0 or not math.isfinite(v):
+        return f"{v:g}"
+    digits = max(0, figures - 1 - int(math.floor(math.log10(abs(v)))))
+    return f"{v:.{digits}f}"
+
+
+def requirement_value(r: dict) -> str:
+    """A requirement row's value for people, by its kind: margins signed to 3 decimals, factors to 3 decimals,
+    error estimates to 2 significant figures, lengths to 0.1 mm, areas to 1 mm^2."""
+    v, kind = r["value"], r.get("kind", "geometry")
     if v is None:
         return "does not buckle"
-    return f"{v:.4g}" if isinstance(v, float) else str(v)
+    if not isinstance(v, (int, float)):
+        return str(v)
+    if kind == "margin":
+        return f"{v:+.3f}"
+    if kind == "buckling":
+        return f"{v:.3f}"
+    if kind == "accuracy":
+        return sig(v, 2)
+    return f"{v:.0f}" if "mm^2" in r["requirement"] else f"{v:.1f}"
