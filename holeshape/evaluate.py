@@ -17,7 +17,8 @@ import numpy as np
 from holeshape.errors import SolveError
 from holeshape.geometry import Cutout
 from holeshape.mesh import MeshSpec, Region, mesh_panel
-from holeshape.solve import BoundaryStress, PanelSolution, peak_along, principal_stresses, solve_panel, von_mises
+from holeshape.solve import (BoundaryStress, PanelSolution, member_stress, peak_along, principal_stresses, solve_panel,
+                             von_mises)
 from holeshape.stability import CASE_KEYS, DESIGN_KEYS, StabilityFields, StabilityResult, buckling
 from holeshape.study import ACCURACIES, LoadCase, Material, Measure, Panel, StabilitySettings
 
@@ -88,6 +89,61 @@ def choose_region(panel: Panel, cutout: Cutout, load_cases: tuple[LoadCase, ...]
                   mirror_v=bool(sym_v and on_v and no_shear))
 
 
+CUTOUT_EDGE = "cutout edge"
+RING_EDGE = "web at the ring's outer edge"
+FLANGE = "flange"
+DOUBLER = "doubler at the cutout edge"
+
+
+def location_values(sol: PanelSolution, stress: str, reinforcement, material: Material
+                    ) -> dict[str, tuple[BoundaryStress, np.ndarray]]:
+    """The chosen measure (n, m) along every place a peak is looked for, by location name: the cutout edge, and
+    with a reinforcement the web at a ring's outer edge, the flange's own axial stress, or a doubler of another
+    modulus at the cutout edge."""
+    out = {CUTOUT_EDGE: (sol.cutout, measure_values(sol.cutout, stress))}
+    if reinforcement is None:
+        return out
+    e, e_r = material.youngs_modulus, reinforcement.modulus(material.youngs_modulus)
+    if reinforcement.kind == "ring":
+        out[RING_EDGE] = (sol.ring_edge, measure_values(sol.ring_edge, stress))
+        if e_r != e:
+            out[DOUBLER] = (sol.cutout, out[CUTOUT_EDGE][1] * (e_r / e))
+    else:
+        axial = member_stress(sol.cutout, e, material.poisson_ratio, e_r)
+        out[FLANGE] = (sol.cutout, np.maximum(axial, 0.0) if stress == "max_principal" else np.abs(axial))
+    return out
+
+
+@dataclass(frozen=True)
+class LocationPeak:
+    """The peak at one location of a reinforced opening for one load case (MPa, mm, percent)."""
+
+    location: str
+    peak_stress_mpa: float
+    x_mm: float
+    y_mm: float
+    error_estimate_pct: float
+
+
+@dataclass(frozen=True)
+class ReinforcementResult:
+    """What the reinforcement is and what it does: sizes (mm, MPa), cross-section (mm^2), ring area (mm^2), added
+    mass (kg, None without a density), and the peak at each location over the load cases (MPa)."""
+
+    kind: str
+    sizes: dict
+    cross_section_mm2: float
+    ring_area_mm2: float
+    added_volume_mm3: float
+    added_mass_kg: float | None
+    peak_stress_mpa: dict  # location -> largest peak over the load cases
+
+    def to_dict(self) -> dict:
+        from dataclasses import asdict
+
+        return asdict(self)
+
+
 @dataclass(frozen=True)
 class Ligament:
     """The narrowest ligament: from the cutout to panel edge ``edge``; mean stresses across it, MPa."""
@@ -121,6 +177,9 @@ class LoadCaseResult:
     buckling_error_estimate_pct: float | None = None
     buckling_reserve: float | None = None
     buckling_load_factor_unperforated: float | None = None
+    # with a reinforcement: where the peak is, and the peak at every location
+    peak_location: str = CUTOUT_EDGE
+    locations: tuple[LocationPeak, ...] = ()
 
 
 @dataclass(frozen=True)
@@ -148,6 +207,7 @@ class Evaluation:
     edges: str
     warnings: tuple[str, ...] = ()
     stability: StabilityResult | None = None
+    reinforcement: ReinforcementResult | None = None
 
     @property
     def within_target(self) -> bool:
@@ -166,6 +226,11 @@ class Evaluation:
         d["load_cases"] = [asdict(c) for c in self.load_cases]
         d["levels"] = [{"dofs": n, "peak_stress_mpa": p} for n, p in self.levels]
         d["within_accuracy_target"] = self.within_target
+        if self.reinforcement is None:  # a bare opening keeps its JSON as it was
+            d.pop("reinforcement")
+            for c in d["load_cases"]:
+                c.pop("peak_location")
+                c.pop("locations")
         if self.stability is None:  # a study without [stability] keeps its JSON as it was
             d.pop("stability")
             for c in d["load_cases"]:
@@ -187,6 +252,8 @@ class EvaluationFields:
     boundary: BoundaryStress = field(repr=False)  # mirrored to the whole outline, in order
     coarse_boundary: BoundaryStress = field(repr=False)
     stability: StabilityFields | None = field(default=None, repr=False)
+    ring_boundary: BoundaryStress | None = field(default=None, repr=False)  # the web at a ring's outer edge
+    flange_stress: np.ndarray | None = field(default=None, repr=False)  # (n, m) along ``boundary``, MPa
 
 
 def evaluate(panel: Panel, material: Material, load_cases: tuple[LoadCase, ...], cutout: Cutout,
@@ -210,15 +277,23 @@ def evaluate(panel: Panel, material: Material, load_cases: tuple[LoadCase, ...],
                              "estimate was complete")
         pm = mesh_panel(panel.width, panel.height, cutout, region, spec)
         sol = solve_panel(pm, material.youngs_modulus, material.poisson_ratio, remote, panel.edges,
-                          panel.width, panel.height)
-        return pm, sol, [peak_along(sol.cutout.s, v, pm.closed) for v in measure_values(sol.cutout, measure.stress).T]
+                          panel.width, panel.height, reinforcement=cutout.reinforcement, thickness=panel.thickness)
+        places = {name: (bs, [peak_along(bs.s, v, pm.closed) for v in vals.T])
+                  for name, (bs, vals) in location_values(sol, measure.stress, cutout.reinforcement,
+                                                          material).items()}
+        # per load case: (governing peak, sample index, location) and every location's (peak, index)
+        gov = [max(((pk[j][0], pk[j][1], name) for name, (_, pk) in places.items()), key=lambda x: x[0])
+               for j in range(remote.shape[0])]
+        return pm, sol, gov, places
 
     # levels coarsest first: the level's own mesh with every size doubled, the level, then finer ones if needed
     spec = level.spec
     runs = [run(spec.coarsened(2.0)), run(spec)]
     refinements = 0
     while True:
-        ests = [error_estimate_pct(f[0], c[0], level.floor_pct) for f, c in zip(runs[-1][2], runs[-2][2])]
+        # the estimate of each case at the location that governs it on the finer level
+        ests = [error_estimate_pct(f[0], runs[-2][3][f[2]][1][j][0], level.floor_pct)
+                for j, f in enumerate(runs[-1][2])]
         if max(ests) <= level.target_pct or refinements == MAX_REFINEMENTS:
             break
         if time_limit_s is not None and time.perf_counter() - t0 > 0.5 * time_limit_s:
@@ -226,24 +301,30 @@ def evaluate(panel: Panel, material: Material, load_cases: tuple[LoadCase, ...],
         spec = spec.coarsened(1.0 / 1.5)
         runs.append(run(spec))
         refinements += 1
-    pm, sol, peaks = runs[-1]
-    pm_c, sol_c, peaks_c = runs[-2]
+    pm, sol, peaks, places = runs[-1]
+    pm_c, sol_c, peaks_c, places_c = runs[-2]
     hoop = sol.cutout.hoop
     lig = narrowest_ligament(panel, cutout, pm, sol)
     results = []
     for j, lc in enumerate(load_cases):
-        (peak, i), (peak_c, _) = peaks[j], peaks_c[j]
+        peak, i, where = peaks[j]
+        peak_c = places_c[where][1][j][0]
         if not (math.isfinite(peak) and peak > 0):
             raise SolveError(f"load case {lc.name!r}: the recovered peak stress is {peak!r}, not a positive number")
         ref = reference_stress(lc, measure.stress)
         est = ests[j]
         mos = material.allowable_stress / peak - 1.0 if material.allowable_stress else None
+        locs = tuple(LocationPeak(name, pk[j][0], float(bs.xy[0, pk[j][1]]), float(bs.xy[1, pk[j][1]]),
+                                  error_estimate_pct(pk[j][0], places_c[name][1][j][0], level.floor_pct))
+                     for name, (bs, pk) in places.items()) if cutout.reinforcement is not None else ()
+        at = places[where][0]
         results.append(LoadCaseResult(
             name=lc.name, peak_stress_mpa=peak, kt=peak / ref if ref > 0 else math.inf,
-            x_mm=float(sol.cutout.xy[0, i]), y_mm=float(sol.cutout.xy[1, i]), reference_stress_mpa=ref,
+            x_mm=float(at.xy[0, i]), y_mm=float(at.xy[1, i]), reference_stress_mpa=ref,
             error_estimate_pct=est, peak_second_level_mpa=peak_c, hoop_max_mpa=float(hoop[:, j].max()),
             hoop_min_mpa=float(hoop[:, j].min()), net_section_stress_mpa=lig.mean_normal_mpa[j],
-            net_section_shear_mpa=lig.mean_shear_mpa[j], margin_of_safety=mos))
+            net_section_shear_mpa=lig.mean_shear_mpa[j], margin_of_safety=mos, peak_location=where,
+            locations=locs))
     gov = max(range(len(results)), key=lambda k: results[k].peak_stress_mpa)
     g = results[gov]
     est = max(r.error_estimate_pct for r in results)
@@ -275,13 +356,37 @@ def evaluate(panel: Panel, material: Material, load_cases: tuple[LoadCase, ...],
         governing_load_case=g.name, stress_measure=measure.stress, accuracy=level.name,
         accuracy_target_pct=level.target_pct, model=region.name,
         levels=tuple((r[1].dofs, r[2][gov][0]) for r in reversed(runs)), refinements=refinements,
-        min_radius_mm=cutout.min_radius, ligament=lig, edges=panel.edges, warnings=tuple(warnings), stability=stab)
+        min_radius_mm=cutout.min_radius, ligament=lig, edges=panel.edges, warnings=tuple(warnings), stability=stab,
+        reinforcement=reinforcement_result(cutout, panel, material, results))
     if keep_fields:
         full = mirror_to_full(sol.cutout, region)
         full_c = mirror_to_full(sol_c.cutout, region)
+        r = cutout.reinforcement
+        ring = mirror_to_full(sol.ring_edge, region) if sol.ring_edge is not None else None
+        flange = member_stress(full, material.youngs_modulus, material.poisson_ratio,
+                               r.modulus(material.youngs_modulus)) if r is not None and r.kind == "flange" else None
         return ev, EvaluationFields(panel_mesh=pm, solution=sol, boundary=full, coarse_boundary=full_c,
-                                    stability=stab_fields)
+                                    stability=stab_fields, ring_boundary=ring, flange_stress=flange)
     return ev
+
+
+def reinforcement_result(cutout: Cutout, panel: Panel, material: Material, results) -> ReinforcementResult | None:
+    from holeshape.geometry.reinforcement import reinforced_sizes
+
+    r = cutout.reinforcement
+    if r is None:
+        return None
+    sizes = reinforced_sizes(cutout, panel.thickness)
+    peaks: dict[str, float] = {}
+    for res in results:
+        for loc in res.locations:
+            peaks[loc.location] = max(peaks.get(loc.location, 0.0), loc.peak_stress_mpa)
+    params = r.parameters()
+    params.pop("kind")
+    params.setdefault("thickness", r.member_thickness(panel.thickness))
+    return ReinforcementResult(kind=r.kind, sizes=params, cross_section_mm2=sizes.cross_section_mm2,
+                               ring_area_mm2=sizes.ring_area_mm2, added_volume_mm3=sizes.volume_mm3,
+                               added_mass_kg=sizes.mass_kg(material.density), peak_stress_mpa=peaks)
 
 
 def error_estimate_pct(peak: float, peak_second: float, floor_pct: float) -> float:

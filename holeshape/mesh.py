@@ -93,6 +93,12 @@ class PanelMesh:
     cutout_t: np.ndarray = field(repr=False)
     region: Region
     closed: bool
+    # with a ring reinforcement: the ring's elements, the facets of its outer edge in order along the arc, the
+    # web element outside each of those facets, and the arc length of their ends (mm)
+    ring_elements: np.ndarray | None = field(default=None, repr=False)
+    ring_facets: np.ndarray | None = field(default=None, repr=False)
+    ring_outside: np.ndarray | None = field(default=None, repr=False)
+    ring_s: np.ndarray | None = field(default=None, repr=False)
 
     @property
     def n_elements(self) -> int:
@@ -189,14 +195,9 @@ def _arc_range(cutout: Cutout, region: Region) -> tuple[float, float]:
     return 0.0, 2 * math.pi
 
 
-def mesh_panel(width: float, height: float, cutout: Cutout, region: Region, spec: MeshSpec) -> PanelMesh:
-    """Mesh the modelled region of a ``width`` x ``height`` panel (origin at its lower-left corner) minus ``cutout``.
-
-    The caller has checked that the cutout lies inside the panel and that ``region`` matches its symmetry.
-    """
-    from skfem import MeshTri1, MeshTri2
-
-    h_max = spec.max_fraction * min(width, height)
+def _arc_points(cutout: Cutout, region: Region, spec: MeshSpec, h_max: float, width: float, height: float):
+    """Nodes of the modelled arc of an outline: parameters, points (ends exactly on the mirror lines), and the
+    spacing at each node (for the size field)."""
     t_start, t_span = _arc_range(cutout, region)
     closed = region.name == "full"
     t_nodes = cutout_nodes(cutout, spec, t_start, t_span, h_cap=h_max, panel_size=(width, height))
@@ -217,23 +218,55 @@ def mesh_panel(width: float, height: float, cutout: Cutout, region: Region, spec
     seg_len = np.hypot(*np.diff(np.concatenate([xy_ring, xy_ring[:, :1]], axis=1) if closed else xy_ring, axis=1))
     node_h = np.minimum(np.concatenate([seg_len, seg_len[-1:]])[: xy_ring.shape[1]],
                         np.concatenate([seg_len[:1], seg_len])[: xy_ring.shape[1]])
+    return t_ring, xy_ring, node_h
+
+
+def mesh_panel(width: float, height: float, cutout: Cutout, region: Region, spec: MeshSpec) -> PanelMesh:
+    """Mesh the modelled region of a ``width`` x ``height`` panel (origin at its lower-left corner) minus ``cutout``.
+
+    With a ring reinforcement (``cutout.reinforcement.kind == "ring"``) the ring's outer edge is an interior line
+    of the mesh and the ring's elements are listed (``PanelMesh.ring_elements``). The caller has checked that the
+    cutout lies inside the panel and that ``region`` matches its symmetry.
+    """
+    from skfem import MeshTri1
+
+    h_max = spec.max_fraction * min(width, height)
+    closed = region.name == "full"
+    t_ring, xy_ring, node_h = _arc_points(cutout, region, spec, h_max, width, height)
+    r = cutout.reinforcement
+    outer = None
+    if r is not None and r.kind == "ring":
+        from holeshape.geometry.reinforcement import ring_outline
+
+        outer = ring_outline(cutout, r.width)
+        t_off, xy_off, h_off = _arc_points(outer, region, spec, h_max, width, height)
 
     gmsh = gmsh_session()
     gmsh.clear()
     gmsh.model.add("panel")
     geo = gmsh.model.geo
     cut_pts = [geo.addPoint(float(x), float(y), 0.0) for x, y in xy_ring.T]
+    off_pts = [geo.addPoint(float(x), float(y), 0.0) for x, y in xy_off.T] if outer is not None else []
     x0, y0, x1, y1 = region.x0, region.y0, width, height
+
+    def chain(pts):
+        n = len(pts)
+        return [geo.addLine(pts[i], pts[(i + 1) % n]) for i in range(n if closed else n - 1)]
+
     try:
+        ring = chain(cut_pts)
+        off = chain(off_pts) if outer is not None else []
+        inner_edge, inner_pts = (off, off_pts) if outer is not None else (ring, cut_pts)
+        surfaces = []
         if closed:
             corners = [geo.addPoint(x0, y0, 0), geo.addPoint(x1, y0, 0), geo.addPoint(x1, y1, 0),
                        geo.addPoint(x0, y1, 0)]
-            outer = [geo.addLine(corners[i], corners[(i + 1) % 4]) for i in range(4)]
-            ring = [geo.addLine(cut_pts[i], cut_pts[(i + 1) % len(cut_pts)]) for i in range(len(cut_pts))]
-            loops = [geo.addCurveLoop(outer), geo.addCurveLoop(ring)]
+            box = [geo.addLine(corners[i], corners[(i + 1) % 4]) for i in range(4)]
+            surfaces.append(geo.addPlaneSurface([geo.addCurveLoop(box), geo.addCurveLoop(inner_edge)]))
+            if outer is not None:
+                surfaces.append(geo.addPlaneSurface([geo.addCurveLoop(off), geo.addCurveLoop(ring)]))
         else:
-            ring = [geo.addLine(cut_pts[i], cut_pts[i + 1]) for i in range(len(cut_pts) - 1)]
-            first, last = cut_pts[0], cut_pts[-1]
+            first, last = inner_pts[0], inner_pts[-1]
             if region.mirror_h and region.mirror_v:
                 # arc from its point on y = y0 to its point on x = x0
                 corners = [(x1, y0), (x1, y1), (x0, y1)]
@@ -245,31 +278,46 @@ def mesh_panel(width: float, height: float, cutout: Cutout, region: Region, spec
                 corners = [(x0, y0), (x1, y0), (x1, y1), (x0, y1)]
             pts = [first] + [geo.addPoint(cx, cy, 0) for cx, cy in corners] + [last]
             # counter-clockwise round the domain: panel corners, then the arc back to where the loop began
-            outer = [geo.addLine(pts[i], pts[i + 1]) for i in range(len(pts) - 1)] + [-r for r in reversed(ring)]
-            loops = [geo.addCurveLoop(outer)]
-        surface = geo.addPlaneSurface(loops)
+            loop = [geo.addLine(pts[i], pts[i + 1]) for i in range(len(pts) - 1)] + [-c for c in reversed(inner_edge)]
+            surfaces.append(geo.addPlaneSurface([geo.addCurveLoop(loop)]))
+            if outer is not None:
+                # the ring: out along the first mirror line, the ring's outer arc, back along the second, the cutout
+                band = [geo.addLine(cut_pts[0], off_pts[0])] + off + [geo.addLine(off_pts[-1], cut_pts[-1])] \
+                    + [-c for c in reversed(ring)]
+                surfaces.append(geo.addPlaneSurface([geo.addCurveLoop(band)]))
         geo.synchronize()
-        for line in ring:
+        for line in ring + off:
             gmsh.model.mesh.setTransfiniteCurve(line, 2)
-        _size_field(gmsh, cut_pts, node_h, spec.growth, h_max)
+        if outer is not None:
+            _size_field(gmsh, cut_pts + off_pts, np.concatenate([node_h, h_off]), spec.growth, h_max)
+        else:
+            _size_field(gmsh, cut_pts, node_h, spec.growth, h_max)
         gmsh.option.setNumber("Mesh.MeshSizeFromPoints", 0)
         gmsh.option.setNumber("Mesh.MeshSizeFromCurvature", 0)
         gmsh.option.setNumber("Mesh.MeshSizeExtendFromBoundary", 0)
         gmsh.option.setNumber("Mesh.MeshSizeMax", h_max)
         gmsh.option.setNumber("Mesh.Algorithm", 6)
         gmsh.model.mesh.generate(2)
-        node_tags, coords, _ = gmsh.model.mesh.getNodes(2, surface, includeBoundary=True)
-        etypes, _, enodes = gmsh.model.mesh.getElements(2, surface)
+        node_tags, coords, _ = gmsh.model.mesh.getNodes()
+        tris, n_ring = [], 0
+        for k, surface in enumerate(surfaces):
+            etypes, _, enodes = gmsh.model.mesh.getElements(2, surface)
+            if len(etypes) != 1 or etypes[0] != 2:
+                raise MeshError(f"gmsh returned element types {list(etypes)}, expected 3-node triangles only")
+            tris.append(enodes[0])
+            if k == 1:
+                n_ring = len(enodes[0]) // 3
+    except MeshError:
+        raise
     except Exception as err:  # gmsh raises bare Exception
         raise MeshError(f"gmsh could not mesh the panel around the {cutout.family} cutout: {err}") from err
     finally:
         gmsh.clear()
-    if len(etypes) != 1 or etypes[0] != 2:
-        raise MeshError(f"gmsh returned element types {list(etypes)}, expected 3-node triangles only")
+    enodes = np.concatenate(tris)
     # gmsh arrays are flat: coords (3n,), triangle node tags (3m,); scikit-fem wants p (2, n), t (3, m)
     order = np.argsort(node_tags)
     tags_sorted = node_tags[order]
-    tri = order[np.searchsorted(tags_sorted, enodes[0])].reshape(-1, 3).T
+    tri = order[np.searchsorted(tags_sorted, enodes)].reshape(-1, 3).T
     used = np.unique(tri)  # compact: no orphan nodes in the stiffness matrix
     remap = np.full(node_tags.size, -1, dtype=np.int64)
     remap[used] = np.arange(used.size)
@@ -279,7 +327,70 @@ def mesh_panel(width: float, height: float, cutout: Cutout, region: Region, spec
     d = (p[0, t[1]] - p[0, t[0]]) * (p[1, t[2]] - p[1, t[0]]) - (p[1, t[1]] - p[1, t[0]]) * (p[0, t[2]] - p[0, t[0]])
     t[[1, 2]] = np.where(d < 0, t[[2, 1]], t[[1, 2]])
     linear = MeshTri1(p, np.ascontiguousarray(t))
-    return _curve_cutout(linear, MeshTri2, cutout, xy_ring, t_ring, closed, region, width, height, spec.curved)
+    pm = _curve_cutout(linear, cutout, xy_ring, t_ring, closed, region, width, height, spec.curved)
+    if outer is None:
+        return pm
+    ring_elements = np.arange(t.shape[1] - n_ring, t.shape[1])
+    return _with_ring(pm, outer, xy_off, t_off, ring_elements, spec.curved)
+
+
+def _chain_facets(linear, xy_ring, closed: bool, scale: float) -> tuple[np.ndarray, np.ndarray]:
+    """Facet indices of the segments joining consecutive points ``xy_ring`` (2, n), and whether each facet's
+    vertex order runs against the chain."""
+    from scipy.spatial import cKDTree
+
+    p = linear.p
+    dist, vid = cKDTree(p.T).query(xy_ring.T)
+    if dist.max() > 1e-9 * scale:
+        raise MeshError("gmsh moved a node of an outline; the mesh does not follow it")
+    b = np.roll(vid, -1) if closed else vid[1:]
+    a = vid if closed else vid[:-1]
+    facets = linear.facets  # (2, nf), each column sorted
+    key = facets[0].astype(np.int64) * p.shape[1] + facets[1]
+    order = np.argsort(key)
+    lo, hi = np.minimum(a, b), np.maximum(a, b)
+    pos = np.minimum(np.searchsorted(key[order], lo.astype(np.int64) * p.shape[1] + hi), len(order) - 1)
+    found = order[pos]
+    if not np.array_equal(key[found], lo.astype(np.int64) * p.shape[1] + hi):
+        raise MeshError("a segment of an outline is not an element edge of the mesh")
+    return found, facets[0, found] != a
+
+
+def _arc_s(cutout: Cutout, t_ring, closed: bool) -> tuple[np.ndarray, np.ndarray]:
+    """Unwrapped curve parameters and arc lengths of the arc nodes (closing node repeated for a closed outline)."""
+    smp = cutout.sampling
+    t_nodes = np.concatenate([t_ring, [t_ring[0] + 2 * math.pi]]) if closed else t_ring
+    # unwrap so arc length increases along the arc
+    t_nodes = t_nodes[0] + np.mod(t_nodes - t_nodes[0], 2 * math.pi)
+    if closed:
+        t_nodes[-1] = t_nodes[0] + 2 * math.pi
+    return t_nodes, smp.arclength_at_t(t_nodes)
+
+
+def _curved_midpoints(cutout: Cutout, s_nodes: np.ndarray) -> np.ndarray:
+    smp = cutout.sampling
+    return cutout.xy(smp.t_at_arclength(0.5 * (s_nodes[:-1] + s_nodes[1:])))
+
+
+def _with_ring(pm: PanelMesh, outer: Cutout, xy_off, t_off, ring_elements: np.ndarray, curved: bool) -> PanelMesh:
+    """Add the ring's outer edge (an interior line: mid-side nodes moved onto the offset curve) to a panel mesh."""
+    from dataclasses import replace
+
+    mesh = pm.mesh
+    closed = pm.closed
+    facets, _ = _chain_facets(mesh, xy_off, closed, float(np.ptp(mesh.p, axis=1).max()))
+    _, s_nodes = _arc_s(outer, t_off, closed)
+    doflocs = mesh.doflocs.copy()
+    if curved:
+        doflocs[:, mesh.dofs.facet_dofs[0, facets]] = _curved_midpoints(outer, s_nodes)
+    in_ring = np.zeros(mesh.t.shape[1], dtype=bool)
+    in_ring[ring_elements] = True
+    both = mesh.f2t[:, facets]  # (2, k): the two elements of each interior facet
+    outside = np.where(in_ring[both[0]], both[1], both[0])
+    if np.any(in_ring[outside]) or np.any(outside < 0):
+        raise MeshError("the ring's outer edge does not separate the ring from the web")
+    return replace(pm, mesh=replace(mesh, doflocs=doflocs), ring_elements=ring_elements, ring_facets=facets,
+                   ring_outside=outside, ring_s=s_nodes - s_nodes[0])
 
 
 def _size_field(gmsh, points: list[int], node_h: np.ndarray, growth: float, h_max: float) -> None:
@@ -303,45 +414,22 @@ def _size_field(gmsh, points: list[int], node_h: np.ndarray, growth: float, h_ma
     fld.setAsBackgroundMesh(low)
 
 
-def _curve_cutout(linear, mesh_cls, cutout: Cutout, xy_ring, t_ring, closed, region, width, height,
+def _curve_cutout(linear, cutout: Cutout, xy_ring, t_ring, closed, region, width, height,
                   curved: bool = True) -> PanelMesh:
-    from scipy.spatial import cKDTree
+    from dataclasses import replace
+
+    from skfem import MeshTri2
 
     p = linear.p
-    dist, vid = cKDTree(p.T).query(xy_ring.T)
     scale = max(width, height)
-    if dist.max() > 1e-9 * scale:
-        raise MeshError("gmsh moved a cutout node; the mesh does not follow the cutout outline")
-    a = vid
-    b = np.roll(vid, -1) if closed else vid[1:]
-    a = a if closed else vid[:-1]
-    facets = linear.facets  # (2, nf), each column sorted
-    key = facets[0].astype(np.int64) * p.shape[1] + facets[1]
-    order = np.argsort(key)
-    lo, hi = np.minimum(a, b), np.maximum(a, b)
-    pos = np.searchsorted(key[order], lo.astype(np.int64) * p.shape[1] + hi)
-    cut_facets = order[pos]
-    if not np.array_equal(key[cut_facets], lo.astype(np.int64) * p.shape[1] + hi):
-        raise MeshError("a cutout segment is not an element edge of the mesh")
-    flip = facets[0, cut_facets] != a
-
-    smp = cutout.sampling
-    t_nodes = np.concatenate([t_ring, [t_ring[0] + 2 * math.pi]]) if closed else t_ring
-    # unwrap so arc length increases along the arc
-    t_nodes = t_nodes[0] + np.mod(t_nodes - t_nodes[0], 2 * math.pi)
-    if closed:
-        t_nodes[-1] = t_nodes[0] + 2 * math.pi
-    s_nodes = smp.arclength_at_t(t_nodes)
-    s_mid = 0.5 * (s_nodes[:-1] + s_nodes[1:])
-    mid_xy = cutout.xy(smp.t_at_arclength(s_mid))
-
-    quad = mesh_cls.from_mesh(linear)
+    cut_facets, flip = _chain_facets(linear, xy_ring, closed, scale)
+    facets = linear.facets
+    t_nodes, s_nodes = _arc_s(cutout, t_ring, closed)
+    quad = MeshTri2.from_mesh(linear)
     doflocs = quad.doflocs.copy()
     mid_dofs = quad.dofs.facet_dofs[0, cut_facets]  # the one mid-side DOF of each P2 facet
     if curved:
-        doflocs[:, mid_dofs] = mid_xy
-    from dataclasses import replace
-
+        doflocs[:, mid_dofs] = _curved_midpoints(cutout, s_nodes)
     quad = replace(quad, doflocs=doflocs)
 
     mid = p[:, facets].mean(axis=1)  # (2, nf) midpoints of straight facets

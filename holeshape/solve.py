@@ -48,6 +48,54 @@ def vector_basis(mesh):
     return Basis(mesh, ElementVector(ElementTriP2()), intorder=QUAD_ORDER)
 
 
+def edge_points(mesh, facets: np.ndarray, elements: np.ndarray | None = None):
+    """Where boundary (or interior) facets lie inside their elements, grouped by which two local vertices they join.
+
+    Yields (selection, element indices, reference points of the facet's end-to-end direction as a function of a
+    parameter, reference direction) for each local vertex pair; ``elements`` chooses the element on each facet
+    (default: ``f2t[0]``, the only one on a boundary facet). Facets run from their first to their second vertex."""
+    elem = mesh.f2t[0, facets] if elements is None else np.asarray(elements)
+    fv = mesh.facets[:, facets]
+    tri = mesh.t[:, elem]
+    ia = np.argmax(tri == fv[0][None, :], axis=0)
+    ib = np.argmax(tri == fv[1][None, :], axis=0)
+    for a in range(3):
+        for b in range(3):
+            sel = np.flatnonzero((ia == a) & (ib == b))
+            if a != b and sel.size:
+                yield sel, elem[sel], _REF_VERTICES[a], _REF_VERTICES[b] - _REF_VERTICES[a]
+
+
+def edge_member_stiffness(basis, facets: np.ndarray, axial_stiffness: float):
+    """Stiffness of a bar along boundary ``facets`` that carries force along the edge only (a formed flange or any
+    edge member): energy 1/2 integral(EA eps_ss^2 ds) with the membrane strain of the edge eps_ss = t . grad(u) . t
+    (which includes the u_n / R term of a curved edge). ``axial_stiffness`` EA per unit web thickness (N / mm, the
+    web stiffness here is per mm of thickness). Integrated with 4 Gauss points on each curved edge."""
+    from scipy.sparse import coo_matrix
+    from skfem import Basis
+
+    mesh = basis.mesh
+    g, gw = np.polynomial.legendre.leggauss(4)
+    lam, lw = 0.5 * (g + 1.0), 0.5 * gw
+    rows, cols, vals = [], [], []
+    for _, elem, start, d in edge_points(mesh, facets):
+        ref = start[:, None] + lam[None, :] * d[:, None]
+        cb = Basis(mesh, basis.elem, elements=elem, quadrature=(ref, lw))
+        J = cb.mapping.DF(ref, tind=elem)  # (2, 2, k, q)
+        tan = J[:, 0] * d[0] + J[:, 1] * d[1]  # dx/dlambda along the edge
+        ds = np.linalg.norm(tan, axis=0)  # (k, q)
+        tan = tan / ds
+        eps = np.array([np.einsum("ikq,ijkq,jkq->kq", tan, np.asarray(cb.basis[i][0].grad), tan)
+                        for i in range(cb.Nbfun)])  # (nbfun, k, q)
+        ke = axial_stiffness * np.einsum("ikq,jkq,kq,q->ijk", eps, eps, ds, lw)
+        dofs = cb.element_dofs  # (nbfun, k)
+        rows.append(np.broadcast_to(dofs[:, None, :], ke.shape).ravel())
+        cols.append(np.broadcast_to(dofs[None, :, :], ke.shape).ravel())
+        vals.append(ke.ravel())
+    n = basis.N
+    return coo_matrix((np.concatenate(vals), (np.concatenate(rows), np.concatenate(cols))), shape=(n, n)).tocsr()
+
+
 def stiffness(basis, youngs_modulus: float, poisson_ratio: float):
     from skfem import BilinearForm
     from skfem.helpers import ddot, eye, sym_grad, trace
@@ -152,6 +200,13 @@ class BoundaryStress:
         return sxx * tx * tx + syy * ty * ty + 2 * sxy * tx * ty
 
     @property
+    def normal(self) -> np.ndarray:
+        """Stress normal to the boundary n . sigma . n, (n, m) MPa (the radial stress on a round edge)."""
+        tx, ty = self.tangent[0][:, None], self.tangent[1][:, None]
+        sxx, syy, sxy = self.sigma
+        return sxx * ty * ty + syy * tx * tx - 2 * sxy * tx * ty
+
+    @property
     def von_mises(self) -> np.ndarray:
         return von_mises(*self.sigma)
 
@@ -176,13 +231,16 @@ _REF_VERTICES = np.array([[0.0, 0.0], [1.0, 0.0], [0.0, 1.0]])  # scikit-fem's r
 
 
 def boundary_stress(mesh, u: np.ndarray, facets: np.ndarray, youngs_modulus: float, poisson_ratio: float,
-                    closed: bool, s_nodes: np.ndarray | None = None) -> BoundaryStress:
+                    closed: bool, s_nodes: np.ndarray | None = None, elements: np.ndarray | None = None
+                    ) -> BoundaryStress:
     """Recover the stress along a chain of boundary facets without smoothing the peak.
 
     The displacement gradient is evaluated inside each boundary element, at points of its boundary edge given
     directly in the element's reference coordinates (the element's own polynomial: no projection to nodes, no
     inverse mapping); at a node shared by two facets the two one-sided values are averaged. ``facets`` (k,) must be
     in chain order; ``u`` (n_dofs, m). ``s_nodes`` (k + 1,) arc length of the chain's nodes (else chord lengths).
+    ``elements`` (k,): the element on each facet to recover from (an interior line such as a ring's outer edge has
+    two; default ``f2t[0]``, the only one on a boundary facet).
     """
     from skfem import Basis, ElementTriP2, ElementVector
 
@@ -194,7 +252,7 @@ def boundary_stress(mesh, u: np.ndarray, facets: np.ndarray, youngs_modulus: flo
     if not closed and k > 1:
         start[k - 1] = to_next[k - 2]
         to_next[k - 1] = fv[0, k - 1] + fv[1, k - 1] - start[k - 1]
-    elem = mesh.f2t[0, facets]
+    elem = mesh.f2t[0, facets] if elements is None else np.asarray(elements)
     tri = mesh.t[:, elem]  # (3, k)
     ia = np.argmax(tri == start[None, :], axis=0)
     ib = np.argmax(tri == to_next[None, :], axis=0)
@@ -288,6 +346,7 @@ class PanelSolution:
     cutout: BoundaryStress = field(repr=False)
     youngs_modulus: float
     poisson_ratio: float
+    ring_edge: BoundaryStress | None = field(default=None, repr=False)  # the web just outside a ring's outer edge
 
     @property
     def dofs(self) -> int:
@@ -297,8 +356,21 @@ class PanelSolution:
 EDGE_CONDITIONS = ("traction", "displacement")
 
 
+def reinforcement_terms(reinforcement, youngs_modulus: float, thickness: float) -> tuple[float, float]:
+    """(membrane stiffness of a ring's region over the web's, edge member EA over the web thickness in N/mm) for a
+    reinforcement (None: (1, 0)). The web's own stiffness in this module is per mm of its thickness."""
+    if reinforcement is None:
+        return 1.0, 0.0
+    e_r = reinforcement.modulus(youngs_modulus)
+    t_r = reinforcement.member_thickness(thickness)
+    if reinforcement.kind == "ring":
+        return 1.0 + e_r * t_r / (youngs_modulus * thickness), 0.0
+    return 1.0, e_r * reinforcement.cross_section_mm2(thickness) / thickness
+
+
 def solve_panel(pm, youngs_modulus: float, poisson_ratio: float, remote: np.ndarray, edges: str,
-                width: float, height: float, recover: bool = True) -> PanelSolution:
+                width: float, height: float, recover: bool = True, reinforcement=None,
+                thickness: float = 1.0) -> PanelSolution:
     """Solve a panel mesh (``holeshape.mesh.PanelMesh``) for m uniform remote stress states.
 
     ``remote`` (m, 3): (sigma_x, sigma_y, tau_xy) MPa per load case. ``edges``: "traction" applies sigma . n on
@@ -306,11 +378,21 @@ def solve_panel(pm, youngs_modulus: float, poisson_ratio: float, remote: np.ndar
     tractions are self-equilibrated); "displacement" imposes the remote strain field on the panel edges.
     Mirror lines get zero normal displacement. One factorisation serves every load case. ``recover=False`` skips
     the cutout stress recovery (``cutout`` is then None: a prestress for the buckling check needs the field only).
+    ``reinforcement`` (with the web ``thickness``, mm): a ring stiffens its elements of the mesh (same Poisson's
+    ratio assumed; the recovered stresses are the web's), a flange adds an edge member along the cutout.
     """
     remote = np.atleast_2d(np.asarray(remote, dtype=float))
     mesh = pm.mesh
     basis = vector_basis(mesh)
     K = stiffness(basis, youngs_modulus, poisson_ratio)
+    ring_factor, edge_axial = reinforcement_terms(reinforcement, youngs_modulus, thickness)
+    if ring_factor != 1.0:
+        from skfem import Basis
+
+        ring_basis = Basis(mesh, basis.elem, elements=pm.ring_elements, intorder=QUAD_ORDER)
+        K = K + (ring_factor - 1.0) * stiffness(ring_basis, youngs_modulus, poisson_ratio)
+    if edge_axial > 0.0:
+        K = K + edge_member_stiffness(basis, pm.cutout_facets, edge_axial)
     bnd = pm.boundaries
     edge_facets = np.concatenate([bnd[k] for k in ("left", "right", "bottom", "top")])
     fixed_parts = []
@@ -347,7 +429,18 @@ def solve_panel(pm, youngs_modulus: float, poisson_ratio: float, remote: np.ndar
     u = system.solve(loads, values)
     cut = boundary_stress(mesh, u, pm.cutout_facets, youngs_modulus, poisson_ratio, closed=pm.closed,
                           s_nodes=pm.cutout_s) if recover else None
-    return PanelSolution(basis=basis, u=u, cutout=cut, youngs_modulus=youngs_modulus, poisson_ratio=poisson_ratio)
+    ring_edge = boundary_stress(mesh, u, pm.ring_facets, youngs_modulus, poisson_ratio, closed=pm.closed,
+                                s_nodes=pm.ring_s, elements=pm.ring_outside) \
+        if recover and pm.ring_facets is not None else None
+    return PanelSolution(basis=basis, u=u, cutout=cut, youngs_modulus=youngs_modulus, poisson_ratio=poisson_ratio,
+                         ring_edge=ring_edge)
+
+
+def member_stress(bs: BoundaryStress, youngs_modulus: float, poisson_ratio: float, member_modulus: float
+                  ) -> np.ndarray:
+    """Axial stress (n, m) MPa of an edge member bonded along ``bs``: its strain is the web's strain along the edge
+    (sigma_tt - nu sigma_nn) / E."""
+    return member_modulus * (bs.hoop - poisson_ratio * bs.normal) / youngs_modulus
 
 
 EDGE_NORMALS = {"left": (-1.0, 0.0), "right": (1.0, 0.0), "bottom": (0.0, -1.0), "top": (0.0, 1.0)}

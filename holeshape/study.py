@@ -28,6 +28,8 @@ SHAPE_PARAMETERS: dict[str, tuple[str, ...]] = {
     "spline": ("radii", "symmetry"),
 }
 COMMON_CUTOUT_KEYS = ("shape", "center", "rotation")
+REINFORCEMENT_KEYS = ("kind", "height", "width", "thickness", "youngs_modulus")
+REINFORCEMENT_PREFIX = "reinforcement."  # cutout values of the [reinforcement] table: "reinforcement.height", ...
 
 
 def flat_name(base: str, index: int | None = None) -> str:
@@ -139,7 +141,34 @@ class CutoutSpec:
         shape = cls(**kwargs)
         shape.check()
         center = vals["center"]
-        return Cutout(shape=shape, center=(float(center[0]), float(center[1])), rotation=float(vals["rotation"]))
+        cutout = Cutout(shape=shape, center=(float(center[0]), float(center[1])), rotation=float(vals["rotation"]),
+                        reinforcement=build_reinforcement(vals))
+        if cutout.reinforcement is not None:
+            from holeshape.geometry.reinforcement import check_formable
+
+            check_formable(cutout)
+        return cutout
+
+    @property
+    def reinforced(self) -> bool:
+        return REINFORCEMENT_PREFIX + "kind" in self.values
+
+    def without_reinforcement(self) -> CutoutSpec:
+        return CutoutSpec(self.shape, {k: v for k, v in self.values.items() if not k.startswith(REINFORCEMENT_PREFIX)})
+
+
+def build_reinforcement(values: dict):
+    """The :class:`~holeshape.geometry.Reinforcement` of a cutout's numeric values (None without one)."""
+    from holeshape.geometry import Reinforcement
+
+    kind = values.get(REINFORCEMENT_PREFIX + "kind")
+    if kind is None:
+        return None
+    sizes = {k: float(values[REINFORCEMENT_PREFIX + k]) for k in REINFORCEMENT_KEYS[1:]
+             if REINFORCEMENT_PREFIX + k in values}
+    r = Reinforcement(kind=kind, **sizes)
+    r.check()
+    return r
 
 
 @dataclass(frozen=True)
@@ -191,6 +220,8 @@ class Constraints:
     min_radius: float | None = None
     min_buckling_factor: float | None = None  # checked after the solve (needs [stability])
     min_margin: float | None = None  # margin of safety against material.allowable_stress, checked after the solve
+    max_added_mass: float | None = None  # kg of reinforcement (needs [reinforcement] and material.density)
+    max_reinforcement_area: float | None = None  # mm^2 of the reinforcement's cross-section
 
 
 @dataclass(frozen=True)
@@ -301,7 +332,8 @@ def _table(doc: dict, key: str, required: bool = True) -> dict:
     return v
 
 
-TOP_KEYS = ("title", "panel", "material", "load_case", "cutout", "measure", "constraints", "search", "stability")
+TOP_KEYS = ("title", "panel", "material", "load_case", "cutout", "measure", "constraints", "search", "stability",
+            "reinforcement")
 
 
 def parse_study(doc: dict, source: str = "") -> Study:
@@ -359,7 +391,8 @@ def parse_study(doc: dict, source: str = "") -> Study:
     if dup:
         raise StudyError(f"load_case names must be unique, got {dup[0]!r} more than once")
 
-    cutout = _parse_cutout(_table(doc, "cutout"), panel)
+    reinforcement = _parse_reinforcement(_table(doc, "reinforcement"), panel) if "reinforcement" in doc else {}
+    cutout = _parse_cutout(_table(doc, "cutout"), panel, reinforcement)
 
     ms = _table(doc, "measure", required=False)
     _unknown(ms, ("stress", "accuracy"), "measure.")
@@ -377,6 +410,13 @@ def parse_study(doc: dict, source: str = "") -> Study:
     if constraints.min_margin is not None and material.allowable_stress is None:
         raise StudyError(f"constraints.min_margin = {constraints.min_margin!r} needs material.allowable_stress (MPa)"
                          " to measure the margin of safety against")
+    for name in ("max_added_mass", "max_reinforcement_area"):
+        if getattr(constraints, name) is not None and not reinforcement:
+            raise StudyError(f"constraints.{name} = {getattr(constraints, name)!r} needs a [reinforcement] table"
+                             ' (kind = "flange" or "ring") to limit')
+    if constraints.max_added_mass is not None and material.density is None:
+        raise StudyError(f"constraints.max_added_mass = {constraints.max_added_mass!r} kg needs material.density"
+                         " (kg/m^3) to weigh the reinforcement")
     if search.goal == "largest_opening":
         if constraints.area is not None:
             raise StudyError(f'search.goal = "largest_opening" cannot be combined with constraints.area ='
@@ -404,7 +444,7 @@ def _parse_stability(c: dict) -> StabilitySettings:
 def _parse_constraints(c: dict, panel: Panel) -> Constraints:
     w = "constraints."
     _unknown(c, ("min_area", "max_area", "area", "access", "clearance", "min_ligament", "min_radius",
-                 "min_buckling_factor", "min_margin"), w)
+                 "min_buckling_factor", "min_margin", "max_added_mass", "max_reinforcement_area"), w)
     access = None
     if "access" in c:
         a = c["access"]
@@ -437,6 +477,8 @@ def _parse_constraints(c: dict, panel: Panel) -> Constraints:
         min_radius=_number(c, "min_radius", w, default=None, positive=True),
         min_buckling_factor=_number(c, "min_buckling_factor", w, default=None, positive=True),
         min_margin=_number(c, "min_margin", w, default=None),
+        max_added_mass=_number(c, "max_added_mass", w, default=None, positive=True),
+        max_reinforcement_area=_number(c, "max_reinforcement_area", w, default=None, positive=True),
     )
     if cons.min_margin is not None and not -1.0 < cons.min_margin <= 10.0:
         raise StudyError(f"constraints.min_margin must lie in (-1, 10] (a margin of safety, e.g. 0.0 or 0.15), got"
@@ -490,7 +532,27 @@ def _parse_search(c: dict) -> SearchSettings:
     return SearchSettings(trials=trials, seed=seed, global_fraction=frac, goal=goal)
 
 
-def _parse_cutout(c: dict, panel: Panel) -> CutoutSpec:
+def _parse_reinforcement(c: dict, panel: Panel) -> dict[str, Any]:
+    """The [reinforcement] table as cutout values named ``reinforcement.<key>`` (sizes may be ranges)."""
+    w = "reinforcement."
+    _unknown(c, REINFORCEMENT_KEYS, w)
+    from holeshape.geometry.reinforcement import KINDS
+
+    kind = _string(c, "kind", w, KINDS)
+    need = {"flange": ("height",), "ring": ("width", "thickness")}[kind]
+    wrong = {"flange": "width", "ring": "height"}[kind]
+    if wrong in c:
+        takes = {"flange": "height (and thickness, default the web's)", "ring": "width and thickness"}[kind]
+        raise StudyError(f"reinforcement.{wrong} does not apply to kind = {kind!r}; a {kind} takes {takes}")
+    out: dict[str, Any] = {w + "kind": kind}
+    for key in need + tuple(k for k in ("thickness",) if k not in need and k in c):
+        out[w + key] = _number(c, key, w, positive=True, allow_range=True)
+    if "youngs_modulus" in c:
+        out[w + "youngs_modulus"] = _number(c, "youngs_modulus", w, positive=True)
+    return out
+
+
+def _parse_cutout(c: dict, panel: Panel, reinforcement: dict | None = None) -> CutoutSpec:
     shape = _string(c, "shape", "cutout.", tuple(SHAPE_PARAMETERS))
     params = SHAPE_PARAMETERS[shape]
     _unknown(c, COMMON_CUTOUT_KEYS + params, "cutout.")
@@ -525,6 +587,7 @@ def _parse_cutout(c: dict, panel: Panel) -> CutoutSpec:
     values["center"] = [_number({"v": v}, "v", f"cutout.center[{i}]", allow_range=True) if not isinstance(v, dict)
                         else _range(v, f"cutout.center[{i}]", False) for i, v in enumerate(center)]
     values["rotation"] = _number(c, "rotation", "cutout.", default=0.0, allow_range=True)
+    values.update(reinforcement or {})
     spec = CutoutSpec(shape=shape, values=values)
     if all(r.value is not None for r in spec.ranges.values()):
         check_cutout_in_panel(spec.build(), panel)
@@ -548,6 +611,18 @@ def check_cutout_in_panel(cutout, panel: Panel) -> None:
         raise GeometryError(
             f"cutout.center {list(cutout.center)} leaves a ligament of only {gap:.3g} mm to the {edge} edge;"
             f" at least {1e-3 * min(panel.width, panel.height):.3g} mm (0.1 % of the panel) is needed to mesh it")
+    r = cutout.reinforcement
+    if r is not None and r.kind == "ring":
+        from holeshape.geometry.reinforcement import ring_outline
+
+        outer = ring_outline(cutout, r.width)
+        if not Polygon(outer.polygon(720)).is_valid:
+            raise GeometryError(f"reinforcement.width = {r.width:g} mm makes the ring's outer edge cross itself")
+        ring_edge, ring_gap = min(outer.edge_gaps(panel.width, panel.height).items(), key=lambda kv: kv[1])
+        if ring_gap < 1e-3 * min(panel.width, panel.height):
+            raise GeometryError(
+                f"reinforcement.width = {r.width:g} mm runs the ring past the {ring_edge} panel edge (gap"
+                f" {ring_gap:.3g} mm); the ring must lie inside the panel with a ligament of web beyond it")
 
 
 def dump_toml(doc: dict) -> str:

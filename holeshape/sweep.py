@@ -91,7 +91,7 @@ def run_sweep(study_path: str, out: str, vary_texts: list[str]) -> dict:
         row = {"coords": coords, "feasible": False}
         try:
             cut = study.cutout.build(vals)
-            cons, reasons = constraint_values(cut, study.panel, study.constraints)
+            cons, reasons = constraint_values(cut, study.panel, study.constraints, study.material.density)
             row["area_mm2"] = cut.area
             row["constraints_met"] = not reasons
             if reasons:

@@ -7,6 +7,7 @@ from __future__ import annotations
 
 from holeshape.geometry.base import BoundarySampling, Cutout, Shape
 from holeshape.geometry.families import Circle, Ellipse, RoundedRectangle, Slot, Superellipse
+from holeshape.geometry.reinforcement import Reinforcement
 from holeshape.geometry.spline import Spline
 
 FAMILIES: dict[str, type[Shape]] = {
@@ -14,6 +15,6 @@ FAMILIES: dict[str, type[Shape]] = {
 }
 
 __all__ = [
-    "FAMILIES", "BoundarySampling", "Circle", "Cutout", "Ellipse", "RoundedRectangle", "Shape", "Slot", "Spline",
+    "FAMILIES", "BoundarySampling", "Circle", "Cutout", "Ellipse", "Reinforcement", "RoundedRectangle", "Shape", "Slot", "Spline",
     "Superellipse",
 ]

@@ -158,11 +158,13 @@ def require_positive(name: str, value: float) -> None:
 
 @dataclass(frozen=True)
 class Cutout:
-    """A shape placed in the panel: centre (mm, panel coordinates) and counter-clockwise rotation (degrees)."""
+    """A shape placed in the panel: centre (mm, panel coordinates) and counter-clockwise rotation (degrees), with
+    its reinforcement (``holeshape.geometry.reinforcement.Reinforcement``; None for a bare opening)."""
 
     shape: Shape
     center: tuple[float, float]
     rotation: float = 0.0
+    reinforcement: object = None
 
     @property
     def family(self) -> str:
@@ -205,7 +207,16 @@ class Cutout:
         out = dict(self.shape.parameters())
         out["center"] = list(self.center)
         out["rotation"] = self.rotation
+        if self.reinforcement is not None:
+            out.update({f"reinforcement.{k}": v for k, v in self.reinforcement.parameters().items()})
         return out
+
+    @property
+    def bare(self) -> Cutout:
+        """The same opening without its reinforcement."""
+        from dataclasses import replace
+
+        return replace(self, reinforcement=None)
 
     def panel_symmetry(self) -> tuple[bool, bool]:
         """Whether the placed outline is mirror symmetric about a horizontal and a vertical line through its centre."""

@@ -38,8 +38,10 @@ def access_margin(cutout: Cutout, cons: Constraints, poly=None) -> float:
     return -max(float(poly.distance(Point(*p))) for p in ring)
 
 
-def constraint_values(cutout: Cutout, panel: Panel, cons: Constraints) -> tuple[dict[str, float], list[str]]:
-    """Scaled constraint values (<= 0 feasible) and the reasons for every violated one."""
+def constraint_values(cutout: Cutout, panel: Panel, cons: Constraints, density: float | None = None
+                      ) -> tuple[dict[str, float], list[str]]:
+    """Scaled constraint values (<= 0 feasible) and the reasons for every violated one. ``density`` (kg/m^3)
+    weighs a reinforcement for ``max_added_mass``."""
     values: dict[str, float] = {}
     reasons: list[str] = []
     poly = outline_polygon(cutout)
@@ -75,7 +77,44 @@ def constraint_values(cutout: Cutout, panel: Panel, cons: Constraints) -> tuple[
         values["access"] = -m / size
         if m < 0:
             reasons.append(f"the access envelope (with {cons.clearance:g} mm clearance) pokes out by {-m:.3g} mm")
+    _reinforcement_values(cutout, panel, cons, density, values, reasons)
     return values, reasons
+
+
+def _reinforcement_values(cutout: Cutout, panel: Panel, cons: Constraints, density, values: dict, reasons: list):
+    from holeshape.errors import GeometryError
+    from holeshape.geometry.reinforcement import reinforced_sizes, ring_outline
+
+    r = cutout.reinforcement
+    if r is None:
+        return
+    if r.kind == "ring":
+        try:
+            outer = ring_outline(cutout, r.width)
+        except GeometryError as err:
+            values["ring"] = 1.0
+            reasons.append(str(err))
+            return
+        gap = min(outer.edge_gaps(panel.width, panel.height).values())
+        need = 1e-3 * min(panel.width, panel.height)
+        values["ring_inside_panel"] = (need - gap) / min(panel.width, panel.height)
+        if gap < need:
+            reasons.append(f"the ring's outer edge comes within {gap:.3g} mm of a panel edge")
+        if not outline_polygon(outer).is_valid:
+            values["ring"] = 1.0
+            reasons.append("the ring's outer edge crosses itself")
+            return
+    sizes = reinforced_sizes(cutout, panel.thickness)
+    if cons.max_reinforcement_area is not None:
+        a = sizes.cross_section_mm2
+        values["reinforcement_area"] = (a - cons.max_reinforcement_area) / cons.max_reinforcement_area
+        if a > cons.max_reinforcement_area:
+            reasons.append(f"reinforcement cross-section {a:.3g} mm^2 > {cons.max_reinforcement_area:g} mm^2")
+    mass = sizes.mass_kg(density)
+    if cons.max_added_mass is not None and mass is not None:
+        values["added_mass"] = (mass - cons.max_added_mass) / cons.max_added_mass
+        if mass > cons.max_added_mass:
+            reasons.append(f"added mass {mass:.3g} kg > {cons.max_added_mass:g} kg")
 
 
 def solved_constraint_values(ev, cons: Constraints) -> tuple[dict[str, float], list[str]]:
@@ -127,6 +166,17 @@ def requirement_rows(ev, cutout: Cutout, panel: Panel, cons: Constraints, materi
         add("removed area (mm^2)", cutout.area, f">= {cons.min_area:g}", cutout.area >= cons.min_area)
     if cons.max_area is not None:
         add("removed area (mm^2)", cutout.area, f"<= {cons.max_area:g}", cutout.area <= cons.max_area)
+    if cutout.reinforcement is not None:
+        from holeshape.geometry.reinforcement import reinforced_sizes
+
+        sizes = reinforced_sizes(cutout, panel.thickness)
+        if cons.max_reinforcement_area is not None:
+            add("reinforcement cross-section (mm^2)", sizes.cross_section_mm2, f"<= {cons.max_reinforcement_area:g}",
+                sizes.cross_section_mm2 <= cons.max_reinforcement_area)
+        mass = sizes.mass_kg(material.density)
+        if cons.max_added_mass is not None and mass is not None:
+            add("added mass of the reinforcement (kg)", mass, f"<= {cons.max_added_mass:g}",
+                mass <= cons.max_added_mass, kind="mass")
     if material.allowable_stress is not None:
         limit = cons.min_margin if cons.min_margin is not None else 0.0
         for r in ev.load_cases:
@@ -153,6 +203,8 @@ ADVICE = {
                 " constraints.min_buckling_factor), a thicker web, stiffeners, or a flanged or reinforced opening",
     "accuracy": "to meet the accuracy target: use a finer accuracy level (--accuracy fine)",
     "geometry": "to meet the geometric requirements: change the design or search within the ranges",
+    "mass": "to lighten the reinforcement: a smaller flange or ring, or search its sizes (ranges in"
+            " [reinforcement])",
 }
 
 
@@ -189,4 +241,6 @@ def requirement_value(r: dict) -> str:
         return f"{v:.3f}"
     if kind == "accuracy":
         return sig(v, 2)
+    if kind == "mass":
+        return sig(v, 3)
     return f"{v:.0f}" if "mm^2" in r["requirement"] else f"{v:.1f}"

@@ -89,7 +89,8 @@ class Objective:
             rec.update(state="infeasible", constraints={"outline": 1.0})
             rec["user_attrs"].update(feasible=False, reason=str(err))
             return rec
-        cons, reasons = constraint_values(cutout, self.study.panel, self.study.constraints)
+        cons, reasons = constraint_values(cutout, self.study.panel, self.study.constraints,
+                                          self.study.material.density)
         rec["constraints"] = cons
         dims = {k: (list(v) if isinstance(v, (list, tuple)) else v) for k, v in cutout.parameters().items()}
         rec["user_attrs"].update(area_mm2=cutout.area, dims=dims, min_radius_mm=cutout.min_radius)
