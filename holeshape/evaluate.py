@@ -17,8 +17,15 @@ import numpy as np
 from holeshape.errors import SolveError
 from holeshape.geometry import Cutout
 from holeshape.mesh import MeshSpec, Region, mesh_panel
-from holeshape.solve import (BoundaryStress, PanelSolution, member_stress, peak_along, principal_stresses, solve_panel,
-                             von_mises)
+from holeshape.solve import (
+    BoundaryStress,
+    PanelSolution,
+    member_stress,
+    peak_along,
+    principal_stresses,
+    solve_panel,
+    von_mises,
+)
 from holeshape.stability import CASE_KEYS, DESIGN_KEYS, StabilityFields, StabilityResult, buckling
 from holeshape.study import ACCURACIES, LoadCase, Material, Measure, Panel, StabilitySettings
 

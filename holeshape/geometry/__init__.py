@@ -15,6 +15,6 @@ FAMILIES: dict[str, type[Shape]] = {
 }
 
 __all__ = [
-    "FAMILIES", "BoundarySampling", "Circle", "Cutout", "Ellipse", "Reinforcement", "RoundedRectangle", "Shape", "Slot", "Spline",
-    "Superellipse",
+    "FAMILIES", "BoundarySampling", "Circle", "Cutout", "Ellipse", "Reinforcement", "RoundedRectangle", "Shape", "Slot",
+    "Spline", "Superellipse",
 ]
