@@ -163,8 +163,16 @@ class StabilityFields:
 
 
 # ----- forms --------------------------------------------------------------------------------------------------------
-def bending_stiffness(basis, youngs_modulus: float, poisson_ratio: float, thickness: float):
-    """Kirchhoff plate bending stiffness matrix, N mm (w in mm)."""
+def _per_element(basis, values) -> np.ndarray:
+    """A number or per-element values (n_elements,) spread over ``basis``'s quadrature points."""
+    shape = np.asarray(basis.global_coordinates())[0].shape
+    v = np.asarray(values, dtype=float)
+    return np.ascontiguousarray(np.broadcast_to(v[:, None] if v.ndim == 1 else v, shape))
+
+
+def bending_stiffness(basis, youngs_modulus: float, poisson_ratio: float, thickness: float, scale=1.0):
+    """Kirchhoff plate bending stiffness matrix, N mm (w in mm); ``scale`` (a number or per element) multiplies
+    D = E t^3 / (12 (1 - nu^2)) (a doubler ring's elements)."""
     from skfem import BilinearForm
     from skfem.helpers import dd, ddot, trace
 
@@ -173,26 +181,87 @@ def bending_stiffness(basis, youngs_modulus: float, poisson_ratio: float, thickn
 
     @BilinearForm
     def form(u, v, w):
-        return d * ((1.0 - nu) * ddot(dd(u), dd(v)) + nu * trace(dd(u)) * trace(dd(v)))
+        return d * w["scale"] * ((1.0 - nu) * ddot(dd(u), dd(v)) + nu * trace(dd(u)) * trace(dd(v)))
 
-    return form.assemble(basis)
+    return form.assemble(basis, scale=_per_element(basis, scale if np.ndim(scale) else [scale] * basis.nelems))
 
 
-def geometric_stiffness(basis, prestress: np.ndarray, thickness: float):
+def geometric_stiffness(basis, prestress: np.ndarray, thickness):
     """t * integral(grad(u) . S . grad(v)) for the prestress ``prestress`` (3, n_elements, n_qp) MPa at ``basis``'s
-    quadrature points (or (3,) for a uniform state)."""
+    quadrature points (or (3,) for a uniform state); ``thickness`` a number or per element (mm): t S is the
+    membrane force per unit length."""
     from skfem import BilinearForm
     from skfem.helpers import grad
 
     @BilinearForm
     def form(u, v, w):
         gu, gv = grad(u), grad(v)
-        return thickness * (w["sxx"] * gu[0] * gv[0] + w["syy"] * gu[1] * gv[1]
-                            + w["sxy"] * (gu[0] * gv[1] + gu[1] * gv[0]))
+        return w["t"] * (w["sxx"] * gu[0] * gv[0] + w["syy"] * gu[1] * gv[1]
+                         + w["sxy"] * (gu[0] * gv[1] + gu[1] * gv[0]))
 
     shape = np.asarray(basis.global_coordinates())[0].shape
     s = [np.ascontiguousarray(np.broadcast_to(np.asarray(prestress[i], dtype=float), shape)) for i in range(3)]
-    return form.assemble(basis, sxx=s[0], syy=s[1], sxy=s[2])
+    t = _per_element(basis, thickness if np.ndim(thickness) else [thickness] * basis.nelems)
+    return form.assemble(basis, sxx=s[0], syy=s[1], sxy=s[2], t=t)
+
+
+def edge_beam_matrices(pb, chain: np.ndarray, closed: bool, bending: float,
+                       axial_force: list[np.ndarray] | None = None):
+    """A beam along a chain of plate vertices (a flange standing on the cutout edge): its bending stiffness
+    integral(EI w_ss v_ss ds) and, per load case, its geometric stiffness integral(P w_s v_s ds) for the axial force
+    P (N per segment of the chain, tension positive). ``bending`` EI in N mm^2; ``chain`` vertex indices in order
+    along the edge (``closed``: the last joins the first).
+
+    Discretised on the vertex deflections along the edge (central second differences on the uneven spacing,
+    second order): Morley's own curvature is constant in an element and blind to the kinks between elements, so a
+    beam on it would carry no bending (measured: an infinitely stiff edge beam left the free-edge plate at
+    k = 1.46 instead of the simply supported 4). Returns (K_beam, [K_G beam per case])."""
+    from scipy.sparse import coo_matrix, diags
+
+    x = pb.mesh.p[:, chain]
+    nxt = np.roll(np.arange(len(chain)), -1)
+    h = np.linalg.norm(x[:, nxt] - x, axis=0)  # segment i joins chain[i] and chain[i + 1]
+    if not closed:
+        h = h[:-1]
+    n_seg, n_v = len(h), len(chain)
+    seg = np.arange(n_seg)
+    dofs = pb.nodal_dofs[0, chain]
+    # slope on each segment: (w[i + 1] - w[i]) / h[i]
+    G = coo_matrix((np.concatenate([-1.0 / h, 1.0 / h]), (np.concatenate([seg, seg]),
+                                                          np.concatenate([seg, (seg + 1) % n_v]))),
+                   shape=(n_seg, n_v)).tocsr()
+    # curvature at each vertex with a segment on both sides: (slope after - slope before) / mean spacing
+    mids = np.arange(n_v) if closed else np.arange(1, n_v - 1)
+    before, after = (mids - 1) % n_seg, mids % n_seg if closed else mids
+    ell = 0.5 * (h[before] + h[after])
+    C = coo_matrix((np.concatenate([np.full(len(mids), -1.0), np.ones(len(mids))]) / np.concatenate([ell, ell]),
+                    (np.concatenate([np.arange(len(mids))] * 2), np.concatenate([before, after]))),
+                   shape=(len(mids), n_seg)).tocsr() @ G
+    P = coo_matrix((np.ones(n_v), (dofs, np.arange(n_v))), shape=(pb.N, n_v)).tocsr()  # vertex -> plate DOF
+    K = P @ (C.T @ diags(bending * ell) @ C) @ P.T
+    KG = [P @ (G.T @ diags(np.asarray(f, dtype=float) * h) @ G) @ P.T for f in (axial_force or [])]
+    return K.tocsr(), [k.tocsr() for k in KG]
+
+
+EDGE_GAUSS = 4  # Gauss points on each edge of a beam along the cutout
+
+
+def stack_bending_ratio(youngs_modulus: float, thickness: float, reinforcement) -> float:
+    """Bending stiffness of web plus a doubler on one face over the web's alone, about the stack's own neutral
+    plane (the membrane-bending coupling of the eccentric doubler is neglected)."""
+    e_r = reinforcement.modulus(youngs_modulus)
+    t_r = reinforcement.member_thickness(thickness)
+    layers = [(youngs_modulus, thickness, 0.5 * thickness), (e_r, t_r, thickness + 0.5 * t_r)]
+    z0 = sum(e * t * z for e, t, z in layers) / sum(e * t for e, t, _ in layers)
+    d = sum(e * (t ** 3 / 12.0 + t * (z - z0) ** 2) for e, t, z in layers)
+    return d / (youngs_modulus * thickness ** 3 / 12.0)
+
+
+def flange_bending_stiffness(youngs_modulus: float, thickness: float, reinforcement) -> float:
+    """EI (N mm^2) of a flange of height h and thickness t_f bending in its own plane (the plane normal to the web
+    along the edge): E t_f h^3 / 12 about its own centroid (the web's share is ignored, which errs low)."""
+    return reinforcement.modulus(youngs_modulus) * reinforcement.member_thickness(thickness) \
+        * reinforcement.height ** 3 / 12.0
 
 
 def plate_basis(p: np.ndarray, t: np.ndarray):
@@ -311,15 +380,16 @@ def _vertex_deflection(basis, mode: np.ndarray) -> np.ndarray:
     return w / (big if abs(w.max()) >= abs(w.min()) else -big)
 
 
-def plate_buckling(pm, u: np.ndarray, material, thickness: float, edge_support: str, n_modes: int = 1
-                   ) -> tuple[list[list[tuple[float, np.ndarray]]], object]:
+def plate_buckling(pm, u: np.ndarray, material, thickness: float, edge_support: str, n_modes: int = 1,
+                   reinforcement=None) -> tuple[list[list[tuple[float, np.ndarray]]], object]:
     """Buckling of a meshed panel (``holeshape.mesh.PanelMesh`` of the whole panel) under the in-plane
     displacements ``u`` (n_dofs, m) of its P2 solve (any in-plane boundary condition): per load case the
     ``n_modes`` lowest positive factors with their mode shapes (deflection at the mesh vertices, largest magnitude
-    1), and the plate basis. Edges named left/right/bottom/top are supported; the cutout edge is free."""
+    1), and the plate basis. Edges named left/right/bottom/top are supported; the cutout edge is free, or carries a
+    flange (a beam with its bending stiffness and its axial force), or a doubler ring stiffens its elements."""
     from skfem import Basis, ElementTriP2, ElementVector
 
-    from holeshape.solve import stress_from_gradient
+    from holeshape.solve import reinforcement_terms, stress_from_gradient
 
     mesh = pm.mesh
     pb = plate_basis(mesh.p[:, :mesh.nvertices], mesh.t)
@@ -328,17 +398,67 @@ def plate_buckling(pm, u: np.ndarray, material, thickness: float, edge_support: 
     prestresses = [stress_from_gradient(np.asarray(sb.interpolate(u[:, c]).grad), material.youngs_modulus,
                                         material.poisson_ratio) for c in range(u.shape[1])]
     edges = np.concatenate([pm.boundaries[k] for k in ("left", "right", "bottom", "top")])
-    return _plate_factors(pb, prestresses, material, thickness, edges, edge_support, n_modes), pb
+    scale, force = 1.0, thickness
+    extra = None
+    if reinforcement is not None and reinforcement.kind == "ring":
+        ring_factor, _ = reinforcement_terms(reinforcement, material.youngs_modulus, thickness)
+        scale = np.ones(mesh.t.shape[1])
+        scale[pm.ring_elements] = stack_bending_ratio(material.youngs_modulus, thickness, reinforcement)
+        force = np.full(mesh.t.shape[1], thickness)
+        force[pm.ring_elements] = thickness * ring_factor  # membrane force = web stress x equivalent thickness
+    elif reinforcement is not None and reinforcement.kind == "flange":
+        extra = _flange_terms(pm, pb, u, material, thickness, reinforcement)
+    return _plate_factors(pb, prestresses, material, thickness, edges, edge_support, n_modes, scale, force,
+                          extra), pb
+
+
+def _flange_terms(pm, pb, u: np.ndarray, material, thickness: float, reinforcement):
+    """The flange's bending stiffness and geometric stiffness per load case along the cutout (plate matrices)."""
+    from skfem import Basis, ElementTriP2, ElementVector
+
+    from holeshape.solve import edge_points
+
+    mesh = pm.mesh
+    if not np.array_equal(pb.mesh.facets[:, pm.cutout_facets], mesh.facets[:, pm.cutout_facets]):
+        raise SolveError("the plate mesh numbers its facets differently from the panel mesh")
+    g, _ = np.polynomial.legendre.leggauss(EDGE_GAUSS)
+    lam = 0.5 * (g + 1.0)
+    e_f = reinforcement.modulus(material.youngs_modulus)
+    area = reinforcement.cross_section_mm2(thickness)
+    force = np.empty((u.shape[1], len(pm.cutout_facets), EDGE_GAUSS))
+    velem = ElementVector(ElementTriP2())
+    for sel, elem, start, d in edge_points(mesh, pm.cutout_facets):
+        ref = start[:, None] + lam[None, :] * d[:, None]
+        cb = Basis(mesh, velem, elements=elem, quadrature=(ref, np.full(EDGE_GAUSS, 1.0 / EDGE_GAUSS)))
+        J = cb.mapping.DF(ref, tind=elem)
+        tan = J[:, 0] * d[0] + J[:, 1] * d[1]
+        tan = tan / np.linalg.norm(tan, axis=0)
+        for c in range(u.shape[1]):
+            grad = np.asarray(cb.interpolate(u[:, c]).grad)  # (2, 2, k, q)
+            force[c][sel] = e_f * area * np.einsum("ikq,ijkq,jkq->kq", tan, grad, tan)
+    fv = mesh.facets[:, pm.cutout_facets]
+    chain = np.where(pm.cutout_flip, fv[1], fv[0])  # the start vertex of each facet along the arc
+    return edge_beam_matrices(pb, chain, pm.closed, flange_bending_stiffness(material.youngs_modulus, thickness,
+                                                                             reinforcement),
+                              [f.mean(axis=1) for f in force])
 
 
 def _plate_factors(pb, prestresses: list[np.ndarray], material, thickness: float, edge_facets: np.ndarray,
-                   edge_support: str, n_modes: int) -> list[list[tuple[float, np.ndarray]]]:
+                   edge_support: str, n_modes: int, scale=1.0, force=None, extra=None
+                   ) -> list[list[tuple[float, np.ndarray]]]:
     """Per prestress (3, ...) MPa: the lowest positive factors and their vertex mode shapes on plate basis ``pb``
-    with ``edge_facets`` supported."""
-    K = bending_stiffness(pb, material.youngs_modulus, material.poisson_ratio, thickness)
-    KGs = [geometric_stiffness(pb, S, thickness) for S in prestresses]
+    with ``edge_facets`` supported. ``scale``/``force``: per-element bending stiffness ratio and membrane thickness
+    (a ring); ``extra``: (K, [K_G per case]) of an edge beam (a flange)."""
+    force = thickness if force is None else force
+    K = bending_stiffness(pb, material.youngs_modulus, material.poisson_ratio, thickness, scale)
+    KGs = [geometric_stiffness(pb, S, force) for S in prestresses]
+    compression = [has_compression(S) for S in prestresses]
+    if extra is not None:
+        K = K + extra[0]
+        KGs = [kg + kb for kg, kb in zip(KGs, extra[1])]
+        compression = [True] * len(KGs)  # the flange may be compressed where the web is not
     fixed = supported_dofs(pb, edge_facets, edge_support)
-    facs = lowest_factors(K, KGs, fixed, n_modes, [has_compression(S) for S in prestresses])
+    facs = lowest_factors(K, KGs, fixed, n_modes, compression)
     return [[(f, _vertex_deflection(pb, m)) for f, m in rows] for rows in facs]
 
 
@@ -349,8 +469,8 @@ def _holed_level(panel, material, remote: np.ndarray, cutout, spec: MeshSpec, su
     region = Region(panel.width, panel.height)  # the whole panel: modes need not be symmetric
     pm = mesh_panel(panel.width, panel.height, cutout, region, spec)
     sol = solve_panel(pm, material.youngs_modulus, material.poisson_ratio, remote, panel.edges, panel.width,
-                      panel.height, recover=False)
-    facs, pb = plate_buckling(pm, sol.u, material, panel.thickness, support, n_modes)
+                      panel.height, recover=False, reinforcement=cutout.reinforcement, thickness=panel.thickness)
+    facs, pb = plate_buckling(pm, sol.u, material, panel.thickness, support, n_modes, cutout.reinforcement)
     mesh = pm.mesh
     return _LevelRun(facs, int(pb.N), mesh.p[:, :mesh.nvertices].copy(), mesh.t.copy())
 
