@@ -30,9 +30,16 @@ STABILITY_CAUTIONS = (
 )
 
 
-def cautions(stability_computed: bool = False) -> str:
-    """The caution every output carries: with or without a computed buckling check."""
-    return STABILITY_CAUTIONS if stability_computed else CAUTIONS
+REINFORCEMENT_CAUTION = (
+    " The reinforcement is idealised (a fully effective flange without its bend radius, a perfectly bonded doubler"
+    " of the web's Poisson's ratio): rivet rows, fastener bearing and flexibility, the bond, and the fatigue of the"
+    " doubler or the flange are not assessed."
+)
+
+
+def cautions(stability_computed: bool = False, reinforced: bool = False) -> str:
+    """The caution every output carries: with or without a computed buckling check and a reinforcement."""
+    return (STABILITY_CAUTIONS if stability_computed else CAUTIONS) + (REINFORCEMENT_CAUTION if reinforced else "")
 
 
 __all__ = ["CAUTIONS", "STABILITY_CAUTIONS", "GeometryError", "HoleshapeError", "MeshError", "SearchError",

@@ -172,7 +172,8 @@ def _check(args) -> int:
     if args.json:
         d = ev.to_dict()
         d.update({"title": study.title, "shape": cutout.family, "params": cutout.parameters(),
-                  "holeshape_version": __version__, "plots": plots, "cautions": cautions(ev.stability is not None),
+                  "holeshape_version": __version__, "plots": plots, "cautions":
+                  cautions(ev.stability is not None, ev.reinforcement is not None),
                   "requirements": requirements, "meets_every_requirement": all(r["met"] for r in requirements)})
         d.update(verdict(requirements))
         for c in d["load_cases"]:

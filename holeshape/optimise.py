@@ -150,7 +150,8 @@ def run_optimise(study_path: str, out: str, workers: int = 1, storage_url: str |
                              " (or restore the original study file) to keep results consistent")
         if storage_url is None:
             fail_stale(study, storage, name)
-        baselines = standard_shapes(study_def.cutout.values, study_def.panel, study_def.constraints)
+        baselines = standard_shapes(study_def.cutout.values, study_def.panel, study_def.constraints,
+                                    study_def.material.density)
         if created:  # only the process that created the study seeds it: machines starting together add nothing twice
             objective = Objective(study_def, space, trade_off, cache)
             own = {k: r.value for k, r in space.dimensions.items()}
@@ -382,12 +383,13 @@ def write_profiles(out_dir: Path, study_def, best: Candidate, own: Candidate | N
     from holeshape.output import files
 
     size = (study_def.panel.width, study_def.panel.height)
-    dxf_info = files.write_dxf(out_dir / "best.dxf", best.cutout, size, study_def.title)
+    dxf_info = files.write_dxf(out_dir / "best.dxf", best.cutout, size, study_def.title,
+                               study_def.panel.thickness)
     files.write_csv(out_dir / "best.csv", best.cutout)
     if own is None:
         return dxf_info, None
     files.write_csv(out_dir / "family_best.csv", own.cutout)
-    files.write_dxf(out_dir / "family_best.dxf", own.cutout, size, study_def.title)
+    files.write_dxf(out_dir / "family_best.dxf", own.cutout, size, study_def.title, study_def.panel.thickness)
     e = own.evaluation
     return dxf_info, {"shape": own.family, "peak_stress_mpa": e.peak_stress_mpa, "kt": e.kt, "area_mm2": e.area_mm2,
                       "error_estimate_pct": e.error_estimate_pct, "params": _jsonable(own.cutout.parameters()),
@@ -419,8 +421,29 @@ def write_plots(out_dir: Path, study_def, trials, best: Candidate, usable_baseli
     return paths
 
 
-def design_check(study_def, best: Candidate, out_dir: Path, dxf_info: dict, warnings: list[str]) -> DesignCheck:
-    """The typed ``best`` block: the recommended design at the final level with its evidence and verdicts."""
+def bare_comparison(checks: FinalChecks, best: Candidate) -> dict | None:
+    """The reinforcement block of the recommendation with the same outline checked bare at the final level (what
+    the reinforcement buys). None for a bare opening."""
+    ev = best.evaluation
+    if ev.reinforcement is None:
+        return None
+    s = checks.study
+    bare = checks.evaluate(best.cutout.bare)
+    rows = requirement_rows(bare, best.cutout.bare, s.panel, s.constraints, s.material)
+    v = verdict(rows)
+    out = ev.reinforcement.to_dict()
+    out["bare_opening"] = {
+        "peak_stress_mpa": bare.peak_stress_mpa, "margin_of_safety": bare.lowest_margin,
+        "buckling_load_factor": None if bare.stability is None else bare.stability.load_factor,
+        "governing_load_case": bare.governing_load_case, "verdict": v["verdict"],
+        "verdict_reasons": v["verdict_reasons"], "error_estimate_pct": bare.error_estimate_pct}
+    return out
+
+
+def design_check(study_def, best: Candidate, out_dir: Path, dxf_info: dict, warnings: list[str],
+                 reinforcement: dict | None = None) -> DesignCheck:
+    """The typed ``best`` block: the recommended design at the final level with its evidence and verdicts;
+    ``reinforcement`` the block :func:`bare_comparison` gives."""
     ev, cut = best.evaluation, best.cutout
     reqs = tuple(Requirement(**r) for r in requirement_rows(ev, cut, study_def.panel, study_def.constraints,
                                                             study_def.material))
@@ -448,7 +471,7 @@ def design_check(study_def, best: Candidate, out_dir: Path, dxf_info: dict, warn
         ligaments_mm={k: round(v, 3) for k, v in edge_gaps(cut, study_def.panel).items()},
         mass_saved_kg=density * ev.area_mm2 * study_def.panel.thickness * 1e-9 if density else None,
         vtk=str(out_dir / "best_stress_field.vtu"), requirements=reqs,
-        stability=None if ev.stability is None else ev.stability.to_dict())
+        stability=None if ev.stability is None else ev.stability.to_dict(), reinforcement=reinforcement)
 
 
 def _finish(study_def, study, space, baselines, out_dir: Path, storage_name: str, trade_off: bool, t0: float,
@@ -471,13 +494,15 @@ def _finish(study_def, study, space, baselines, out_dir: Path, storage_name: str
         plot_paths.append(search_plots.plot_front(out_dir / "trade_off_front.png", trials, list(front),
                                                   study_def.title))
     record = RunRecord(
-        best=design_check(study_def, best, out_dir, dxf_info, warnings), family_best=family_best,
+        best=design_check(study_def, best, out_dir, dxf_info, warnings, bare_comparison(checks, best)),
+        family_best=family_best,
         baselines=tuple(base_rows),
         improvement_over_baselines_pct={b.shape: 100.0 * (1 - ev.peak_stress_mpa / b.peak_stress_mpa)
                                         for b in base_rows if b.feasible},
         goal=goal, trials=trial_counts(study), storage=storage_name, study=study_def.title,
         search_accuracy=SEARCH_ACCURACY, elapsed_s=time.perf_counter() - t0, plots=tuple(str(p) for p in plot_paths),
-        holeshape_version=__version__, cautions=cautions(ev.stability is not None), front=front)
+        holeshape_version=__version__, cautions=cautions(ev.stability is not None, ev.reinforcement is not None),
+        front=front)
     files.write_json(out_dir / "inputs.json", RunInputs.from_study(study_def).to_dict())
     if not (out_dir / "validation.json").exists():
         from holeshape.validation import run_validation
@@ -543,7 +568,8 @@ def _front(study, space, study_def, out_dir: Path) -> list[dict]:
     for i, t in enumerate(front):
         cut, _ = space.decode(t.params)
         path = out_dir / f"front_{i:02d}.dxf"
-        files.write_dxf(path, cut, (study_def.panel.width, study_def.panel.height), study_def.title)
+        files.write_dxf(path, cut, (study_def.panel.width, study_def.panel.height), study_def.title,
+                        study_def.panel.thickness)
         rows.append({"trial": t.number, "peak_stress_mpa": t.values[0], "area_mm2": t.values[1],
                      "params": _jsonable(cut.parameters()), "dxf": str(path), "accuracy": SEARCH_ACCURACY,
                      "buckling_load_factor": t.user_attrs.get("buckling_load_factor")})

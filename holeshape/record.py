@@ -27,6 +27,7 @@ class RunInputs:
     measure: dict
     stability: dict | None
     finished: str
+    reinforcement: dict | None = None  # the [reinforcement] table: kind and sizes (ranges as min/max/value)
 
     @classmethod
     def from_study(cls, study: Study, finished: datetime | None = None) -> RunInputs:
@@ -35,7 +36,8 @@ class RunInputs:
                    material=asdict(study.material), load_cases=tuple(asdict(c) for c in study.load_cases),
                    constraints=asdict(study.constraints), search=asdict(study.search),
                    measure=asdict(study.measure),
-                   stability=None if study.stability is None else asdict(study.stability), finished=when)
+                   stability=None if study.stability is None else asdict(study.stability), finished=when,
+                   reinforcement=reinforcement_table(study))
 
     @classmethod
     def from_dict(cls, d: dict) -> RunInputs:
@@ -43,12 +45,25 @@ class RunInputs:
         return cls(title=d["title"], source=d.get("source", ""), panel=d["panel"], material=d["material"],
                    load_cases=tuple(d["load_cases"]), constraints=d.get("constraints", {}),
                    search=d.get("search", {}), measure=d.get("measure", {}), stability=d.get("stability"),
-                   finished=d.get("finished", ""))
+                   finished=d.get("finished", ""), reinforcement=d.get("reinforcement"))
 
     def to_dict(self) -> dict:
         d = asdict(self)
         d["load_cases"] = list(self.load_cases)
+        if d["reinforcement"] is None:
+            d.pop("reinforcement")
         return d
+
+
+def reinforcement_table(study: Study) -> dict | None:
+    """The study's [reinforcement] as plain data (None without one)."""
+    from holeshape.study import REINFORCEMENT_PREFIX, Range
+
+    out = {}
+    for k, v in study.cutout.values.items():
+        if k.startswith(REINFORCEMENT_PREFIX):
+            out[k[len(REINFORCEMENT_PREFIX):]] = asdict(v) if isinstance(v, Range) else v
+    return out or None
 
 
 # ----- what a search run found ------------------------------------------------------------------------------------
@@ -144,6 +159,9 @@ class DesignCheck:
     requirements: tuple[Requirement, ...]
     stability: dict | None = None  # StabilityResult.to_dict() of the final check, None without [stability]
     feasible: bool = True
+    # ReinforcementResult.to_dict() of the final check with "bare_opening": the same outline without it (None for a
+    # bare opening)
+    reinforcement: dict | None = None
 
     @property
     def meets_every_requirement(self) -> bool:
@@ -170,6 +188,8 @@ class DesignCheck:
         stab = d.pop("stability")
         if stab is not None:
             d.update({k: stab[k] for k in DESIGN_KEYS}, stability=stab)
+        if d["reinforcement"] is None:
+            d.pop("reinforcement")
         d["meets_every_requirement"] = self.meets_every_requirement
         d.update(self.verdict())
         return d
@@ -182,7 +202,8 @@ class DesignCheck:
                   levels=tuple(LevelCheck(**x) for x in d.get("levels", [])),
                   requirements=tuple(Requirement(**r) for r in d.get("requirements", [])),
                   warnings=tuple(d.get("warnings", [])), min_radius_at_mm=tuple(d.get("min_radius_at_mm") or (0, 0)),
-                  bounds_mm=tuple(d["bounds_mm"]), stability=d.get("stability"))
+                  bounds_mm=tuple(d["bounds_mm"]), stability=d.get("stability"),
+                  reinforcement=d.get("reinforcement"))
         kw.setdefault("requirements", ())
         return cls(**kw)
 

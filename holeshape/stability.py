@@ -46,6 +46,9 @@ CASE_KEYS = ("buckling_load_factor", "buckling_error_estimate_pct", "buckling_re
              "buckling_load_factor_unperforated")
 DESIGN_KEYS = ("buckling_load_factor", "buckling_governing_load_case", "buckling_load_factor_unperforated",
                "buckling_error_estimate_pct", "buckling_reserve")
+CUTOUT_EDGE_NOTES = {None: "free", "flange": "free with its flange (a beam: the flange's own bending stiffness and"
+                                             " axial force)",
+                     "ring": "free, the doubler ring a thicker plate"}
 FACTOR_CEILING = 1000.0  # a case that needs more than this many times its load to buckle is reported as not buckling
 QUICK_RESTARTS = 60  # Lanczos restarts before asking whether there is a factor below the ceiling at all
 PLATE_QUAD_ORDER = 4  # Morley: second derivatives constant, gradients linear; prestress P1-P2 on a triangle
@@ -111,6 +114,7 @@ class StabilityResult:
     refinements: int
     elapsed_s: float
     warnings: tuple[str, ...] = ()
+    cutout_edge: str = "free"  # how the cutout edge is modelled out of plane (CUTOUT_EDGE_NOTES)
 
     @property
     def governing(self) -> BucklingCase | None:
@@ -607,7 +611,9 @@ def buckling(panel, material, load_cases, cutout, settings: StabilitySettings, a
         cases=tuple(cases), edge_support=support, in_plane_edges=panel.edges,
         required_factor=settings.required_factor, accuracy=level.name, accuracy_target_pct=level.target_pct,
         dofs=runs[-1].dofs, level_dofs=tuple(r.dofs for r in runs), refinements=refinements_holed,
-        elapsed_s=time.perf_counter() - t0, warnings=tuple(warnings))
+        elapsed_s=time.perf_counter() - t0, warnings=tuple(warnings),
+        cutout_edge=CUTOUT_EDGE_NOTES[None if cutout is None or cutout.reinforcement is None
+                                      else cutout.reinforcement.kind])
     if keep_fields:
         last = runs[-1]
         return result, StabilityFields(p=last.p, t=last.t, modes=last.factors)

@@ -18,7 +18,7 @@ EDGES = ("traction", "displacement")
 MEASURES = ("von_mises", "max_principal", "hoop")
 ACCURACIES = ("draft", "standard", "fine")
 EDGE_SUPPORTS = ("simply_supported", "clamped")
-GOALS = ("lowest_peak", "largest_opening")
+GOALS = ("lowest_peak", "largest_opening", "lightest_reinforcement")
 SHAPE_PARAMETERS: dict[str, tuple[str, ...]] = {
     "circle": ("radius",),
     "ellipse": ("a", "b"),
@@ -157,6 +157,14 @@ class CutoutSpec:
         return CutoutSpec(self.shape, {k: v for k, v in self.values.items() if not k.startswith(REINFORCEMENT_PREFIX)})
 
 
+def nominal_reinforcement(values: dict):
+    """The reinforcement of a cutout's values with each searched size at its ``value`` (else the middle of its
+    range): the one the standard shapes are checked with. None without a [reinforcement] table."""
+    vals = {k: (v if not isinstance(v, Range) else (v.value if v.value is not None else 0.5 * (v.min + v.max)))
+            for k, v in values.items() if k.startswith(REINFORCEMENT_PREFIX)}
+    return build_reinforcement(vals)
+
+
 def build_reinforcement(values: dict):
     """The :class:`~holeshape.geometry.Reinforcement` of a cutout's numeric values (None without one)."""
     from holeshape.geometry import Reinforcement
@@ -228,7 +236,9 @@ class Constraints:
 class SearchSettings:
     """``trials``: evaluations in all (the standard shapes first); ``seed``: sampler seed;
     ``global_fraction``: share of the trials for the global sampler before the local refinement;
-    ``goal``: "lowest_peak" (lowest peak stress) or "largest_opening" (largest removed area within every
+    ``goal``: "lowest_peak" (lowest peak stress), "lightest_reinforcement" (the least reinforcement volume, hence
+    mass, that meets every constraint: searched [reinforcement] sizes) or "largest_opening" (largest removed area
+    within every
     constraint: the weight-reduction study)."""
 
     trials: int = 60
@@ -417,6 +427,13 @@ def parse_study(doc: dict, source: str = "") -> Study:
     if constraints.max_added_mass is not None and material.density is None:
         raise StudyError(f"constraints.max_added_mass = {constraints.max_added_mass!r} kg needs material.density"
                          " (kg/m^3) to weigh the reinforcement")
+    if search.goal == "lightest_reinforcement":
+        if not reinforcement or not any(isinstance(v, Range) for v in reinforcement.values()):
+            raise StudyError('search.goal = "lightest_reinforcement" needs a [reinforcement] table with at least one'
+                             " size given as a range ({min = ..., max = ...}) to search")
+        if constraints.min_margin is None and constraints.min_buckling_factor is None:
+            raise StudyError('search.goal = "lightest_reinforcement" needs a requirement the reinforcement must'
+                             " meet: give constraints.min_margin and/or constraints.min_buckling_factor")
     if search.goal == "largest_opening":
         if constraints.area is not None:
             raise StudyError(f'search.goal = "largest_opening" cannot be combined with constraints.area ='

@@ -17,6 +17,7 @@ from holeshape.geometry import Cutout
 
 CUTOUT_LAYER = "CUTOUT_PROFILE"
 PANEL_LAYER = "PANEL_OUTLINE"
+RING_LAYER = "DOUBLER_OUTER_EDGE"
 CHORD_TOLERANCE_MM = 0.01
 
 
@@ -104,9 +105,24 @@ def chord_error(cutout: Cutout, pts: np.ndarray) -> float:
     return float(np.max(np.linalg.norm(a + t[:, None] * ab - mid_exact, axis=1)))
 
 
+def reinforcement_note(cutout: Cutout, web_thickness: float | None = None) -> str | None:
+    """One line saying what reinforces the opening (for the DXF's header comment and properties)."""
+    r = cutout.reinforcement
+    if r is None:
+        return None
+    t = r.thickness if r.thickness is not None else web_thickness
+    t_text = "the web's thickness" if t is None else f"{t:g} mm thick"
+    if r.kind == "flange":
+        return (f"formed flange {r.height:g} mm high, {t_text}, standing on the whole cutout edge (not drawn in the"
+                " flat profile; the flat blank must allow for it)")
+    return f"doubler ring {r.width:g} mm wide, {t_text}: outer edge on layer {RING_LAYER}"
+
+
 def write_dxf(path: Path, cutout: Cutout, panel_size: tuple[float, float] | None = None,
-              title: str = "") -> dict:
-    """Closed LWPOLYLINE of the outline on its own layer, millimetre units, panel coordinates; audited."""
+              title: str = "", web_thickness: float | None = None) -> dict:
+    """Closed LWPOLYLINE of the outline on its own layer, millimetre units, panel coordinates; audited. A ring
+    reinforcement's outer edge goes on its own layer; any reinforcement is described in a comment at the head of the
+    file and in the drawing's custom properties."""
     import ezdxf
     from ezdxf import units
 
@@ -114,6 +130,15 @@ def write_dxf(path: Path, cutout: Cutout, panel_size: tuple[float, float] | None
     err = chord_error(cutout, pts)
     if err > CHORD_TOLERANCE_MM:
         raise HoleshapeError(f"profile chord error {err:.4f} mm exceeds {CHORD_TOLERANCE_MM} mm; not written")
+    ring_pts = None
+    r = cutout.reinforcement
+    if r is not None and r.kind == "ring":
+        from holeshape.geometry.reinforcement import ring_outline
+
+        outer = ring_outline(cutout, r.width)
+        ring_pts = profile_points(outer)
+        if chord_error(outer, ring_pts) > CHORD_TOLERANCE_MM:
+            raise HoleshapeError("the ring's outer edge cannot be written within the chord tolerance; not written")
     doc = ezdxf.new("R2010", setup=False, units=units.MM)
     doc.header["$MEASUREMENT"] = 1  # metric
     doc.layers.add(CUTOUT_LAYER, color=1)
@@ -124,6 +149,15 @@ def write_dxf(path: Path, cutout: Cutout, panel_size: tuple[float, float] | None
         doc.layers.add(PANEL_LAYER, color=8)
         w, h = panel_size
         msp.add_lwpolyline([(0.0, 0.0), (w, 0.0), (w, h), (0.0, h)], close=True, dxfattribs={"layer": PANEL_LAYER})
+    if ring_pts is not None:
+        doc.layers.add(RING_LAYER, color=5)
+        msp.add_lwpolyline([tuple(map(float, p)) for p in ring_pts], format="xy", close=True,
+                           dxfattribs={"layer": RING_LAYER})
+    note = reinforcement_note(cutout, web_thickness)
+    if note is not None:
+        doc.header.custom_vars.append("HOLESHAPE_REINFORCEMENT", note)
+        for k, v in r.parameters().items():
+            doc.header.custom_vars.append(f"HOLESHAPE_REINFORCEMENT_{k.upper()}", str(v))
     if title:
         doc.header["$PROJECTNAME"] = safe_name(title)
     auditor = doc.audit()
@@ -133,8 +167,14 @@ def write_dxf(path: Path, cutout: Cutout, panel_size: tuple[float, float] | None
 
     buf = io.StringIO()
     doc.write(buf)
-    atomic_write(path, buf.getvalue())
-    return {"vertices": int(len(pts)), "chord_error_mm": err}
+    text = buf.getvalue()
+    if note is not None:  # DXF comment lines (group 999) ahead of the first section
+        text = f"999\nholeshape: {note}\n" + text
+    atomic_write(path, text)
+    out = {"vertices": int(len(pts)), "chord_error_mm": err}
+    if ring_pts is not None:
+        out["ring_vertices"] = int(len(ring_pts))
+    return out
 
 
 def write_csv(path: Path, cutout: Cutout) -> Path:

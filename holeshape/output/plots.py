@@ -99,6 +99,9 @@ def plot_stress_field(path: Path, ev: Evaluation, fields: EvaluationFields, cuto
     top = max(float(np.percentile(v, 99.9)), ev.load_cases[case_index].peak_stress_mpa)
     tpc = ax.tripcolor(p[0], p[1], t.T, v, shading="gouraud", cmap="viridis", vmin=0, vmax=top)
     ax.plot(*np.concatenate([cutout_xy, cutout_xy[:, :1]], axis=1), color="white", lw=1.2)
+    if fields.ring_boundary is not None:
+        ax.plot(*fields.ring_boundary.xy, color="white", lw=1.0, ls="--", label="doubler ring's outer edge")
+        ax.legend(loc="upper right", fontsize=8)
     r = ev.load_cases[case_index]
     ax.plot([r.x_mm], [r.y_mm], marker="x", color="red", ms=10, mew=2)
     ax.annotate(f"peak {r.peak_stress_mpa:.1f} MPa", (r.x_mm, r.y_mm), xytext=(8, 8), textcoords="offset points",
@@ -118,21 +121,48 @@ def plot_stress_field(path: Path, ev: Evaluation, fields: EvaluationFields, cuto
 
 def plot_boundary_stress(path: Path, ev: Evaluation, fields: EvaluationFields, allowable: float | None,
                          title: str) -> Path:
+    """The measure along the cutout edge per load case; with a reinforcement a second panel: the web along the
+    ring's outer edge, or the flange's own axial stress (signed: compression below zero)."""
+    from holeshape.evaluate import FLANGE, RING_EDGE
+
     plt = pyplot()
     bs = fields.boundary
     vals = measure_values(bs, ev.stress_measure)
-    fig, ax = plt.subplots(figsize=(9, 4.8))
+    second = None
+    if fields.ring_boundary is not None:
+        rb = fields.ring_boundary
+        second = (rb.s, measure_values(rb, ev.stress_measure), RING_EDGE,
+                  "arc length round the ring's outer edge, counter-clockwise (mm)",
+                  f"{STRESS_LABELS[ev.stress_measure]} (MPa)")
+    elif fields.flange_stress is not None:
+        second = (bs.s, fields.flange_stress, FLANGE, "arc length round the cutout, counter-clockwise (mm)",
+                  "axial stress in the flange (MPa)")
+    fig, axes = plt.subplots(2 if second else 1, 1, figsize=(9, 8.4 if second else 4.8), squeeze=False)
     styles = ["-", "--", "-.", ":"]
+    ax = axes[0, 0]
     for j, r in enumerate(ev.load_cases):
-        ax.plot(bs.s, vals[:, j], styles[j % 4], lw=1.6, label=f"{r.name} (peak {r.peak_stress_mpa:.1f} MPa)")
-    if allowable:
-        ax.axhline(allowable, color="black", lw=1.0, ls=(0, (6, 3)), label=f"allowable {allowable:g} MPa")
-    ax.set_xlabel("arc length round the cutout, counter-clockwise (mm)")
-    ax.set_ylabel(f"{STRESS_LABELS[ev.stress_measure]} (MPa)")
-    ax.set_xlim(bs.s[0], bs.s[-1])
-    ax.grid(True, alpha=0.3)
-    ax.legend(fontsize=8)
-    ax.set_title(f"{title}: stress along the cutout edge")
+        at = next((loc.peak_stress_mpa for loc in r.locations if loc.location == "cutout edge"), r.peak_stress_mpa)
+        ax.plot(bs.s, vals[:, j], styles[j % 4], lw=1.6, label=f"{r.name} (peak here {at:.1f} MPa)")
+    panels = [(ax, "arc length round the cutout, counter-clockwise (mm)", f"{STRESS_LABELS[ev.stress_measure]} (MPa)",
+               f"{title}: stress along the cutout edge" + (" (in the web)" if second else ""), bs.s)]
+    if second:
+        s2, v2, where, xlabel, ylabel = second
+        ax2 = axes[1, 0]
+        for j, r in enumerate(ev.load_cases):
+            at = next(loc.peak_stress_mpa for loc in r.locations if loc.location == where)
+            ax2.plot(s2, v2[:, j], styles[j % 4], lw=1.6, label=f"{r.name} (peak {at:.1f} MPa)")
+        if where == FLANGE:
+            ax2.axhline(0.0, color="0.5", lw=0.8)
+        panels.append((ax2, xlabel, ylabel, f"{where}", s2))
+    for a, xlabel, ylabel, head, s in panels:
+        if allowable:
+            a.axhline(allowable, color="black", lw=1.0, ls=(0, (6, 3)), label=f"allowable {allowable:g} MPa")
+        a.set_xlabel(xlabel)
+        a.set_ylabel(ylabel)
+        a.set_xlim(s[0], s[-1])
+        a.grid(True, alpha=0.3)
+        a.legend(fontsize=8)
+        a.set_title(head)
     _warn(fig, ev)
     fig.tight_layout(rect=(0, 0.02, 1, 0.97))
     return save(fig, path)
@@ -196,7 +226,7 @@ def plot_buckling_mode(path: Path, stability, fields, cutout_xy: np.ndarray, pan
     support = stability.edge_support.replace("_", " ")
     case = gov.name if gov is not None else names[0]
     fig.suptitle(f"{title}\nbuckling mode, {case} ({support} edges, in-plane '{stability.in_plane_edges}' edges,"
-                 f" cutout edge free)", fontsize=10)
+                 f" cutout edge {stability.cutout_edge.split(' (')[0]})", fontsize=10)
     if stability.warnings:
         fig.text(0.01, 0.985, "WARNING: " + stability.warnings[0], fontsize=7.5, color="red", ha="left", va="top")
     fig.tight_layout(rect=(0, 0.03, 1, 0.95))

@@ -25,7 +25,22 @@ JOB = ("This report records how a cutout in a thin loaded panel was chosen: the 
        "every load case that still meets the study's requirements (access, area, ligament, radius, margin and "
        "buckling, as set), compared with the standard shapes a handbook would offer, and checked with a "
        "mesh-convergence estimate and against published solutions computed by the same pipeline.")
-AIMS = {"lowest_peak": "the lowest peak stress", "largest_opening": "the largest removed area"}
+AIMS = {"lowest_peak": "the lowest peak stress", "largest_opening": "the largest removed area",
+        "lightest_reinforcement": "the least reinforcement (by volume, hence mass)"}
+GOAL_LABELS = {"lowest_peak": "lowest peak stress within every constraint",
+               "largest_opening": "largest opening within every constraint",
+               "lightest_reinforcement": "least reinforcement that meets every requirement"}
+REINFORCEMENT_SECTION = "Reinforcement"
+REINFORCEMENT_IDEALISATION = {
+    "flange": "A formed flange standing on the whole cutout edge, fully effective, the bend radius not modelled: in "
+              "plane an edge member carrying hoop force (axial stiffness E A along the outline); out of plane a beam "
+              "along the edge with the flange's own bending stiffness E t h^3 / 12 (the web's share ignored, which "
+              "errs low) and its axial force in the geometric stiffness.",
+    "ring": "A doubler ring bonded over the web between the outline and its offset, perfectly bonded and of the web's "
+            "Poisson's ratio: in plane the region's membrane stiffness is the web's plus the doubler's; out of plane "
+            "the stack bends about its own neutral plane (one-sided doubler; the membrane-bending coupling is "
+            "neglected). The peak is looked for at the cutout edge and in the web at the ring's outer edge.",
+}
 
 CSS = """body{font-family:sans-serif;max-width:60em;margin:2em auto;color:#111;line-height:1.4}
 h1{font-size:1.6em}h2{font-size:1.25em;border-bottom:1px solid #888;margin-top:1.6em}
@@ -87,6 +102,8 @@ LENGTH_KEYS = ("radius", "a", "b", "length", "width", "corner_radius", "radii", 
 def describe_params(params: dict) -> str:
     """Shape parameters for people: lengths to 0.1 mm, angles to 0.1 degree, the exponent to 3 figures."""
     def one(k, v):
+        if k.startswith("reinforcement."):
+            return f"{v:.1f} mm" if isinstance(v, float) and not k.endswith("youngs_modulus") else f"{v}"
         if isinstance(v, list):
             return "(" + ", ".join(one(k, x) for x in v) + ")"
         if not isinstance(v, (int, float)) or isinstance(v, bool):
@@ -96,8 +113,21 @@ def describe_params(params: dict) -> str:
         if k == "exponent":
             return f"{v:.2f}"
         return f"{v:.1f} mm" if k in LENGTH_KEYS and k != "center" else f"{v:.1f}"
-    return ", ".join(f"{k.replace('_', ' ')} {one(k, v)}" + (" mm" if k == "center" else "")
-                     for k, v in params.items())
+    kind = params.get("reinforcement.kind")
+
+    def label(k):
+        if k.startswith("reinforcement."):
+            return f"{kind} {k.split('.', 1)[1].replace('_', ' ')}"
+        return k.replace("_", " ")
+    return ", ".join(f"{label(k)} {one(k, v)}" + (" mm" if k == "center" else "")
+                     for k, v in params.items() if k != "reinforcement.kind")
+
+
+def _describe_range(v) -> str:
+    if isinstance(v, dict):
+        out = f"searched from {v['min']:g} to {v['max']:g}"
+        return out + (f" (current design {v['value']:g})" if v.get("value") is not None else "")
+    return f"{v:g}" if isinstance(v, float) else str(v)
 
 
 def describe_constraints(cons: dict) -> list[dict]:
@@ -107,7 +137,9 @@ def describe_constraints(cons: dict) -> list[dict]:
               "area": ("removed area exactly", "mm^2"), "clearance": ("clearance round the access envelope", "mm"),
               "min_ligament": ("ligament to every panel edge at least", "mm"),
               "min_radius": ("smallest radius of the outline at least", "mm"),
-              "min_margin": ("margin of safety at least", ""), "min_buckling_factor": ("buckling factor at least", "")}
+              "min_margin": ("margin of safety at least", ""), "min_buckling_factor": ("buckling factor at least", ""),
+              "max_added_mass": ("added mass of the reinforcement at most", "kg"),
+              "max_reinforcement_area": ("reinforcement cross-section at most", "mm^2")}
     acc = cons.get("access")
     if acc:
         where = ("centred on the cutout" if acc.get("center") is None
@@ -144,10 +176,14 @@ def _summary_box(b: DesignCheck, rec: RunRecord, md: bool) -> str:
         cols.append(("buckling_load_factor", "buckling factor"))
     cols.append(("verdict", "verdict"))
     shape = f"{b.shape.replace('_', ' ')}: {describe_params(b.params)}"
-    goal = ("largest opening within every constraint" if rec.goal == "largest_opening"
-            else "lowest peak stress within every constraint")
+    goal = GOAL_LABELS.get(rec.goal, GOAL_LABELS["lowest_peak"])
     lines = [f"Verdict: {head}", f"Shape ({goal}): {shape}; removed area {b.area_mm2:.0f} mm^2.",
              f"Profile for CAD: {Path(b.dxf).name}."]
+    r = b.reinforcement
+    if r is not None:
+        mass = "" if r["added_mass_kg"] is None else f", {r['added_mass_kg']:.4f} kg added"
+        lines.insert(2, f"Reinforcement: {r['kind']} ({describe_sizes(r['sizes'])}; cross-section "
+                        f"{r['cross_section_mm2']:.1f} mm^2{mass}).")
     if md:
         return "\n" + "\n\n".join(f"**{t}**" if i == 0 else t for i, t in enumerate(lines)) + "\n\n" + \
             _table(rows, cols, md)
@@ -219,6 +255,7 @@ def build_report(run_dir: str | Path, fmt: str = "html") -> Path:
     page.para(JOB.format(aim=AIMS.get(rec.goal, AIMS["lowest_peak"])))
     section_inputs(page, inputs)
     section_recommendation(page, rec.best)
+    section_reinforcement(page, rec.best)
     section_comparison(page, rec)
     page.h2(SECTIONS[4])
     page.img("best_stress_field.png", "stress field of the recommended design, governing load case")
@@ -248,6 +285,11 @@ def section_inputs(page: Page, inputs: RunInputs) -> None:
         page.table(cons, [("constraint", "requirement"), ("value", "value")])
     if inputs.search.get("goal") == "largest_opening":
         page.para("Goal: the largest removed area that meets every constraint (a weight-reduction study).")
+    if inputs.search.get("goal") == "lightest_reinforcement":
+        page.para("Goal: the least reinforcement (by volume, hence mass) that meets every requirement.")
+    if inputs.reinforcement:
+        page.table([{"key": k, "value": _describe_range(v)} for k, v in inputs.reinforcement.items()],
+                   [("key", "reinforcement"), ("value", "value (mm, MPa)")])
     stab_in = inputs.stability
     if stab_in:
         page.table([{**stab_in, "edge_support": stab_in["edge_support"].replace("_", " ")}],
@@ -288,6 +330,41 @@ def section_recommendation(page: Page, b: DesignCheck) -> None:
     page.img("best_shape.png", "recommended profile in the panel with the access envelope and the standard shapes")
 
 
+def describe_sizes(sizes: dict) -> str:
+    return ", ".join(f"{k.replace('_', ' ')} {v:g} MPa" if k == "youngs_modulus" else f"{k} {v:.1f} mm"
+                     for k, v in sizes.items())
+
+
+def section_reinforcement(page: Page, b: DesignCheck) -> None:
+    """What reinforces the opening, what it weighs, where its peaks are, and the same outline without it."""
+    r = b.reinforcement
+    if r is None:
+        return
+    page.h2(REINFORCEMENT_SECTION)
+    page.para(REINFORCEMENT_IDEALISATION[r["kind"]])
+    page.table([{"kind": r["kind"], "sizes": describe_sizes(r["sizes"]), "cross_section_mm2": r["cross_section_mm2"],
+                 "ring_area_mm2": r["ring_area_mm2"] if r["kind"] == "ring" else None,
+                 "added_mass_kg": None if r["added_mass_kg"] is None else f"{r['added_mass_kg']:.4f}"}],
+               [("kind", "reinforcement"), ("sizes", "sizes"), ("cross_section_mm2", "cross-section (mm^2)"),
+                ("ring_area_mm2", "ring area over the web (mm^2)"), ("added_mass_kg", "added mass (kg)")])
+    page.table([{"location": k, "peak_stress_mpa": v} for k, v in r["peak_stress_mpa"].items()],
+               [("location", "where"), ("peak_stress_mpa", "largest peak over the load cases (MPa)")])
+    bare = r.get("bare_opening")
+    if bare is not None:
+        rows = [{"design": "with the reinforcement", "peak_stress_mpa": b.peak_stress_mpa,
+                 "margin_of_safety": b.margin_of_safety, "buckling_load_factor": b.buckling_load_factor,
+                 "verdict": "meets every requirement" if b.meets_every_requirement else "FAILS"},
+                {"design": "the same outline bare", "peak_stress_mpa": bare["peak_stress_mpa"],
+                 "margin_of_safety": bare["margin_of_safety"], "buckling_load_factor": bare["buckling_load_factor"],
+                 "verdict": "meets every requirement" if bare["verdict"] == "pass" else
+                 "FAILS: " + "; ".join(bare["verdict_reasons"])}]
+        cols = [("design", "opening"), ("peak_stress_mpa", "peak (MPa)"), ("margin_of_safety", "lowest margin")]
+        if b.stability is not None:
+            cols.append(("buckling_load_factor", "buckling factor"))
+        cols.append(("verdict", "verdict"))
+        page.table(rows, cols)
+
+
 def section_comparison(page: Page, rec: RunRecord) -> None:
     b = rec.best
     page.h2(SECTIONS[3])
@@ -323,7 +400,8 @@ def section_stability(page: Page, st: dict | None) -> None:
     edges_ip = st["in_plane_edges"]
     page.para(f"Linear (eigenvalue) buckling of the panel with its cutout: Kirchhoff plate of the panel's thickness "
               f"under the plane-stress prestress of each load case; panel edges {SUPPORT_NOTES[st['edge_support']]}, "
-              f"cutout edge free; in-plane edges '{edges_ip}': {FACTOR_MEANING[edges_ip]}. Required factor "
+              f"cutout edge {st.get('cutout_edge', 'free')}; in-plane edges '{edges_ip}': {FACTOR_MEANING[edges_ip]}."
+              " Required factor "
               f"{st['required_factor']:g}.")
     rows = []
     for c in st["cases"]:

@@ -21,7 +21,7 @@ def stability_lines(st) -> list[str]:
     g = st.governing
     lines = [
         "",
-        f"  stability     linear buckling, panel edges {SUPPORT_NOTES[st.edge_support]}, cutout edge free;"
+        f"  stability     linear buckling, panel edges {SUPPORT_NOTES[st.edge_support]}, cutout edge {st.cutout_edge};"
         f" in-plane edges '{st.in_plane_edges}': {FACTOR_MEANING[st.in_plane_edges]}",
         f"                {st.accuracy}: estimated error {st.error_estimate_pct:.2g} % (target"
         f" {st.accuracy_target_pct:g} %), plate DOFs per level {', '.join(str(n) for n in st.level_dofs)}",
@@ -39,6 +39,30 @@ def stability_lines(st) -> list[str]:
         lines.append(f"  buckling      lowest load factor {g.load_factor:.3f} ({g.name}); required"
                      f" {st.required_factor:g}, reserve {st.reserve:.3f}; without the cutout"
                      f" {factor_text(st.unperforated_factor)}")
+    return lines
+
+
+REINFORCEMENT_NOTES = {
+    "flange": "formed flange standing on the cutout edge (an edge member in plane, a beam out of plane)",
+    "ring": "doubler ring bonded over the web round the cutout",
+}
+
+
+def reinforcement_lines(ev: Evaluation) -> list[str]:
+    """The reinforcement block of a check summary: what it is, what it weighs, the peak at every location."""
+    r = ev.reinforcement
+    sizes = " x ".join(f"{k} {v:.1f} mm" for k, v in r.sizes.items() if k != "youngs_modulus")
+    mass = "" if r.added_mass_kg is None else f", added mass {r.added_mass_kg:.4f} kg"
+    lines = ["", f"  reinforcement {r.kind}: {REINFORCEMENT_NOTES[r.kind]}",
+             f"                {sizes}; cross-section {r.cross_section_mm2:.1f} mm^2{mass}"]
+    if "youngs_modulus" in r.sizes:
+        lines.append(f"                Young's modulus {r.sizes['youngs_modulus']:g} MPa")
+    names = list(r.peak_stress_mpa)
+    lines.append(f"  {'load case':<34} " + " ".join(f"{n:>30}" for n in names) + "   governs at")
+    for c in ev.load_cases:
+        by = {loc.location: loc.peak_stress_mpa for loc in c.locations}
+        lines.append(f"  {c.name[:34]:<34} " + " ".join(f"{by[n]:>26.2f} MPa" for n in names)
+                     + f"   {c.peak_location}")
     return lines
 
 
@@ -90,12 +114,14 @@ def check_summary(title: str, family: str, params: dict, ev: Evaluation, edges_n
         f"  ligament      narrowest {lig.width_mm:.1f} mm, to the {lig.edge} edge (net-section stress per load case"
         " above: mean normal stress across it)",
     ]
+    if ev.reinforcement is not None:
+        lines += reinforcement_lines(ev)
     if ev.stability is not None:
         lines += stability_lines(ev.stability)
     lines += requirement_lines(requirements or [])
     for w in ev.warnings:
         lines.append(f"  WARNING       {w}")
-    lines += ["", "  CAUTION: " + cautions(ev.stability is not None)]
+    lines += ["", "  CAUTION: " + cautions(ev.stability is not None, ev.reinforcement is not None)]
     return "\n".join(lines)
 
 
@@ -120,6 +146,22 @@ def optimise_summary(rec: RunRecord) -> str:
         mass = "" if b.mass_saved_kg is None else f" ({b.mass_saved_kg:.3f} kg saved)"
         lines.insert(2, f"  goal          largest opening within every constraint: {b.area_mm2:.0f} mm^2"
                         f" removed{mass}")
+    r = b.reinforcement
+    if rec.goal == "lightest_reinforcement":
+        lines.insert(2, "  goal          the least reinforcement that meets every requirement")
+    if r is not None:
+        sizes = ", ".join(f"{k} {v:.2f} mm" for k, v in r["sizes"].items() if k != "youngs_modulus")
+        mass = "" if r["added_mass_kg"] is None else f", adds {r['added_mass_kg']:.4f} kg"
+        lines.append(f"  reinforcement {r['kind']}: {sizes}; cross-section {r['cross_section_mm2']:.1f} mm^2{mass};"
+                     " peaks " + ", ".join(f"{k} {v:.1f} MPa" for k, v in r["peak_stress_mpa"].items()))
+        bare = r.get("bare_opening")
+        if bare is not None:
+            f = bare["buckling_load_factor"]
+            mos = "" if bare["margin_of_safety"] is None else f", margin {bare['margin_of_safety']:+.3f}"
+            lines.append(f"  bare opening  the same outline without it: peak {bare['peak_stress_mpa']:.1f} MPa{mos}"
+                         + ("" if b.stability is None else f", buckling factor {factor_text(f)}")
+                         + f"; {'meets' if bare['verdict'] == 'pass' else 'FAILS'} the requirements"
+                         + ("" if bare["verdict"] == "pass" else f" ({'; '.join(bare['verdict_reasons'])})"))
     for r in b.load_cases:
         mos = "" if r.margin_of_safety is None else f", MoS {r.margin_of_safety:+.3f}"
         lines.append(f"    {r.name}: {r.peak_stress_mpa:.2f} MPa at ({r.x_mm:.1f}, {r.y_mm:.1f}) mm{mos}")

@@ -22,9 +22,15 @@ def baseline_center(spec_values: dict, panel: Panel, cons: Constraints) -> tuple
     return panel.width / 2, panel.height / 2
 
 
-def standard_shapes(spec_values: dict, panel: Panel, cons: Constraints) -> list[tuple[str, Cutout | None, str]]:
+def standard_shapes(spec_values: dict, panel: Panel, cons: Constraints, density: float | None = None
+                    ) -> list[tuple[str, Cutout | None, str]]:
     """(family, cutout or None, note) for circle, ellipse and rounded rectangle; None with the reason when the
-    family cannot meet the constraints."""
+    family cannot meet the constraints. With a [reinforcement] the shapes carry it at its nominal sizes
+    (``study.nominal_reinforcement``)."""
+    from holeshape.geometry.reinforcement import check_formable
+    from holeshape.study import nominal_reinforcement
+
+    reinforcement = nominal_reinforcement(spec_values)
     center = baseline_center(spec_values, panel, cons)
     rot = cons.access.rotation if cons.access is not None else 0.0
     shapes: list[tuple[str, object]] = []
@@ -49,16 +55,17 @@ def standard_shapes(spec_values: dict, panel: Panel, cons: Constraints) -> list[
         shapes = [("circle", Circle(r))]
     out: list[tuple[str, Cutout | None, str]] = []
     for family, shape in shapes:
-        cut = Cutout(shape, center, rot)
+        cut = Cutout(shape, center, rot, reinforcement)
         try:
             if cons.area is not None:
                 cut = scaled_to_area(cut, cons.area)
             elif cons.min_area is not None and cut.area < cons.min_area:
                 cut = scaled_to_area(cut, cons.min_area)
+            check_formable(cut)
         except GeometryError as err:
             out.append((family, None, str(err)))
             continue
-        values, reasons = constraint_values(cut, panel, cons)
+        values, reasons = constraint_values(cut, panel, cons, density)
         if reasons:
             out.append((family, None, "; ".join(reasons)))
         else:

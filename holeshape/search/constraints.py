@@ -38,6 +38,13 @@ def access_margin(cutout: Cutout, cons: Constraints, poly=None) -> float:
     return -max(float(poly.distance(Point(*p))) for p in ring)
 
 
+def access_tolerance(cutout: Cutout, n: int = 720) -> float:
+    """How far (mm) the ``n``-gon of an outline falls inside the curve between its vertices (the chord sagitta on
+    the smallest radius): an envelope touching the true outline is accepted to this much."""
+    perimeter = cutout.sampling.perimeter
+    return (perimeter / n) ** 2 / (8.0 * max(cutout.min_radius, 1e-9))
+
+
 def constraint_values(cutout: Cutout, panel: Panel, cons: Constraints, density: float | None = None
                       ) -> tuple[dict[str, float], list[str]]:
     """Scaled constraint values (<= 0 feasible) and the reasons for every violated one. ``density`` (kg/m^3)
@@ -73,7 +80,7 @@ def constraint_values(cutout: Cutout, panel: Panel, cons: Constraints, density: 
         if area > cons.max_area:
             reasons.append(f"area {area:.0f} mm^2 > {cons.max_area:g} mm^2")
     if cons.access is not None:
-        m = access_margin(cutout, cons, poly)
+        m = access_margin(cutout, cons, poly) + access_tolerance(cutout)
         values["access"] = -m / size
         if m < 0:
             reasons.append(f"the access envelope (with {cons.clearance:g} mm clearance) pokes out by {-m:.3g} mm")
@@ -159,7 +166,8 @@ def requirement_rows(ev, cutout: Cutout, panel: Panel, cons: Constraints, materi
             cutout.min_radius >= cons.min_radius)
     if cons.access is not None:
         m = access_margin(cutout, cons)
-        add("clearance round the access envelope (mm)", m + cons.clearance, f">= {cons.clearance:g}", m >= 0)
+        add("clearance round the access envelope (mm)", m + cons.clearance, f">= {cons.clearance:g}",
+            m + access_tolerance(cutout) >= 0)
     if cons.area is not None:
         add("removed area (mm^2)", cutout.area, f"= {cons.area:g}", abs(cutout.area / cons.area - 1) < 1e-6)
     if cons.min_area is not None:

@@ -133,13 +133,18 @@ def search_stability(study: Study):
 
 
 def objective_value(ev, goal: str) -> float:
-    """The number a search minimises: the peak stress (MPa), or minus the removed area (mm^2) for
-    ``goal = "largest_opening"``."""
+    """The number a search minimises: the peak stress (MPa), minus the removed area (mm^2) for
+    ``goal = "largest_opening"``, or the reinforcement's volume (mm^3; 0 for a bare opening) for
+    ``goal = "lightest_reinforcement"``."""
+    if goal == "lightest_reinforcement":
+        return 0.0 if ev.reinforcement is None else ev.reinforcement.added_volume_mm3
     return ev.peak_stress_mpa if goal == "lowest_peak" else -ev.area_mm2
 
 
 def shown_value(value: float, goal: str) -> str:
     """A trial's objective value as a person reads it."""
+    if goal == "lightest_reinforcement":
+        return f"{value / 1000.0:.2f} cm^3 of reinforcement"
     return f"{value:.1f} MPa" if goal == "lowest_peak" else f"{-value:.0f} mm^2 removed"
 
 

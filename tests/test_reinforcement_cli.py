@@ -1,0 +1,119 @@
+"""The reinforcement through the command line: the study-file table, one-line errors for bad input, the check
+JSON block, the DXF, and a search for the least flange that makes a failing bare opening pass."""
+
+from __future__ import annotations
+
+import json
+import re
+from pathlib import Path
+
+import pytest
+
+from holeshape.cli import main
+
+ROOT = Path(__file__).resolve().parents[1]
+STUDY = ROOT / "studies" / "floor-beam-flanged-access.toml"
+TEXT = STUDY.read_text()
+
+
+def _variant(tmp_path, *pairs) -> Path:
+    text = TEXT
+    for old, new in pairs:
+        assert old in text, old
+        text = text.replace(old, new)
+    p = tmp_path / "bad.toml"
+    p.write_text(text)
+    return p
+
+
+FLANGE = 'kind = "flange"                                    # formed flange standing on the hole edge\n' \
+         'height = {min = 2.0, max = 14.0, value = 8.0}      # mm (the web\'s thickness: 1.6 mm)'
+RING = 'kind = "ring"\nwidth = {min = 5.0, max = 40.0, value = 20.0}\nthickness = 1.6'
+
+BAD = [
+    ([('kind = "flange"', 'kind = "collar"')], r"reinforcement\.kind must be one of flange, ring, got 'collar'"),
+    ([("height = {min = 2.0, max = 14.0, value = 8.0}", "height = -3.0")], r"reinforcement\.height must be > 0"),
+    ([("height = {min = 2.0, max = 14.0, value = 8.0}", "height = nan")], r"reinforcement\.height must be finite"),
+    ([("height = {min = 2.0, max = 14.0, value = 8.0}", "height = 8.0\nwidth = 4.0")],
+     r"reinforcement\.width does not apply to kind = 'flange'"),
+    ([("height = {min = 2.0, max = 14.0, value = 8.0}", "height = 20.0")],
+     r"reinforcement\.height = 20 mm cannot be formed round a 60 mm radius.*height <= 15 mm"),
+    ([(FLANGE, RING.replace("max = 40.0, value = 20.0", "max = 70.0, value = 61.0"))],
+     r"reinforcement\.width = 61 mm runs the ring past the bottom panel edge"),
+    ([(FLANGE, 'kind = "ring"\nwidth = 10.0')], r"reinforcement\.thickness is missing"),
+    ([(FLANGE, 'kind = "ring"\nwidth = 10.0\nthickness = 0.0')], r"reinforcement\.thickness must be > 0"),
+    ([("min_buckling_factor = 1.5 ", "max_added_mass = 0.01\nmin_buckling_factor = 1.5 "),
+      ("density = 2780.0 ", "")], r"constraints\.max_added_mass = 0\.01 kg needs material\.density"),
+    ([("height = {min = 2.0, max = 14.0, value = 8.0}", "height = 8.0")],
+     r'search\.goal = "lightest_reinforcement" needs a \[reinforcement\] table with at least one size given as a'
+     r" range"),
+]
+
+
+@pytest.mark.parametrize("pairs, message", BAD, ids=[m[:40] for _, m in BAD])
+def test_bad_reinforcement_input_is_one_line_exit_2(tmp_path, capsys, pairs, message):
+    code = main(["check", str(_variant(tmp_path, *pairs)), "--accuracy", "draft"])
+    err = capsys.readouterr().err.strip()
+    assert code == 2, err
+    assert len(err.splitlines()) == 1 and "Traceback" not in err
+    assert re.search(message, err), err
+
+
+def test_limits_without_a_reinforcement_are_refused(tmp_path, capsys):
+    text = TEXT[:TEXT.index("[reinforcement]")] + TEXT[TEXT.index("[constraints]"):]
+    text = text.replace('goal = "lightest_reinforcement"', 'goal = "lowest_peak"')
+    text = text.replace("min_ligament = 30.0", "min_ligament = 30.0\nmax_reinforcement_area = 20.0")
+    p = tmp_path / "bare.toml"
+    p.write_text(text)
+    assert main(["check", str(p)]) == 2
+    assert "constraints.max_reinforcement_area = 20.0 needs a [reinforcement] table" in capsys.readouterr().err
+
+
+def test_check_json_and_dxf_of_a_ring(tmp_path, capsys):
+    p = _variant(tmp_path, (FLANGE, RING))
+    assert main(["check", str(p), "--json", "--accuracy", "draft"]) == 0
+    d = json.loads(capsys.readouterr().out)
+    r = d["reinforcement"]
+    assert r["kind"] == "ring" and r["sizes"] == {"width": 20.0, "thickness": 1.6}
+    # added mass = ring area x thickness x density; ring area = pi ((60 + 20)^2 - 60^2) (geometry of the offset)
+    assert r["added_mass_kg"] == pytest.approx(3.141592653589793 * (80.0 ** 2 - 60.0 ** 2) * 1.6 * 2780e-9,
+                                               rel=1e-4)
+    assert set(r["peak_stress_mpa"]) == {"cutout edge", "web at the ring's outer edge"}
+    assert d["peak_stress_mpa"] == pytest.approx(max(r["peak_stress_mpa"].values()))
+    assert "rivet rows" in d["cautions"]
+    assert d["stability"]["cutout_edge"].startswith("free, the doubler ring")
+    import ezdxf
+
+    from holeshape.geometry import Circle, Cutout, Reinforcement
+    from holeshape.output.files import CUTOUT_LAYER, RING_LAYER, write_dxf
+
+    path = tmp_path / "ring.dxf"
+    write_dxf(path, Cutout(Circle(60.0), (180.0, 120.0), 0.0, Reinforcement("ring", width=20.0, thickness=1.6)),
+              (360.0, 240.0), "t", 1.6)
+    doc = ezdxf.readfile(path)
+    polys = {e.dxf.layer: e for e in doc.modelspace().query("LWPOLYLINE")}
+    assert {CUTOUT_LAYER, RING_LAYER} <= set(polys)
+    # the outer edge is the offset circle: every vertex 80 mm from the centre (chord tolerance 0.01 mm)
+    for x, y in polys[RING_LAYER].get_points("xy"):
+        assert ((x - 180.0) ** 2 + (y - 120.0) ** 2) ** 0.5 == pytest.approx(80.0, abs=0.01)
+    assert dict(doc.header.custom_vars)["HOLESHAPE_REINFORCEMENT_KIND"] == "ring"
+
+
+def test_least_flange_makes_the_failing_bare_opening_pass(tmp_path, capsys):
+    # the bundled study: the bare 112 mm hole buckles below the required 1.5 (measured 0.76); the search finds the
+    # smallest flange that passes, and the report compares it with the bare opening
+    out = tmp_path / "run"
+    study = _variant(tmp_path, ("trials = 40", "trials = 24"))
+    assert main(["optimise", str(study), "--out", str(out), "--quiet"]) == 0
+    s = json.loads((out / "summary.json").read_text())
+    b = s["best"]
+    assert b["meets_every_requirement"]
+    r = b["reinforcement"]
+    assert r["kind"] == "flange" and 2.0 <= r["sizes"]["height"] <= 14.0
+    assert r["bare_opening"]["verdict"] == "fail" and r["bare_opening"]["buckling_load_factor"] < 1.5
+    assert b["buckling_load_factor"] >= 1.5
+    # least: the flange is no larger than needed, the buckling factor lands near the requirement (within 5 %)
+    assert b["buckling_load_factor"] < 1.5 * 1.05
+    text = (out / "report.html").read_text()
+    assert "Reinforcement" in text and "the same outline bare" in text
+    assert "HOLESHAPE_REINFORCEMENT_HEIGHT" in (out / "best.dxf").read_text()
