@@ -17,6 +17,7 @@ demo: $(STAMP)
 	$(VENV)/bin/holeshape check studies/rib-web-check.toml --plots runs/rib-web-access/current-design
 	$(VENV)/bin/holeshape optimise studies/rib-web-access.toml --out runs/rib-web-access
 	$(VENV)/bin/holeshape optimise studies/rib-web-lightening.toml --out runs/rib-web-lightening
+	$(VENV)/bin/holeshape optimise studies/floor-beam-flanged-access.toml --out runs/floor-beam-flanged-access
 
 test: $(STAMP)
 	$(PY) -m pytest

@@ -14,10 +14,32 @@ from dataclasses import replace
 from pathlib import Path
 
 from holeshape.errors import HoleshapeError, SearchError, StudyError
-from holeshape.record import RunInputs, RunRecord
+from holeshape.record import REINFORCED_SUFFIX, RunInputs, RunRecord, folder_name
 from holeshape.study import Range, dump_toml, load_study
 
 FAMILY_ORDER = ("circle", "ellipse", "rounded_rectangle", "slot", "superellipse", "spline")
+REINFORCEMENT_LIMITS = ("max_added_mass", "max_reinforcement_area")
+
+
+def bare_document(doc: dict) -> dict:
+    """The study document without its [reinforcement] (and the limits that need one): the bare families' study.
+    The least-reinforcement goal becomes the lowest peak (a bare opening that meets every requirement needs
+    nothing)."""
+    out = {k: v for k, v in doc.items() if k != "reinforcement"}
+    if "constraints" in out:
+        out["constraints"] = {k: v for k, v in out["constraints"].items() if k not in REINFORCEMENT_LIMITS}
+    if out.get("search", {}).get("goal") == "lightest_reinforcement":
+        out["search"] = {**out["search"], "goal": "lowest_peak"}
+    return out
+
+
+def rank_key(goal: str):
+    """How compare ranks its rows for the study's goal."""
+    if goal == "largest_opening":
+        return lambda r: -r["area_mm2"]
+    if goal == "lightest_reinforcement":  # no reinforcement (a bare opening that passes) first, then by volume
+        return lambda r: ((r.get("reinforcement") or {}).get("added_volume_mm3", 0.0), r["peak_stress_mpa"])
+    return lambda r: r["peak_stress_mpa"]
 
 
 def _r(lo: float, hi: float) -> dict:
@@ -79,11 +101,14 @@ def run_compare(study_path: str, out: str, workers: int = 1, progress: bool = Tr
         from holeshape.validation import run_validation
 
         files.write_json(out_dir / "validation.json", run_validation(FINAL_ACCURACY))
-    for family, table in family_ranges(study, doc["cutout"]).items():
-        fam_doc = dict(doc)
+    tables = {f: (bare_document(doc), t) for f, t in family_ranges(study, doc["cutout"]).items()}
+    if "reinforcement" in doc:  # the study's own family and ranges, with its reinforcement
+        tables[study.cutout.shape + REINFORCED_SUFFIX] = (doc, doc["cutout"])
+    for family, (base, table) in tables.items():
+        fam_doc = dict(base)
         fam_doc["cutout"] = table
         fam_doc["title"] = f"{study.title} ({family.replace('_', ' ')})"
-        fam_dir = out_dir / family
+        fam_dir = out_dir / folder_name(family)
         fam_dir.mkdir(exist_ok=True)
         if not (fam_dir / "validation.json").exists():
             shutil.copyfile(out_dir / "validation.json", fam_dir / "validation.json")
@@ -106,10 +131,12 @@ def run_compare(study_path: str, out: str, workers: int = 1, progress: bool = Tr
             continue
         rows.append({"shape": family, "feasible": True, **{k: fb.get(k) for k in (
             "peak_stress_mpa", "kt", "area_mm2", "governing_load_case", "params", "dxf", "error_estimate_pct",
-            "buckling_load_factor")}})
+            "buckling_load_factor", "reinforcement")}})
+        if rows[-1]["reinforcement"] is None:
+            rows[-1].pop("reinforcement")
     largest = study.search.goal == "largest_opening"
-    # ranked by the study's goal: lowest peak first, or largest removed area first
-    ok = sorted((r for r in rows if r["feasible"]), key=lambda r: -r["area_mm2"] if largest else r["peak_stress_mpa"])
+    # ranked by the study's goal: lowest peak first, largest removed area first, or least reinforcement first
+    ok = sorted((r for r in rows if r["feasible"]), key=rank_key(study.search.goal))
     if not ok:
         raise SearchError("no shape family found a design that meets the constraints: " +
                              "; ".join(f"{r['shape']}: {r['reason']}" for r in rows))
@@ -123,7 +150,7 @@ def run_compare(study_path: str, out: str, workers: int = 1, progress: bool = Tr
         else:  # lower peak than the best circle
             r["improvement_over_circle_pct"] = 100 * (1 - r["peak_stress_mpa"] / circle["peak_stress_mpa"])
     winner = ok[0]["shape"]
-    src = out_dir / winner
+    src = out_dir / folder_name(winner)
     if summaries[winner]["best"]["shape"] != winner:  # a standard shape beat even the best family: say so
         ok[0]["note"] = f"a standard {summaries[winner]['best']['shape']} is better still (see its search)"
     for name in ("best.dxf", "best.csv", "best_shape.png", "best_stress_field.png", "best_boundary_stress.png",

@@ -394,7 +394,8 @@ def write_profiles(out_dir: Path, study_def, best: Candidate, own: Candidate | N
     return dxf_info, {"shape": own.family, "peak_stress_mpa": e.peak_stress_mpa, "kt": e.kt, "area_mm2": e.area_mm2,
                       "error_estimate_pct": e.error_estimate_pct, "params": _jsonable(own.cutout.parameters()),
                       "governing_load_case": e.governing_load_case, "dxf": str(out_dir / "family_best.dxf"),
-                      "buckling_load_factor": None if e.stability is None else e.stability.load_factor}
+                      "buckling_load_factor": None if e.stability is None else e.stability.load_factor,
+                      "reinforcement": None if e.reinforcement is None else e.reinforcement.to_dict()}
 
 
 def write_plots(out_dir: Path, study_def, trials, best: Candidate, usable_baselines, goal: str) -> list[Path]:

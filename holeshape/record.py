@@ -66,6 +66,14 @@ def reinforcement_table(study: Study) -> dict | None:
     return out or None
 
 
+REINFORCED_SUFFIX = ", reinforced"  # compare's row of the study's own family with its [reinforcement]
+
+
+def folder_name(row_name: str) -> str:
+    """The sub-folder of a compare row's search (the family's name; the reinforced row's own folder)."""
+    return row_name.replace(REINFORCED_SUFFIX, "_reinforced")
+
+
 # ----- what a search run found ------------------------------------------------------------------------------------
 def _drop_none(d: dict, keys: tuple[str, ...]) -> dict:
     """``d`` without those of ``keys`` that are None (optional blocks a study without them does not store)."""

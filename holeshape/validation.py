@@ -1,5 +1,6 @@
 """Published reference cases solved by the same pipeline as a design, for the report's validation appendix and
-the README table. Sources: Kirsch (1898); Inglis (1913); Howland (1930); NAFEMS LE1 (1990). Units mm, MPa."""
+the README table. Sources: Kirsch (1898); Inglis (1913); Howland (1930); NAFEMS LE1 (1990); Mansfield (1953) and the
+Lame solution for reinforced holes. Units mm, MPa."""
 
 from __future__ import annotations
 
@@ -8,7 +9,7 @@ import time
 import numpy as np
 
 from holeshape.evaluate import evaluate
-from holeshape.geometry import Circle, Cutout, Ellipse
+from holeshape.geometry import Circle, Cutout, Ellipse, Reinforcement
 from holeshape.study import LoadCase, Material, Measure, Panel
 
 REFERENCE_MATERIAL = Material(name="reference", youngs_modulus=71000.0, poisson_ratio=0.33)
@@ -59,6 +60,17 @@ def le1_sigma_yy_at_d(size_mm: float = 60.0) -> float:
     return float(boundary_stress(mesh, u, inner[np.argsort(ang)], 210000.0, 0.3, closed=False).sigma[1, 0, 0])
 
 
+def lame_ring_hoop(ratio: float, b_over_a: float, nu: float) -> float:
+    """Hoop stress at the hole edge over the equibiaxial remote stress for a concentric doubler ring out to
+    b = ``b_over_a`` a with ``ratio`` times the web's thickness (same material): the Lame solutions of the ring
+    (sigma_r = P (1 - a^2/r^2)) and the web (sigma_r = 1 + Q/r^2) joined by force per unit length and hoop strain
+    at r = b. Returns 2 P."""
+    k = 1.0 / b_over_a ** 2
+    m = np.array([[ratio * (1 - k), -k], [(1 + k) - nu * (1 - k), (1 + nu) * k]])
+    p, _ = np.linalg.solve(m, np.array([1.0, 1.0 - nu]))
+    return float(2 * p)
+
+
 def reference_cases(full: bool = True):
     """(name, source, cutout, panel, load, published peak MPa, tolerance %)."""
     big = Panel(BIG, BIG, 1.0)
@@ -71,6 +83,15 @@ def reference_cases(full: bool = True):
     for r in ((2, 4, 8) if full else (4,)):
         rows.append((f"ellipse a/b = {r}, load across", "Inglis (1913): 1 + 2a/b",
                      Cutout(Ellipse(10.0, 10.0 / r), mid), big, (0, 100, 0), 100.0 * (1 + 2 * r), 0.1))
+    nu = REFERENCE_MATERIAL.poisson_ratio
+    rows.append(("flanged circle, neutral member, equibiaxial",
+                 "Mansfield (1953): A = a t / (1 - nu) leaves the sheet uniform",
+                 Cutout(Circle(10.0), mid, 0.0, Reinforcement("flange", height=10.0 / (1 - nu))), big,
+                 (100, 100, 0), 100.0, 0.1))
+    if full:
+        rows.append(("doubler ring, t_ring = t, b = 2a, equibiaxial", "Lame (closed form, derived)",
+                     Cutout(Circle(10.0), mid, 0.0, Reinforcement("ring", width=10.0, thickness=1.0)), big,
+                     (100, 100, 0), 100.0 * lame_ring_hoop(2.0, 2.0, nu), 0.1))
     strip = Panel(1000.0, 100.0, 1.0)
     for dw, kt in (((0.2, 3.14), (0.3, 3.36), (0.4, 3.74), (0.5, 4.32)) if full else ((0.4, 3.74),)):
         rows.append((f"strip, d/W = {dw}", "Howland (1930), 3-figure table", Cutout(Circle(dw * 50.0), (500.0, 50.0)),

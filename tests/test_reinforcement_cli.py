@@ -117,3 +117,59 @@ def test_least_flange_makes_the_failing_bare_opening_pass(tmp_path, capsys):
     text = (out / "report.html").read_text()
     assert "Reinforcement" in text and "the same outline bare" in text
     assert "HOLESHAPE_REINFORCEMENT_HEIGHT" in (out / "best.dxf").read_text()
+
+
+def _fast(text: str) -> str:
+    """The bundled study without the buckling check, margin-driven (allowable 60 MPa): seconds per search."""
+    text = text[:text.index("[stability]")] + text[text.index("[search]"):]
+    text = text.replace("min_buckling_factor = 1.5      # no buckling below ultimate (1.5 x limit) load\n", "")
+    return text.replace("allowable_stress = 280.0", "allowable_stress = 60.0")
+
+
+def test_compare_adds_the_reinforced_row(tmp_path, capsys):
+    # the bare families cannot carry 12 MPa of shear round a 110 mm access hole within 60 MPa (Kirsch-type 4 tau at
+    # the edge of a round hole is already 48 MPa, and the bay's finite size adds more); the reinforced row can
+    p = tmp_path / "cmp.toml"
+    p.write_text(_fast(TEXT).replace("trials = 40", "trials = 6").replace('goal = "lightest_reinforcement"',
+                                                                           'goal = "lowest_peak"'))
+    assert main(["compare", str(p), "--out", str(tmp_path / "cmp"), "-q", "--json"]) == 0
+    rows = json.loads(capsys.readouterr().out)["comparison"]
+    assert {r["shape"] for r in rows} == {"circle", "ellipse", "rounded_rectangle", "slot", "superellipse", "spline",
+                                          "circle, reinforced"}
+    top = next(r for r in rows if r.get("rank") == 1)
+    assert top["shape"] == "circle, reinforced" and top["reinforcement"]["kind"] == "flange"
+    assert top["peak_stress_mpa"] <= 60.0
+    assert all(not r["feasible"] for r in rows if r["shape"] != "circle, reinforced")
+    assert (tmp_path / "cmp" / "circle_reinforced" / "family_best.dxf").exists()
+
+
+def test_mass_and_cross_section_limits_are_geometric_constraints():
+    # checked before any solve, with their reasons; mass = perimeter x height x thickness x density
+    from holeshape.geometry import Circle, Cutout, Reinforcement
+    from holeshape.search.constraints import constraint_values
+    from holeshape.study import Constraints, Panel
+
+    cut = Cutout(Circle(60.0), (180.0, 120.0), 0.0, Reinforcement("flange", height=10.0))
+    mass = 2 * 3.141592653589793 * 60.0 * 10.0 * 1.6 * 2780e-9
+    panel = Panel(360.0, 240.0, 1.6)
+    ok, why = constraint_values(cut, panel, Constraints(max_added_mass=1.01 * mass, max_reinforcement_area=16.0),
+                                2780.0)
+    assert not why and ok["added_mass"] < 0 and ok["reinforcement_area"] == pytest.approx(0.0, abs=1e-12)
+    bad, why = constraint_values(cut, panel, Constraints(max_added_mass=0.99 * mass, max_reinforcement_area=15.0),
+                                 2780.0)
+    assert bad["added_mass"] > 0 and bad["reinforcement_area"] > 0
+    assert any("added mass" in w for w in why) and any("cross-section 16 mm^2 > 15 mm^2" in w for w in why)
+
+
+def test_largest_opening_with_a_mass_limit(tmp_path):
+    # the weight study with a reinforcement: the opening grows until the margin binds, the flange within its mass
+    text = _fast(TEXT).replace('goal = "lightest_reinforcement"', 'goal = "largest_opening"')
+    text = text.replace("trials = 40", "trials = 16").replace("min_ligament = 30.0",
+                                                              "min_ligament = 30.0\nmax_added_mass = 0.02")
+    p = tmp_path / "big.toml"
+    p.write_text(text)
+    out = tmp_path / "run"
+    assert main(["optimise", str(p), "--out", str(out), "--quiet"]) == 0
+    b = json.loads((out / "summary.json").read_text())["best"]
+    assert b["meets_every_requirement"] and b["reinforcement"]["added_mass_kg"] <= 0.02
+    assert b["margin_of_safety"] >= 0.0

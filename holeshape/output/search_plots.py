@@ -8,6 +8,7 @@ from pathlib import Path
 import numpy as np
 
 from holeshape.output.plots import pyplot, save
+from holeshape.record import folder_name
 
 
 def plot_history(path: Path, trials, title: str, goal: str = "lowest_peak") -> Path:
@@ -120,7 +121,7 @@ def plot_family_overlay(path: Path, study, run_dir: Path, ranked: list[dict]) ->
     ax.plot([0, panel.width, panel.width, 0, 0], [0, 0, panel.height, panel.height, 0], color="black", lw=1.2)
     styles = ["-", "--", "-.", ":", (0, (5, 1)), (0, (1, 1))]
     for i, r in enumerate(ranked):
-        csv = run_dir / r["shape"] / "family_best.csv"
+        csv = run_dir / folder_name(r["shape"]) / "family_best.csv"
         pts = np.loadtxt(csv, delimiter=",", skiprows=1)
         ax.plot(pts[:, 0], pts[:, 1], linestyle=styles[i % len(styles)], lw=2.4 if i == 0 else 1.3,
                 color="C0" if i == 0 else f"{0.15 + 0.12 * i:.2f}",

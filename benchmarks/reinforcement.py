@@ -1,0 +1,53 @@
+"""Cost of a reinforced opening against the bare one, measured in the same run (the bare opening is the baseline).
+
+Run:  .venv/bin/python benchmarks/reinforcement.py
+The bundled floor-beam study's 120 mm hole, standard accuracy: plane stress alone, then with the buckling check;
+bare, with a formed flange, with a doubler ring. Prints a Markdown table of best-of-3 wall times and the ratios.
+"""
+
+from __future__ import annotations
+
+import time
+from pathlib import Path
+
+from holeshape.evaluate import evaluate
+from holeshape.geometry import Reinforcement
+from holeshape.study import Measure, load_study
+
+STUDY = Path(__file__).resolve().parents[1] / "studies" / "floor-beam-flanged-access.toml"
+
+
+def best_of(fn, n: int = 3) -> tuple[float, object]:
+    times, out = [], None
+    for _ in range(n):
+        t0 = time.perf_counter()
+        out = fn()
+        times.append(time.perf_counter() - t0)
+    return min(times), out
+
+
+def main() -> None:
+    from dataclasses import replace
+
+    study = load_study(STUDY)
+    base = study.cutout.build()
+    designs = {"bare": base.bare, "flange 11 mm": replace(base, reinforcement=Reinforcement("flange", height=11.0)),
+               "ring 20 x 1.6 mm": replace(base, reinforcement=Reinforcement("ring", width=20.0, thickness=1.6))}
+    print("| design | plane stress (s) | ratio | DOFs | with buckling (s) | ratio | buckling factor |")
+    print("|---|---|---|---|---|---|---|")
+    ref = {}
+    for name, cut in designs.items():
+        cache: dict = {}
+        t_ps, ev = best_of(lambda: evaluate(study.panel, study.material, study.load_cases, cut,
+                                            Measure(study.measure.stress, "standard")))
+        t_st, ev_st = best_of(lambda: evaluate(study.panel, study.material, study.load_cases, cut,
+                                               Measure(study.measure.stress, "standard"), stability=study.stability,
+                                               cache=cache))
+        ref.setdefault("ps", t_ps)
+        ref.setdefault("st", t_st)
+        print(f"| {name} | {t_ps:.2f} | {t_ps / ref['ps']:.2f}x | {ev.dofs} | {t_st:.2f} | {t_st / ref['st']:.2f}x |"
+              f" {ev_st.stability.load_factor:.3f} |")
+
+
+if __name__ == "__main__":
+    main()
