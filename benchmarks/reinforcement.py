@@ -38,11 +38,11 @@ def main() -> None:
     ref = {}
     for name, cut in designs.items():
         cache: dict = {}
-        t_ps, ev = best_of(lambda: evaluate(study.panel, study.material, study.load_cases, cut,
-                                            Measure(study.measure.stress, "standard")))
-        t_st, ev_st = best_of(lambda: evaluate(study.panel, study.material, study.load_cases, cut,
-                                               Measure(study.measure.stress, "standard"), stability=study.stability,
-                                               cache=cache))
+        t_ps, ev = best_of(lambda c=cut: evaluate(study.panel, study.material, study.load_cases, c,
+                                                  Measure(study.measure.stress, "standard")))
+        t_st, ev_st = best_of(lambda c=cut, k=cache: evaluate(study.panel, study.material, study.load_cases, c,
+                                                              Measure(study.measure.stress, "standard"),
+                                                              stability=study.stability, cache=k))
         ref.setdefault("ps", t_ps)
         ref.setdefault("st", t_st)
         print(f"| {name} | {t_ps:.2f} | {t_ps / ref['ps']:.2f}x | {ev.dofs} | {t_st:.2f} | {t_st / ref['st']:.2f}x |"
