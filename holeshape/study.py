@@ -565,7 +565,7 @@ def _parse_reinforcement(c: dict, panel: Panel) -> dict[str, Any]:
     for key in need + tuple(k for k in ("thickness",) if k not in need and k in c):
         out[w + key] = _number(c, key, w, positive=True, allow_range=True)
     if "youngs_modulus" in c:
-        out[w + "youngs_modulus"] = _number(c, "youngs_modulus", w, positive=True)
+        out[w + "youngs_modulus"] = _number(c, "youngs_modulus", w, positive=True, allow_range=True)
     return out
 
 

@@ -69,10 +69,12 @@ def test_limits_without_a_reinforcement_are_refused(tmp_path, capsys):
     assert "constraints.max_reinforcement_area = 20.0 needs a [reinforcement] table" in capsys.readouterr().err
 
 
-def test_check_json_and_dxf_of_a_ring(tmp_path, capsys):
+def test_check_json_plots_and_dxf_of_a_ring(tmp_path, capsys):
     p = _variant(tmp_path, (FLANGE, RING))
-    assert main(["check", str(p), "--json", "--accuracy", "draft"]) == 0
+    assert main(["check", str(p), "--json", "--accuracy", "draft", "--plots", str(tmp_path / "plots")]) == 0
     d = json.loads(capsys.readouterr().out)
+    for name in ("stress_field.png", "boundary_stress.png", "buckling_mode.png"):
+        assert (tmp_path / "plots" / name).stat().st_size > 10_000
     r = d["reinforcement"]
     assert r["kind"] == "ring" and r["sizes"] == {"width": 20.0, "thickness": 1.6}
     # added mass = ring area x thickness x density; ring area = pi ((60 + 20)^2 - 60^2) (geometry of the offset)

@@ -13,13 +13,15 @@ from holeshape.record import folder_name
 
 def plot_history(path: Path, trials, title: str, goal: str = "lowest_peak") -> Path:
     """Objective of every feasible design against the trial number with the best so far; for
-    ``goal = "largest_opening"`` the removed area (the best so far is the largest)."""
+    ``goal = "largest_opening"`` the removed area (the best so far is the largest), for
+    ``"lightest_reinforcement"`` the reinforcement's volume in cm^3."""
     from optuna.trial import TrialState
 
     plt = pyplot()
     fig, ax = plt.subplots(figsize=(8, 4.6))
-    sign = 1.0 if goal == "lowest_peak" else -1.0  # the study stores minus the area for the largest opening
-    feas = [(t.number, sign * t.values[0]) for t in trials if t.state == TrialState.COMPLETE
+    sign = -1.0 if goal == "largest_opening" else 1.0  # the study stores minus the area for the largest opening
+    scale = 1e-3 if goal == "lightest_reinforcement" else 1.0  # mm^3 -> cm^3
+    feas = [(t.number, sign * scale * t.values[0]) for t in trials if t.state == TrialState.COMPLETE
             and t.user_attrs.get("feasible") and all(v <= 0 for v in t.constraints.values())]
     infeas = [t.number for t in trials if t.state == TrialState.COMPLETE and not t.user_attrs.get("feasible", True)]
     failed = [t.number for t in trials if t.state == TrialState.FAIL]
@@ -29,8 +31,10 @@ def plot_history(path: Path, trials, title: str, goal: str = "lowest_peak") -> P
         order = np.argsort(n)
         best = np.minimum.accumulate(v[order]) if sign > 0 else np.maximum.accumulate(v[order])
         ax.step(n[order], best, where="post", color="black", lw=1.8, label="best so far")
-        if sign > 0:
+        if sign > 0 and v.min() > 0:
             ax.set_ylim(0.95 * v.min(), min(v.max(), 3 * v.min()) * 1.05)
+        elif sign > 0:
+            ax.set_ylim(0.0, max(v.max(), 1e-9) * 1.08)
         else:
             ax.set_ylim(max(0.0, v.min() * 0.9), v.max() * 1.08)
         ymark = ax.get_ylim()[1]
@@ -43,7 +47,9 @@ def plot_history(path: Path, trials, title: str, goal: str = "lowest_peak") -> P
         ax.plot(failed, np.full(len(failed), ymark), "s", ms=4, mfc="none", color="C1", clip_on=False,
                 label=f"failed ({len(failed)})")
     ax.set_xlabel("trial")
-    ax.set_ylabel("peak stress over all load cases (MPa)" if sign > 0 else "removed area (mm^2)")
+    ax.set_ylabel({"largest_opening": "removed area (mm^2)",
+                   "lightest_reinforcement": "reinforcement volume (cm^3)"}.get(goal,
+                                                                                 "peak stress over all load cases (MPa)"))
     ax.grid(True, alpha=0.3)
     ax.legend(fontsize=8, loc="upper right")
     ax.set_title(f"{title}: search history")
@@ -62,8 +68,16 @@ def plot_shapes(path: Path, best, baselines, panel, constraints, title: str, bes
         ax.plot(*np.vstack([p, p[:1]]).T, styles[i % 3], color="0.45", lw=1.2,
                 label=f"{family.replace('_', ' ')}: {base_peaks[family]:.1f} MPa")
     p = best.polygon(720)
-    ax.fill(*p.T, color="C0", alpha=0.15)
-    ax.plot(*np.vstack([p, p[:1]]).T, color="C0", lw=2.2, label=f"best {best.family.replace('_', ' ')}: "
+    r = best.reinforcement
+    if r is not None and r.kind == "ring":
+        from holeshape.geometry.reinforcement import ring_outline
+
+        q = ring_outline(best, r.width).polygon(720)
+        ax.fill(*q.T, color="C1", alpha=0.25, label=f"doubler ring {r.width:.1f} mm wide")
+    ax.fill(*p.T, color="white" if r is not None and r.kind == "ring" else "C0", alpha=1.0 if r is not None and
+            r.kind == "ring" else 0.15)
+    flange = f", flange {r.height:.1f} mm" if r is not None and r.kind == "flange" else ""
+    ax.plot(*np.vstack([p, p[:1]]).T, color="C0", lw=2.2, label=f"best {best.family.replace('_', ' ')}{flange}: "
             f"{best_peak:.1f} MPa")
     if constraints.access is not None:
         env = constraints.access.polygon(best.center, 0.0)

@@ -228,9 +228,12 @@ def verdict(rows: list[dict], load_case: str | None = None) -> dict:
 
 
 def sig(v: float, figures: int = 2) -> str:
-    """``v`` to ``figures`` significant figures, without exponent notation for the sizes a report shows."""
+    """``v`` to ``figures`` significant figures, without exponent notation for the sizes a report shows; magnitudes
+    below 0.001 (a percentage error that small is nil for a reader) as "< 0.001"."""
     if v == 0 or not math.isfinite(v):
         return f"{v:g}"
+    if abs(v) < 1e-3:
+        return "< 0.001"
     digits = max(0, figures - 1 - int(math.floor(math.log10(abs(v)))))
     return f"{v:.{digits}f}"
 
