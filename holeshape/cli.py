@@ -183,8 +183,10 @@ def _check(args) -> int:
         from holeshape.output.text import check_summary
 
         if not args.quiet:
+            beam = {lc.name: (lc.shear_force or 0.0, lc.bending_moment or 0.0, study.panel.shear_distribution)
+                    for lc in study.load_cases if lc.is_beam}
             print(check_summary(study.title, cutout.family, cutout.parameters(), ev, EDGE_NOTES[study.panel.edges],
-                                requirements))
+                                requirements, beam))
             for p in plots:
                 print(f"  plot          {p}")
         else:

@@ -20,6 +20,7 @@ from holeshape.mesh import MeshSpec, Region, mesh_panel
 from holeshape.solve import (
     BoundaryStress,
     PanelSolution,
+    load_fields,
     member_stress,
     peak_along,
     principal_stresses,
@@ -67,11 +68,25 @@ STRESS_LABELS = {"von_mises": "von Mises stress", "max_principal": "max principa
                  "hoop": "hoop stress magnitude"}
 
 
-def reference_stress(case: LoadCase, stress: str) -> float:
-    if stress == "von_mises":
-        return float(von_mises(*case.components))
-    s1, s2 = principal_stresses(*case.components)
-    return float(max(abs(s1), abs(s2)))
+BEAM_KT_REFERENCE = ("the beam-theory stress at the opening's centre without the opening ({measure}; where that is"
+                     " below 1 % of the largest beam-theory stress in the web, that largest one)")
+
+
+def reference_stress(case: LoadCase, stress: str, field=None, center=None, panel: Panel | None = None) -> float:
+    """The stress Kt is measured against: the remote stress state, or for a beam case (``field``) the beam-theory
+    stress at the opening's ``center`` (the largest in the web where that is below 1 % of it)."""
+    def measure(sxx, syy, sxy):
+        if stress == "von_mises":
+            return np.asarray(von_mises(sxx, syy, sxy))
+        s1, s2 = principal_stresses(sxx, syy, sxy)
+        return np.maximum(np.abs(s1), np.abs(s2))
+
+    if field is None:
+        return float(measure(*case.components))
+    at = float(measure(*field(center[0], center[1])))
+    gx, gy = np.meshgrid(np.linspace(0.0, panel.width, 41), np.linspace(0.0, panel.height, 41))
+    top = float(np.max(measure(*field(gx, gy))))
+    return at if at >= 0.01 * top else top
 
 
 def measure_values(bs: BoundaryStress, stress: str) -> np.ndarray:
@@ -87,6 +102,8 @@ def measure_values(bs: BoundaryStress, stress: str) -> np.ndarray:
 
 def choose_region(panel: Panel, cutout: Cutout, load_cases: tuple[LoadCase, ...]) -> Region:
     """The smallest exact model: mirror lines only where geometry, position and every load case are symmetric."""
+    if any(lc.is_beam for lc in load_cases):  # a beam's moment varies along x and its stress across y: full model
+        return Region(panel.width, panel.height)
     sym_h, sym_v = cutout.panel_symmetry()
     no_shear = all(lc.tau_xy == 0.0 for lc in load_cases)
     tol = 1e-9 * max(panel.width, panel.height)
@@ -96,6 +113,7 @@ def choose_region(panel: Panel, cutout: Cutout, load_cases: tuple[LoadCase, ...]
                   mirror_v=bool(sym_v and on_v and no_shear))
 
 
+TEE_KEYS = ("tee_above_mpa", "tee_below_mpa", "tee_above_shear_mpa", "tee_below_shear_mpa")
 CUTOUT_EDGE = "cutout edge"
 RING_EDGE = "web at the ring's outer edge"
 FLANGE = "flange"
@@ -178,6 +196,12 @@ class LoadCaseResult:
     net_section_stress_mpa: float
     net_section_shear_mpa: float
     margin_of_safety: float | None
+    # beam load cases: mean normal and shear stress across the web above and below the opening (the tee sections),
+    # on the vertical section through its centre, MPa
+    tee_above_mpa: float | None = None
+    tee_below_mpa: float | None = None
+    tee_above_shear_mpa: float | None = None
+    tee_below_shear_mpa: float | None = None
     # with [stability]: the load factor that buckles the web (None: does not buckle below the ceiling), its error
     # estimate, factor / required factor, and the same panel without the cutout
     buckling_load_factor: float | None = None
@@ -233,6 +257,10 @@ class Evaluation:
         d["load_cases"] = [asdict(c) for c in self.load_cases]
         d["levels"] = [{"dofs": n, "peak_stress_mpa": p} for n, p in self.levels]
         d["within_accuracy_target"] = self.within_target
+        if all(c["tee_above_mpa"] is None for c in d["load_cases"]):  # no beam case: the JSON as it was
+            for c in d["load_cases"]:
+                for k in TEE_KEYS:
+                    c.pop(k)
         if self.reinforcement is None:  # a bare opening keeps its JSON as it was
             d.pop("reinforcement")
             for c in d["load_cases"]:
@@ -277,6 +305,7 @@ def evaluate(panel: Panel, material: Material, load_cases: tuple[LoadCase, ...],
     level = ACCURACY_LEVELS[measure.accuracy]
     region = choose_region(panel, cutout, load_cases) if allow_reduction else Region(panel.width, panel.height)
     remote = np.array([lc.components for lc in load_cases])
+    fields = load_fields(panel, load_cases)
 
     def run(spec):
         if time_limit_s is not None and time.perf_counter() - t0 > time_limit_s:
@@ -284,7 +313,8 @@ def evaluate(panel: Panel, material: Material, load_cases: tuple[LoadCase, ...],
                              "estimate was complete")
         pm = mesh_panel(panel.width, panel.height, cutout, region, spec)
         sol = solve_panel(pm, material.youngs_modulus, material.poisson_ratio, remote, panel.edges,
-                          panel.width, panel.height, reinforcement=cutout.reinforcement, thickness=panel.thickness)
+                          panel.width, panel.height, reinforcement=cutout.reinforcement, thickness=panel.thickness,
+                          fields=fields)
         places = {name: (bs, [peak_along(bs.s, v, pm.closed) for v in vals.T])
                   for name, (bs, vals) in location_values(sol, measure.stress, cutout.reinforcement,
                                                           material).items()}
@@ -312,13 +342,14 @@ def evaluate(panel: Panel, material: Material, load_cases: tuple[LoadCase, ...],
     pm_c, sol_c, peaks_c, places_c = runs[-2]
     hoop = sol.cutout.hoop
     lig = narrowest_ligament(panel, cutout, pm, sol)
+    tees = tee_sections(panel, cutout, pm, sol) if any(f is not None for f in fields) else None
     results = []
     for j, lc in enumerate(load_cases):
         peak, i, where = peaks[j]
         peak_c = places_c[where][1][j][0]
         if not (math.isfinite(peak) and peak > 0):
             raise SolveError(f"load case {lc.name!r}: the recovered peak stress is {peak!r}, not a positive number")
-        ref = reference_stress(lc, measure.stress)
+        ref = reference_stress(lc, measure.stress, fields[j], cutout.center, panel)
         est = ests[j]
         mos = material.allowable_stress / peak - 1.0 if material.allowable_stress else None
         locs = tuple(LocationPeak(name, pk[j][0], float(bs.xy[0, pk[j][1]]), float(bs.xy[1, pk[j][1]]),
@@ -331,7 +362,7 @@ def evaluate(panel: Panel, material: Material, load_cases: tuple[LoadCase, ...],
             error_estimate_pct=est, peak_second_level_mpa=peak_c, hoop_max_mpa=float(hoop[:, j].max()),
             hoop_min_mpa=float(hoop[:, j].min()), net_section_stress_mpa=lig.mean_normal_mpa[j],
             net_section_shear_mpa=lig.mean_shear_mpa[j], margin_of_safety=mos, peak_location=where,
-            locations=locs))
+            locations=locs, **({} if tees is None or fields[j] is None else tees[j])))
     gov = max(range(len(results)), key=lambda k: results[k].peak_stress_mpa)
     g = results[gov]
     est = max(r.error_estimate_pct for r in results)
@@ -356,8 +387,11 @@ def evaluate(panel: Panel, material: Material, load_cases: tuple[LoadCase, ...],
                            buckling_reserve=c.reserve, buckling_load_factor_unperforated=c.unperforated_factor)
                    for r, c in zip(results, stab.cases)]
         warnings += list(stab.warnings)
+    kt_reference = KT_REFERENCES[measure.stress]
+    if fields[gov] is not None:
+        kt_reference = BEAM_KT_REFERENCE.format(measure=STRESS_LABELS[measure.stress])
     ev = Evaluation(
-        peak_stress_mpa=g.peak_stress_mpa, kt=g.kt, kt_reference=KT_REFERENCES[measure.stress],
+        peak_stress_mpa=g.peak_stress_mpa, kt=g.kt, kt_reference=kt_reference,
         error_estimate_pct=est, area_mm2=cutout.area, margin_of_safety=g.margin_of_safety,
         load_cases=tuple(results), dofs=sol.dofs, elapsed_s=time.perf_counter() - t0,
         governing_load_case=g.name, stress_measure=measure.stress, accuracy=level.name,
@@ -468,6 +502,26 @@ def narrowest_ligament(panel: Panel, cutout: Cutout, pm, sol: PanelSolution, n_p
     mean_t = 0.5 * np.einsum("i,ij->j", w, sig[shear_comp])
     return Ligament(edge=edge, width_mm=width, start=(px, py), end=end,
                     mean_normal_mpa=tuple(float(v) for v in mean_n), mean_shear_mpa=tuple(float(v) for v in mean_t))
+
+
+def tee_sections(panel: Panel, cutout: Cutout, pm, sol: PanelSolution, n_points: int = 24) -> list[dict]:
+    """Per load case: mean normal (sigma_x) and shear stress across the web above and below the opening on the
+    vertical section through its centre (the tee sections of a beam web), MPa."""
+    from shapely.geometry import LineString, Polygon
+
+    xc = cutout.center[0]
+    cut = LineString([(xc, 0.0), (xc, panel.height)]).intersection(Polygon(cutout.polygon(720)))
+    ys = np.asarray(cut.bounds)[[1, 3]] if not cut.is_empty else np.array([cutout.center[1]] * 2)
+    g, w = np.polynomial.legendre.leggauss(n_points)
+    f = 0.5 * (g + 1.0)
+    parts = {}
+    for name, (y0, y1) in (("above", (ys[1], panel.height)), ("below", (0.0, ys[0]))):
+        xy = np.array([np.full(n_points, xc), y0 + f * (y1 - y0)])
+        sig = stress_at_points(pm, sol, xy)  # (3, n, m)
+        parts[name] = (0.5 * np.einsum("i,ij->j", w, sig[0]), 0.5 * np.einsum("i,ij->j", w, sig[2]))
+    return [{"tee_above_mpa": float(parts["above"][0][j]), "tee_below_mpa": float(parts["below"][0][j]),
+             "tee_above_shear_mpa": float(parts["above"][1][j]), "tee_below_shear_mpa": float(parts["below"][1][j])}
+            for j in range(sol.u.shape[1])]
 
 
 def stress_at_points(pm, sol: PanelSolution, xy: np.ndarray) -> np.ndarray:

@@ -370,7 +370,7 @@ def reinforcement_terms(reinforcement, youngs_modulus: float, thickness: float) 
 
 def solve_panel(pm, youngs_modulus: float, poisson_ratio: float, remote: np.ndarray, edges: str,
                 width: float, height: float, recover: bool = True, reinforcement=None,
-                thickness: float = 1.0) -> PanelSolution:
+                thickness: float = 1.0, fields: list | None = None) -> PanelSolution:
     """Solve a panel mesh (``holeshape.mesh.PanelMesh``) for m uniform remote stress states.
 
     ``remote`` (m, 3): (sigma_x, sigma_y, tau_xy) MPa per load case. ``edges``: "traction" applies sigma . n on
@@ -380,6 +380,8 @@ def solve_panel(pm, youngs_modulus: float, poisson_ratio: float, remote: np.ndar
     the cutout stress recovery (``cutout`` is then None: a prestress for the buckling check needs the field only).
     ``reinforcement`` (with the web ``thickness``, mm): a ring stiffens its elements of the mesh (same Poisson's
     ratio assumed; the recovered stresses are the web's), a flange adds an edge member along the cutout.
+    ``fields``: per load case a stress field whose tractions load the edges instead of ``remote`` (a beam web's
+    :class:`BeamField`; None keeps the uniform remote stress); traction edges only.
     """
     remote = np.atleast_2d(np.asarray(remote, dtype=float))
     mesh = pm.mesh
@@ -402,6 +404,8 @@ def solve_panel(pm, youngs_modulus: float, poisson_ratio: float, remote: np.ndar
         fixed_parts.append(basis.get_dofs(bnd["mirror_v"]).all("u^1"))
     cx, cy = width / 2, height / 2
     m = remote.shape[0]
+    if edges == "displacement" and fields is not None and any(f is not None for f in fields):
+        raise ValueError("stress-field (beam) load cases need traction edges")
     if edges == "displacement":
         ux_dofs = basis.get_dofs(edge_facets).all("u^1")
         uy_dofs = basis.get_dofs(edge_facets).all("u^2")
@@ -419,7 +423,7 @@ def solve_panel(pm, youngs_modulus: float, poisson_ratio: float, remote: np.ndar
         values = values[first]
         loads = np.zeros((K.shape[0], m))
     elif edges == "traction":
-        loads = panel_edge_loads(basis, mesh, bnd, remote)
+        loads = panel_edge_loads(basis, mesh, bnd, remote, fields)
         fixed_parts += _rigid_body_constraints(basis, pm, width, height)
         fixed = np.unique(np.concatenate(fixed_parts)) if fixed_parts else np.array([], dtype=np.int64)
         values = None
@@ -443,32 +447,91 @@ def member_stress(bs: BoundaryStress, youngs_modulus: float, poisson_ratio: floa
     return member_modulus * (bs.hoop - poisson_ratio * bs.normal) / youngs_modulus
 
 
+@dataclass(frozen=True)
+class BeamField:
+    """The beam-theory stress of a web panel (MPa; x, y panel coordinates in mm):
+    sigma_x = M(x) (y - y_na) / I with M(x) = M0 + V (x - x_c), sigma_y = 0, tau_xy = C - V (y - y_na)^2 / (2 I).
+
+    It satisfies equilibrium (d sigma_x / dx = V (y - y_na) / I = -d tau / dy) and compatibility (its Airy function
+    (M0 + V x)(y - y_na)^3 / (6 I) - C x y is biharmonic), so an unperforated panel loaded on its edges by these
+    tractions carries exactly this field: the end-loaded cantilever of Timoshenko & Goodier when C = V c^2 / (2 I)
+    for a solid rectangular section of half-depth c. ``shear_constant`` C sets how the web carries the shear."""
+
+    shear_force: float  # V, N
+    moment: float  # M0 at x_c, N mm
+    x_center: float
+    neutral_axis: float
+    inertia: float  # I of the whole section, mm^4
+    shear_constant: float  # C, MPa
+
+    @classmethod
+    def of(cls, case, panel) -> BeamField:
+        """The field of a beam load case (``study.LoadCase`` with shear_force / bending_moment) in ``panel``."""
+        v, m, i = float(case.shear_force or 0.0), float(case.bending_moment or 0.0), float(panel.section_inertia)
+        h, na, t = panel.height, panel.neutral_axis, panel.thickness
+        if panel.shear_distribution == "parabolic":  # zero at the free top and bottom edges (solid section)
+            c = v * (h / 2) ** 2 / (2 * i)
+        else:  # the web carries the whole shear force: mean tau over the depth is V / (h t)
+            mean_eta2 = ((h - na) ** 3 + na ** 3) / (3 * h)
+            c = v / (h * t) + v * mean_eta2 / (2 * i)
+        return cls(v, m, panel.width / 2, na, i, c)
+
+    def __call__(self, x, y):
+        x, y = np.asarray(x, dtype=float), np.asarray(y, dtype=float)
+        eta = y - self.neutral_axis
+        sx = (self.moment + self.shear_force * (x - self.x_center)) * eta / self.inertia
+        txy = self.shear_constant - self.shear_force * eta ** 2 / (2 * self.inertia)
+        return sx, np.zeros_like(sx), np.broadcast_to(txy, sx.shape)
+
+
+def load_fields(panel, load_cases) -> list:
+    """Per load case: its :class:`BeamField`, or None for a uniform remote stress."""
+    return [BeamField.of(lc, panel) if lc.is_beam else None for lc in load_cases]
+
+
 EDGE_NORMALS = {"left": (-1.0, 0.0), "right": (1.0, 0.0), "bottom": (0.0, -1.0), "top": (0.0, 1.0)}
 
 
-def panel_edge_loads(basis, mesh, boundaries: dict, remote: np.ndarray) -> np.ndarray:
-    """Consistent P2 load vectors (n_dofs, m) of uniform remote stresses on the straight panel edges.
+def panel_edge_loads(basis, mesh, boundaries: dict, remote: np.ndarray, fields: list | None = None) -> np.ndarray:
+    """Consistent P2 load vectors (n_dofs, m) of the load cases' tractions on the straight panel edges.
 
-    On a straight edge of length L with its mid-side node at the midpoint, a constant traction q gives q L / 6 at
-    each end node and 2 q L / 3 at the mid node (exact integration of the quadratic shape functions). Written out
-    instead of a facet basis because an element with a curved cutout edge and a panel edge (a thin ligament)
-    defeats scikit-fem's inverse mapping on facets.
+    Uniform remote stresses: on a straight edge of length L with its mid-side node at the midpoint, a constant
+    traction q gives q L / 6 at each end node and 2 q L / 3 at the mid node (exact integration of the quadratic
+    shape functions). A case with a stress field (``fields[j]``, e.g. a :class:`BeamField`) is integrated with
+    3 Gauss points per edge (exact for the field's quadratic tractions against the quadratic shape functions).
+    Written out instead of a facet basis because an element with a curved cutout edge and a panel edge (a thin
+    ligament) defeats scikit-fem's inverse mapping on facets.
     """
     m = remote.shape[0]
+    fields = fields or [None] * m
     loads = np.zeros((basis.N, m))
     sx, sy, txy = remote.T
+    g, gw = np.polynomial.legendre.leggauss(3)
+    xi, wq = 0.5 * (g + 1.0), 0.5 * gw
+    shape = np.array([(1 - xi) * (1 - 2 * xi), xi * (2 * xi - 1), 4 * xi * (1 - xi)])  # end, end, mid; (3, q)
     for name, (nx, ny) in EDGE_NORMALS.items():
         f = boundaries[name]
         if len(f) == 0:
             continue
         v = mesh.facets[:, f]  # (2, k) vertex indices
-        length = np.linalg.norm(mesh.p[:, v[1]] - mesh.p[:, v[0]], axis=0)  # (k,)
+        p0, p1 = mesh.p[:, v[0]], mesh.p[:, v[1]]
+        length = np.linalg.norm(p1 - p0, axis=0)  # (k,)
         qx = np.outer(length, sx * nx + txy * ny)  # (k, m): traction x L
         qy = np.outer(length, txy * nx + sy * ny)
+        node_dofs = [(basis.nodal_dofs[c, v[0]], basis.nodal_dofs[c, v[1]], basis.facet_dofs[c, f]) for c in (0, 1)]
         for comp, q in ((0, qx), (1, qy)):
-            for dofs, w in ((basis.nodal_dofs[comp, v[0]], 1 / 6), (basis.nodal_dofs[comp, v[1]], 1 / 6),
-                            (basis.facet_dofs[comp, f], 2 / 3)):
-                np.add.at(loads, dofs, w * q)
+            for dofs, w in zip(node_dofs[comp], (1 / 6, 1 / 6, 2 / 3)):
+                uniform = np.where([fld is None for fld in fields], 1.0, 0.0)[None, :]
+                np.add.at(loads, dofs, w * q * uniform)
+        pts = p0[:, :, None] + xi[None, None, :] * (p1 - p0)[:, :, None]  # (2, k, q)
+        for j, fld in enumerate(fields):
+            if fld is None:
+                continue
+            fxx, fyy, fxy = (np.broadcast_to(c, pts[0].shape) for c in fld(pts[0], pts[1]))
+            tx, ty = fxx * nx + fxy * ny, fxy * nx + fyy * ny  # (k, q)
+            for comp, tr in ((0, tx), (1, ty)):
+                for a, dofs in enumerate(node_dofs[comp]):
+                    np.add.at(loads[:, j], dofs, length * np.einsum("kq,q,q->k", tr, shape[a], wq))
     return loads
 
 

@@ -466,14 +466,15 @@ def _plate_factors(pb, prestresses: list[np.ndarray], material, thickness: float
     return [[(f, _vertex_deflection(pb, m)) for f, m in rows] for rows in facs]
 
 
-def _holed_level(panel, material, remote: np.ndarray, cutout, spec: MeshSpec, support: str, n_modes: int
-                 ) -> _LevelRun:
+def _holed_level(panel, material, remote: np.ndarray, cutout, spec: MeshSpec, support: str, n_modes: int,
+                 fields: list | None = None) -> _LevelRun:
     from holeshape.solve import solve_panel
 
     region = Region(panel.width, panel.height)  # the whole panel: modes need not be symmetric
     pm = mesh_panel(panel.width, panel.height, cutout, region, spec)
     sol = solve_panel(pm, material.youngs_modulus, material.poisson_ratio, remote, panel.edges, panel.width,
-                      panel.height, recover=False, reinforcement=cutout.reinforcement, thickness=panel.thickness)
+                      panel.height, recover=False, reinforcement=cutout.reinforcement, thickness=panel.thickness,
+                      fields=fields)
     facs, pb = plate_buckling(pm, sol.u, material, panel.thickness, support, n_modes, cutout.reinforcement)
     mesh = pm.mesh
     return _LevelRun(facs, int(pb.N), mesh.p[:, :mesh.nvertices].copy(), mesh.t.copy())
@@ -497,9 +498,10 @@ def crossed_grid(width: float, height: float, nx: int, ny: int) -> tuple[np.ndar
     return p, t
 
 
-def _plain_level(panel, material, remote: np.ndarray, n_short: int, support: str, n_modes: int) -> _LevelRun:
+def _plain_level(panel, material, remote: np.ndarray, n_short: int, support: str, n_modes: int,
+                 fields: list | None = None) -> _LevelRun:
     """The unperforated panel: a crossed structured mesh and the uniform remote stress (exact for both in-plane
-    edge conditions when there is no cutout)."""
+    edge conditions when there is no cutout), or a beam case's own field (exact for an unperforated web)."""
     from skfem import MeshTri1
 
     short = min(panel.width, panel.height)
@@ -507,7 +509,10 @@ def _plain_level(panel, material, remote: np.ndarray, n_short: int, support: str
     ny = max(2, int(round(n_short * panel.height / short)))
     p, t = crossed_grid(panel.width, panel.height, nx, ny)
     pb = plate_basis(p, t)
-    facs = _plate_factors(pb, [np.asarray(r, dtype=float) for r in remote], material, panel.thickness,
+    xq = np.asarray(pb.global_coordinates())
+    pre = [np.asarray(r, dtype=float) if f is None else np.array(f(xq[0], xq[1]))
+           for r, f in zip(remote, fields or [None] * len(remote))]
+    facs = _plate_factors(pb, pre, material, panel.thickness,
                           MeshTri1(p, t).boundary_facets(), support, n_modes)
     return _LevelRun(facs, int(pb.N), p, t)
 
@@ -528,7 +533,7 @@ def _converged(run_at, coarse, fine, refine, level: StabilityLevel, n_cases: int
     return runs, [_combine(runs, ratios, j, level.floor_pct) for j in range(n_cases)], len(runs) - 2
 
 
-def _plain_panel(panel, material, remote, level: StabilityLevel, support: str, n_modes: int):
+def _plain_panel(panel, material, remote, level: StabilityLevel, support: str, n_modes: int, fields=None):
     """The unperforated panel: nested structured meshes with an exact size ratio of 2 (then about 1.5 per
     refinement, the exact ratio of the cell counts)."""
     n = int(math.ceil(1.0 / level.spec.max_fraction / 2.0)) * 2
@@ -537,8 +542,8 @@ def _plain_panel(panel, material, remote, level: StabilityLevel, support: str, n
         finer = int(round(k * REFINE_RATIO))
         return finer, finer / k
 
-    return _converged(lambda k: _plain_level(panel, material, remote, k, support, n_modes), n // 2, n, refine, level,
-                      remote.shape[0])
+    return _converged(lambda k: _plain_level(panel, material, remote, k, support, n_modes, fields), n // 2, n, refine,
+                      level, remote.shape[0])
 
 
 def _first(run: _LevelRun, j: int) -> float | None:
@@ -564,7 +569,10 @@ def buckling(panel, material, load_cases, cutout, settings: StabilitySettings, a
     the same for every design of a study, is kept between calls."""
     t0 = time.perf_counter()
     level = STABILITY_LEVELS[accuracy]
+    from holeshape.solve import load_fields
+
     remote = np.array([lc.components for lc in load_cases], dtype=float)
+    fields = load_fields(panel, load_cases)
     support, n_modes = settings.edge_support, max(1, settings.modes if keep_fields else 1)
 
     def check_time():
@@ -573,13 +581,13 @@ def buckling(panel, material, load_cases, cutout, settings: StabilitySettings, a
 
     def holed(spec):
         check_time()
-        return _holed_level(panel, material, remote, cutout, spec, support, n_modes)
+        return _holed_level(panel, material, remote, cutout, spec, support, n_modes, fields)
 
     key = ("unperforated panel", panel, material, tuple(load_cases), support, n_modes, level.name)
     plain = None if cache is None else cache.get(key)
     if plain is None:
         check_time()
-        plain = _plain_panel(panel, material, remote, level, support, n_modes)
+        plain = _plain_panel(panel, material, remote, level, support, n_modes, fields)
         if cache is not None:
             cache[key] = plain
     plain_runs, plain_res, plain_refinements = plain

@@ -15,6 +15,7 @@ from typing import Any
 from holeshape.errors import GeometryError, StudyError
 
 EDGES = ("traction", "displacement")
+SHEAR_DISTRIBUTIONS = ("uniform", "parabolic")
 MEASURES = ("von_mises", "max_principal", "hoop")
 ACCURACIES = ("draft", "standard", "fine")
 EDGE_SUPPORTS = ("simply_supported", "clamped")
@@ -62,6 +63,16 @@ class Panel:
     height: float
     thickness: float
     edges: str = "traction"
+    # the beam section a web panel belongs to (for load cases given as shear force and bending moment): second
+    # moment of area of the whole section (mm^4), its neutral axis (mm, panel y; None: mid-height), and how the web
+    # carries the shear ("uniform": built-up beam, caps take the bending; "parabolic": a solid rectangular section)
+    section_inertia: float | None = None
+    neutral_axis_y: float | None = None
+    shear_distribution: str = "uniform"
+
+    @property
+    def neutral_axis(self) -> float:
+        return self.height / 2 if self.neutral_axis_y is None else self.neutral_axis_y
 
 
 @dataclass(frozen=True)
@@ -77,12 +88,19 @@ class Material:
 
 @dataclass(frozen=True)
 class LoadCase:
-    """Uniform remote in-plane stress state, MPa."""
+    """Uniform remote in-plane stress state, MPa; or, for a beam web, the shear force (N) and the bending moment
+    (N mm, at the panel's x-centre; it varies along x as dM/dx = V) of the beam the panel belongs to."""
 
     name: str
     sigma_x: float = 0.0
     sigma_y: float = 0.0
     tau_xy: float = 0.0
+    shear_force: float | None = None
+    bending_moment: float | None = None
+
+    @property
+    def is_beam(self) -> bool:
+        return self.shear_force is not None or self.bending_moment is not None
 
     @property
     def components(self) -> tuple[float, float, float]:
@@ -354,12 +372,16 @@ def parse_study(doc: dict, source: str = "") -> Study:
         raise StudyError(f"title must be a string, got {title!r}")
 
     p = _table(doc, "panel")
-    _unknown(p, ("width", "height", "thickness", "edges"), "panel.")
+    _unknown(p, ("width", "height", "thickness", "edges", "section_inertia", "neutral_axis_y", "shear_distribution"),
+             "panel.")
     panel = Panel(
         width=_number(p, "width", "panel.", positive=True),
         height=_number(p, "height", "panel.", positive=True),
         thickness=_number(p, "thickness", "panel.", positive=True),
         edges=_string(p, "edges", "panel.", EDGES, default="traction"),
+        section_inertia=_number(p, "section_inertia", "panel.", default=None, positive=True),
+        neutral_axis_y=_number(p, "neutral_axis_y", "panel.", default=None),
+        shear_distribution=_string(p, "shear_distribution", "panel.", SHEAR_DISTRIBUTIONS, default="uniform"),
     )
 
     m = _table(doc, "material")
@@ -385,7 +407,11 @@ def parse_study(doc: dict, source: str = "") -> Study:
     load_cases = []
     for i, c in enumerate(cases):
         where = f"load_case[{i}]."
-        _unknown(c, ("name", "sigma_x", "sigma_y", "tau_xy"), where)
+        _unknown(c, ("name", "sigma_x", "sigma_y", "tau_xy", "shear_force", "bending_moment"), where)
+        if any(k in c for k in ("shear_force", "bending_moment")):
+            lc = _beam_case(c, i, where, panel)
+            load_cases.append(lc)
+            continue
         lc = LoadCase(
             name=_string(c, "name", where, default=f"load case {i + 1}"),
             sigma_x=_number(c, "sigma_x", where, default=0.0),
@@ -444,6 +470,39 @@ def parse_study(doc: dict, source: str = "") -> Study:
                              " constraints.min_buckling_factor (with [stability])")
     return Study(title=title, panel=panel, material=material, load_cases=tuple(load_cases), cutout=cutout,
                  measure=measure, constraints=constraints, search=search, source=source, stability=stability)
+
+
+def _beam_case(c: dict, i: int, where: str, panel: Panel) -> LoadCase:
+    """A load case given by the beam's shear force and bending moment, checked against the panel's section."""
+    mixed = [k for k in ("sigma_x", "sigma_y", "tau_xy") if k in c]
+    if mixed:
+        raise StudyError(f"load_case[{i}] mixes remote stresses ({', '.join(mixed)}) with beam forces (shear_force,"
+                         " bending_moment); give one kind per load case (a study may mix both kinds of case)")
+    lc = LoadCase(name=_string(c, "name", where, default=f"load case {i + 1}"),
+                  shear_force=_number(c, "shear_force", where, default=0.0),
+                  bending_moment=_number(c, "bending_moment", where, default=0.0))
+    if lc.shear_force == 0.0 and lc.bending_moment == 0.0:
+        raise StudyError(f"load_case[{i}] ({lc.name!r}) has no load: give shear_force (N) and/or bending_moment"
+                         " (N mm), non-zero")
+    if panel.section_inertia is None:
+        raise StudyError(f"load_case[{i}] ({lc.name!r}) gives beam forces but panel.section_inertia is missing (mm^4,"
+                         " the second moment of area of the whole beam section about its neutral axis)")
+    if panel.edges != "traction":
+        raise StudyError(f"load_case[{i}] ({lc.name!r}) gives beam forces, which load the panel edges as tractions:"
+                         f' panel.edges must be "traction", got {panel.edges!r}')
+    na = panel.neutral_axis
+    if not 0.0 <= na <= panel.height:
+        raise StudyError(f"panel.neutral_axis_y = {na!r} mm must lie within the panel height (0 to"
+                         f" {panel.height:g} mm)")
+    if panel.shear_distribution == "parabolic":
+        solid = panel.thickness * panel.height ** 3 / 12.0
+        if abs(na - panel.height / 2) > 1e-9 * panel.height or abs(panel.section_inertia / solid - 1) > 0.01:
+            raise StudyError(
+                f'panel.shear_distribution = "parabolic" is the solid rectangular section (the panel is the whole'
+                f" section): it needs the neutral axis at mid-height and panel.section_inertia = t h^3 / 12 ="
+                f" {solid:.6g} mm^4, got {panel.section_inertia!r} mm^4 with the neutral axis at {na:g} mm; use"
+                ' "uniform" for a web between caps')
+    return lc
 
 
 def _parse_stability(c: dict) -> StabilitySettings:

@@ -278,8 +278,14 @@ def section_inputs(page: Page, inputs: RunInputs) -> None:
                                 ("edges", "edge condition")])
     page.table([inputs.material], [("name", "material"), ("youngs_modulus", "E (MPa)"),
                                    ("poisson_ratio", "Poisson's ratio"), ("allowable_stress", "allowable (MPa)")])
-    page.table(list(inputs.load_cases), [("name", "load case"), ("sigma_x", "sigma_x (MPa)"),
-                                         ("sigma_y", "sigma_y (MPa)"), ("tau_xy", "tau_xy (MPa)")])
+    page.table(list(inputs.load_cases), load_case_columns(inputs.load_cases))
+    if any(c.get("shear_force") is not None or c.get("bending_moment") is not None for c in inputs.load_cases):
+        p = inputs.panel
+        page.para(f"Beam load cases: the web belongs to a beam section of second moment of area "
+                  f"{p.get('section_inertia'):.6g} mm^4 about a neutral axis at y = "
+                  f"{p.get('neutral_axis_y') if p.get('neutral_axis_y') is not None else p['height'] / 2:g} mm; the "
+                  f"edge tractions follow the beam theory (sigma_x = M y / I with dM/dx = V, the moment given at the "
+                  f"panel's x-centre), shear carried {p.get('shear_distribution', 'uniform')}.")
     cons = describe_constraints(inputs.constraints)
     if cons:
         page.table(cons, [("constraint", "requirement"), ("value", "value")])
@@ -328,6 +334,15 @@ def section_recommendation(page: Page, b: DesignCheck) -> None:
     for w in b.warnings:
         page.para("WARNING: " + w, "warn")
     page.img("best_shape.png", "recommended profile in the panel with the access envelope and the standard shapes")
+
+
+def load_case_columns(cases) -> list[tuple[str, str]]:
+    """The load-case table's columns: remote stresses, and beam forces where a case gives them."""
+    cols = [("name", "load case"), ("sigma_x", "sigma_x (MPa)"), ("sigma_y", "sigma_y (MPa)"),
+            ("tau_xy", "tau_xy (MPa)")]
+    if any(c.get("shear_force") is not None or c.get("bending_moment") is not None for c in cases):
+        cols += [("shear_force", "shear force (N)"), ("bending_moment", "bending moment (N mm)")]
+    return cols
 
 
 def describe_sizes(sizes: dict) -> str:
@@ -475,8 +490,7 @@ def build_sweep_report(run: Path, fmt: str = "html") -> Path:
     page.h2(SWEEP_SECTIONS[1])
     page.table([inputs.panel], [("width", "width (mm)"), ("height", "height (mm)"), ("thickness", "thickness (mm)"),
                                 ("edges", "edge condition")])
-    page.table(list(inputs.load_cases), [("name", "load case"), ("sigma_x", "sigma_x (MPa)"),
-                                         ("sigma_y", "sigma_y (MPa)"), ("tau_xy", "tau_xy (MPa)")])
+    page.table(list(inputs.load_cases), load_case_columns(inputs.load_cases))
     page.h2(SWEEP_SECTIONS[2])
     page.img("sweep.png", "the swept quantities against the varied parameters")
     rows = [{"point": ", ".join(f"{k} = {v:.4g}" for k, v in pt["coords"].items()), **pt} for pt in sweep.points]

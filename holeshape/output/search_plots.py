@@ -47,9 +47,8 @@ def plot_history(path: Path, trials, title: str, goal: str = "lowest_peak") -> P
         ax.plot(failed, np.full(len(failed), ymark), "s", ms=4, mfc="none", color="C1", clip_on=False,
                 label=f"failed ({len(failed)})")
     ax.set_xlabel("trial")
-    ax.set_ylabel({"largest_opening": "removed area (mm^2)",
-                   "lightest_reinforcement": "reinforcement volume (cm^3)"}.get(goal,
-                                                                                 "peak stress over all load cases (MPa)"))
+    labels = {"largest_opening": "removed area (mm^2)", "lightest_reinforcement": "reinforcement volume (cm^3)"}
+    ax.set_ylabel(labels.get(goal, "peak stress over all load cases (MPa)"))
     ax.grid(True, alpha=0.3)
     ax.legend(fontsize=8, loc="upper right")
     ax.set_title(f"{title}: search history")

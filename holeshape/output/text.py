@@ -87,8 +87,32 @@ def _fmt_mos(m: float | None) -> str:
     return "n/a (no allowable given)" if m is None else f"{m:+.3f}{'  << NEGATIVE' if m < 0 else ''}"
 
 
+SHEAR_NOTES = {"uniform": "the web carries the whole shear force, nearly evenly (built-up beam; the caps carry most"
+                           " of the bending)",
+               "parabolic": "parabolic shear over the depth (the panel is a solid rectangular section)"}
+
+
+def beam_lines(ev: Evaluation, beam_cases: dict) -> list[str]:
+    """The beam-load block: each beam case's forces, the reference stress and the tee sections' mean stresses.
+    ``beam_cases``: name -> (shear force N, bending moment N mm, shear distribution)."""
+    if not beam_cases:
+        return []
+    lines = ["", "  beam loads    edge tractions from the beam theory stresses (sigma_x = M y / I, dM/dx = V); Kt"
+                 f" reference: {ev.kt_reference if 'beam' in ev.kt_reference else 'see each case'}"]
+    for r in ev.load_cases:
+        if r.name not in beam_cases:
+            continue
+        v, m, dist = beam_cases[r.name]
+        lines.append(f"    {r.name}: V = {v:g} N, M = {m:g} N mm at the panel's x-centre; {SHEAR_NOTES[dist]};"
+                     f" reference stress {r.reference_stress_mpa:.2f} MPa")
+        lines.append(f"      tee above the opening: mean sigma_x {r.tee_above_mpa:.2f} MPa, mean shear"
+                     f" {r.tee_above_shear_mpa:.2f} MPa; below: {r.tee_below_mpa:.2f} MPa, {r.tee_below_shear_mpa:.2f}"
+                     " MPa")
+    return lines
+
+
 def check_summary(title: str, family: str, params: dict, ev: Evaluation, edges_note: str,
-                  requirements: list[dict] | None = None) -> str:
+                  requirements: list[dict] | None = None, beam_cases: dict | None = None) -> str:
     label = STRESS_LABELS[ev.stress_measure]
     lines = [
         f"holeshape check: {title}",
@@ -114,6 +138,7 @@ def check_summary(title: str, family: str, params: dict, ev: Evaluation, edges_n
         f"  ligament      narrowest {lig.width_mm:.1f} mm, to the {lig.edge} edge (net-section stress per load case"
         " above: mean normal stress across it)",
     ]
+    lines += beam_lines(ev, beam_cases or {})
     if ev.reinforcement is not None:
         lines += reinforcement_lines(ev)
     if ev.stability is not None:
