@@ -27,6 +27,7 @@ BUG_REPORT = ("this is a bug in holeshape, not in your study: please report it w
 EDGE_NOTES = {
     "traction": "remote stress applied as edge tractions",
     "displacement": "remote strain imposed on the panel edges",
+    "beam": "edge tractions from the beam-theory stresses (and the remote stresses of any other case)",
 }
 
 
@@ -185,8 +186,8 @@ def _check(args) -> int:
         if not args.quiet:
             beam = {lc.name: (lc.shear_force or 0.0, lc.bending_moment or 0.0, study.panel.shear_distribution)
                     for lc in study.load_cases if lc.is_beam}
-            print(check_summary(study.title, cutout.family, cutout.parameters(), ev, EDGE_NOTES[study.panel.edges],
-                                requirements, beam))
+            note = EDGE_NOTES["beam" if beam else study.panel.edges]
+            print(check_summary(study.title, cutout.family, cutout.parameters(), ev, note, requirements, beam))
             for p in plots:
                 print(f"  plot          {p}")
         else:
