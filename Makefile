@@ -19,6 +19,7 @@ demo: $(STAMP)
 	$(VENV)/bin/holeshape optimise studies/rib-web-lightening.toml --out runs/rib-web-lightening
 	$(VENV)/bin/holeshape optimise studies/floor-beam-flanged-access.toml --out runs/floor-beam-flanged-access
 	$(VENV)/bin/holeshape check studies/floor-beam-service-opening.toml --plots runs/floor-beam-service-opening
+	$(VENV)/bin/holeshape optimise studies/floor-beam-lightening-row.toml --out runs/floor-beam-lightening-row
 
 test: $(STAMP)
 	$(PY) -m pytest

@@ -160,7 +160,7 @@ def _check(args) -> int:
 
         gov = [r.name for r in ev.load_cases].index(ev.governing_load_case)
         size = (study.panel.width, study.panel.height)
-        outline = cutout.polygon(720).T
+        outline = [o.T for o in cutout.outlines(720)]
         plots = [str(p) for p in (
             P.plot_stress_field(plot_dir / "stress_field.png", ev, fields, outline, gov, size, study.title),
             P.plot_boundary_stress(plot_dir / "boundary_stress.png", ev, fields, study.material.allowable_stress,

@@ -120,11 +120,18 @@ FLANGE = "flange"
 DOUBLER = "doubler at the cutout edge"
 
 
+def opening_name(k: int) -> str:
+    """The location name of the k-th opening (from 0) of a row, in order along it."""
+    return f"opening {k + 1}"
+
+
 def location_values(sol: PanelSolution, stress: str, reinforcement, material: Material
                     ) -> dict[str, tuple[BoundaryStress, np.ndarray]]:
     """The chosen measure (n, m) along every place a peak is looked for, by location name: the cutout edge, and
     with a reinforcement the web at a ring's outer edge, the flange's own axial stress, or a doubler of another
     modulus at the cutout edge."""
+    if len(sol.members) > 1:  # a row: every opening's edge
+        return {opening_name(k): (bs, measure_values(bs, stress)) for k, bs in enumerate(sol.members)}
     out = {CUTOUT_EDGE: (sol.cutout, measure_values(sol.cutout, stress))}
     if reinforcement is None:
         return out
@@ -239,6 +246,7 @@ class Evaluation:
     warnings: tuple[str, ...] = ()
     stability: StabilityResult | None = None
     reinforcement: ReinforcementResult | None = None
+    ligaments_between_mm: tuple[float, ...] = ()  # a row: the web between each pair of neighbouring openings
 
     @property
     def within_target(self) -> bool:
@@ -257,15 +265,18 @@ class Evaluation:
         d["load_cases"] = [asdict(c) for c in self.load_cases]
         d["levels"] = [{"dofs": n, "peak_stress_mpa": p} for n, p in self.levels]
         d["within_accuracy_target"] = self.within_target
+        if not self.ligaments_between_mm:
+            d.pop("ligaments_between_mm")
         if all(c["tee_above_mpa"] is None for c in d["load_cases"]):  # no beam case: the JSON as it was
             for c in d["load_cases"]:
                 for k in TEE_KEYS:
                     c.pop(k)
         if self.reinforcement is None:  # a bare opening keeps its JSON as it was
             d.pop("reinforcement")
-            for c in d["load_cases"]:
-                c.pop("peak_location")
-                c.pop("locations")
+            if not any(c["locations"] for c in d["load_cases"]):
+                for c in d["load_cases"]:
+                    c.pop("peak_location")
+                    c.pop("locations")
         if self.stability is None:  # a study without [stability] keeps its JSON as it was
             d.pop("stability")
             for c in d["load_cases"]:
@@ -340,7 +351,7 @@ def evaluate(panel: Panel, material: Material, load_cases: tuple[LoadCase, ...],
         refinements += 1
     pm, sol, peaks, places = runs[-1]
     pm_c, sol_c, peaks_c, places_c = runs[-2]
-    hoop = sol.cutout.hoop
+    hoop = np.concatenate([bs.hoop for bs in (sol.members or (sol.cutout,))])
     lig = narrowest_ligament(panel, cutout, pm, sol)
     tees = tee_sections(panel, cutout, pm, sol) if any(f is not None for f in fields) else None
     results = []
@@ -354,7 +365,8 @@ def evaluate(panel: Panel, material: Material, load_cases: tuple[LoadCase, ...],
         mos = material.allowable_stress / peak - 1.0 if material.allowable_stress else None
         locs = tuple(LocationPeak(name, pk[j][0], float(bs.xy[0, pk[j][1]]), float(bs.xy[1, pk[j][1]]),
                                   error_estimate_pct(pk[j][0], places_c[name][1][j][0], level.floor_pct))
-                     for name, (bs, pk) in places.items()) if cutout.reinforcement is not None else ()
+                     for name, (bs, pk) in places.items()) \
+            if cutout.reinforcement is not None or cutout.count > 1 else ()
         at = places[where][0]
         results.append(LoadCaseResult(
             name=lc.name, peak_stress_mpa=peak, kt=peak / ref if ref > 0 else math.inf,
@@ -398,10 +410,14 @@ def evaluate(panel: Panel, material: Material, load_cases: tuple[LoadCase, ...],
         accuracy_target_pct=level.target_pct, model=region.name,
         levels=tuple((r[1].dofs, r[2][gov][0]) for r in reversed(runs)), refinements=refinements,
         min_radius_mm=cutout.min_radius, ligament=lig, edges=panel.edges, warnings=tuple(warnings), stability=stab,
-        reinforcement=reinforcement_result(cutout, panel, material, results))
+        reinforcement=reinforcement_result(cutout, panel, material, results),
+        ligaments_between_mm=neighbour_ligaments(cutout))
     if keep_fields:
-        full = mirror_to_full(sol.cutout, region)
-        full_c = mirror_to_full(sol_c.cutout, region)
+        k = 0
+        if sol.members:  # a row: the edge of the opening that governs
+            k = int(g.peak_location.split()[-1]) - 1
+        full = mirror_to_full(sol.members[k] if sol.members else sol.cutout, region)
+        full_c = mirror_to_full(sol_c.members[k] if sol_c.members else sol_c.cutout, region)
         r = cutout.reinforcement
         ring = mirror_to_full(sol.ring_edge, region) if sol.ring_edge is not None else None
         flange = member_stress(full, material.youngs_modulus, material.poisson_ratio,
@@ -409,6 +425,14 @@ def evaluate(panel: Panel, material: Material, load_cases: tuple[LoadCase, ...],
         return ev, EvaluationFields(panel_mesh=pm, solution=sol, boundary=full, coarse_boundary=full_c,
                                     stability=stab_fields, ring_boundary=ring, flange_stress=flange)
     return ev
+
+
+def neighbour_ligaments(cutout: Cutout) -> tuple[float, ...]:
+    """The width of web (mm) between each pair of neighbouring openings of a row (empty for one opening)."""
+    from shapely.geometry import Polygon
+
+    polys = [Polygon(p) for p in cutout.outlines(720)]
+    return tuple(float(a.distance(b)) for a, b in zip(polys, polys[1:]))
 
 
 def reinforcement_result(cutout: Cutout, panel: Panel, material: Material, results) -> ReinforcementResult | None:
@@ -484,7 +508,7 @@ def mirror_to_full(bs: BoundaryStress, region: Region) -> BoundaryStress:
 
 # ----- net-section stress across the narrowest ligament ----------------------------------------------------------
 def narrowest_ligament(panel: Panel, cutout: Cutout, pm, sol: PanelSolution, n_points: int = 24) -> Ligament:
-    pts = cutout.sampling.points
+    pts = np.concatenate([m.sampling.points for m in cutout.members], axis=1)
     W, H = panel.width, panel.height
     gaps = cutout.edge_gaps(W, H)
     nearest = {"left": np.argmin(pts[0]), "right": np.argmax(pts[0]), "bottom": np.argmin(pts[1]),
@@ -509,9 +533,11 @@ def tee_sections(panel: Panel, cutout: Cutout, pm, sol: PanelSolution, n_points:
     vertical section through its centre (the tee sections of a beam web), MPa."""
     from shapely.geometry import LineString, Polygon
 
-    xc = cutout.center[0]
-    cut = LineString([(xc, 0.0), (xc, panel.height)]).intersection(Polygon(cutout.polygon(720)))
-    ys = np.asarray(cut.bounds)[[1, 3]] if not cut.is_empty else np.array([cutout.center[1]] * 2)
+    members = cutout.members
+    middle = members[len(members) // 2]  # a row: the opening at (or just past) its middle
+    xc = middle.center[0]
+    cut = LineString([(xc, 0.0), (xc, panel.height)]).intersection(Polygon(middle.polygon(720)))
+    ys = np.asarray(cut.bounds)[[1, 3]] if not cut.is_empty else np.array([middle.center[1]] * 2)
     g, w = np.polynomial.legendre.leggauss(n_points)
     f = 0.5 * (g + 1.0)
     parts = {}

@@ -99,6 +99,8 @@ class PanelMesh:
     ring_facets: np.ndarray | None = field(default=None, repr=False)
     ring_outside: np.ndarray | None = field(default=None, repr=False)
     ring_s: np.ndarray | None = field(default=None, repr=False)
+    # every opening of a row as (facets, flip, s, t) like cutout_* above (the first is cutout_*); one for one opening
+    members: tuple = field(default=(), repr=False)
 
     @property
     def n_elements(self) -> int:
@@ -228,10 +230,11 @@ def mesh_panel(width: float, height: float, cutout: Cutout, region: Region, spec
     of the mesh and the ring's elements are listed (``PanelMesh.ring_elements``). The caller has checked that the
     cutout lies inside the panel and that ``region`` matches its symmetry.
     """
-    from skfem import MeshTri1
 
     h_max = spec.max_fraction * min(width, height)
     closed = region.name == "full"
+    if cutout.count > 1:
+        return _mesh_row(width, height, cutout, region, spec, h_max)
     t_ring, xy_ring, node_h = _arc_points(cutout, region, spec, h_max, width, height)
     r = cutout.reinforcement
     outer = None
@@ -313,25 +316,77 @@ def mesh_panel(width: float, height: float, cutout: Cutout, region: Region, spec
         raise MeshError(f"gmsh could not mesh the panel around the {cutout.family} cutout: {err}") from err
     finally:
         gmsh.clear()
-    enodes = np.concatenate(tris)
-    # gmsh arrays are flat: coords (3n,), triangle node tags (3m,); scikit-fem wants p (2, n), t (3, m)
-    order = np.argsort(node_tags)
-    tags_sorted = node_tags[order]
-    tri = order[np.searchsorted(tags_sorted, enodes)].reshape(-1, 3).T
-    used = np.unique(tri)  # compact: no orphan nodes in the stiffness matrix
-    remap = np.full(node_tags.size, -1, dtype=np.int64)
-    remap[used] = np.arange(used.size)
-    p = coords.reshape(-1, 3)[used, :2].T.copy()
-    t = remap[tri]
-    # counter-clockwise triangles
-    d = (p[0, t[1]] - p[0, t[0]]) * (p[1, t[2]] - p[1, t[0]]) - (p[1, t[1]] - p[1, t[0]]) * (p[0, t[2]] - p[0, t[0]])
-    t[[1, 2]] = np.where(d < 0, t[[2, 1]], t[[1, 2]])
-    linear = MeshTri1(p, np.ascontiguousarray(t))
-    pm = _curve_cutout(linear, cutout, xy_ring, t_ring, closed, region, width, height, spec.curved)
+    linear = _linear_mesh(node_tags, coords, np.concatenate(tris))
+    t = linear.t
+    pm = _curve_cutout(linear, [cutout], [xy_ring], [t_ring], closed, region, width, height, spec.curved)
     if outer is None:
         return pm
     ring_elements = np.arange(t.shape[1] - n_ring, t.shape[1])
     return _with_ring(pm, outer, xy_off, t_off, ring_elements, spec.curved)
+
+
+def _linear_mesh(node_tags, coords, enodes):
+    """``MeshTri1`` from gmsh's flat arrays: coords (3n,), triangle node tags (3m,) -> p (2, n), t (3, m), compact
+    (no orphan nodes in the stiffness matrix), counter-clockwise."""
+    from skfem import MeshTri1
+
+    order = np.argsort(node_tags)
+    tags_sorted = node_tags[order]
+    tri = order[np.searchsorted(tags_sorted, enodes)].reshape(-1, 3).T
+    used = np.unique(tri)
+    remap = np.full(node_tags.size, -1, dtype=np.int64)
+    remap[used] = np.arange(used.size)
+    p = coords.reshape(-1, 3)[used, :2].T.copy()
+    t = remap[tri]
+    d = (p[0, t[1]] - p[0, t[0]]) * (p[1, t[2]] - p[1, t[0]]) - (p[1, t[1]] - p[1, t[0]]) * (p[0, t[2]] - p[0, t[0]])
+    t[[1, 2]] = np.where(d < 0, t[[2, 1]], t[[1, 2]])
+    return MeshTri1(p, np.ascontiguousarray(t))
+
+
+def _mesh_row(width: float, height: float, cutout: Cutout, region: Region, spec: MeshSpec, h_max: float
+              ) -> PanelMesh:
+    """The whole panel minus every opening of a row (no mirror reduction, no ring: the study refuses those)."""
+    if region.name != "full":
+        raise MeshError("a row of openings is meshed as the whole panel")
+    members = cutout.members
+    arcs = [_arc_points(m, region, spec, h_max, width, height) for m in members]
+    gmsh = gmsh_session()
+    gmsh.clear()
+    gmsh.model.add("panel")
+    geo = gmsh.model.geo
+    try:
+        corners = [geo.addPoint(x, y, 0) for x, y in ((0, 0), (width, 0), (width, height), (0, height))]
+        loops = [geo.addCurveLoop([geo.addLine(corners[i], corners[(i + 1) % 4]) for i in range(4)])]
+        all_pts, all_h, holes = [], [], []
+        for _, xy, node_h in arcs:
+            pts = [geo.addPoint(float(x), float(y), 0.0) for x, y in xy.T]
+            lines = [geo.addLine(pts[i], pts[(i + 1) % len(pts)]) for i in range(len(pts))]
+            loops.append(geo.addCurveLoop(lines))
+            holes += lines
+            all_pts += pts
+            all_h.append(node_h)
+        surface = geo.addPlaneSurface(loops)
+        geo.synchronize()
+        for line in holes:
+            gmsh.model.mesh.setTransfiniteCurve(line, 2)
+        _size_field(gmsh, all_pts, np.concatenate(all_h), spec.growth, h_max)
+        gmsh.option.setNumber("Mesh.MeshSizeFromPoints", 0)
+        gmsh.option.setNumber("Mesh.MeshSizeFromCurvature", 0)
+        gmsh.option.setNumber("Mesh.MeshSizeExtendFromBoundary", 0)
+        gmsh.option.setNumber("Mesh.MeshSizeMax", h_max)
+        gmsh.option.setNumber("Mesh.Algorithm", 6)
+        gmsh.model.mesh.generate(2)
+        node_tags, coords, _ = gmsh.model.mesh.getNodes()
+        etypes, _, enodes = gmsh.model.mesh.getElements(2, surface)
+    except Exception as err:  # gmsh raises bare Exception
+        raise MeshError(f"gmsh could not mesh the panel around the row of {cutout.family} cutouts: {err}") from err
+    finally:
+        gmsh.clear()
+    if len(etypes) != 1 or etypes[0] != 2:
+        raise MeshError(f"gmsh returned element types {list(etypes)}, expected 3-node triangles only")
+    linear = _linear_mesh(node_tags, coords, enodes[0])
+    return _curve_cutout(linear, members, [a[1] for a in arcs], [a[0] for a in arcs], True, region, width, height,
+                         spec.curved)
 
 
 def _chain_facets(linear, xy_ring, closed: bool, scale: float) -> tuple[np.ndarray, np.ndarray]:
@@ -414,23 +469,27 @@ def _size_field(gmsh, points: list[int], node_h: np.ndarray, growth: float, h_ma
     fld.setAsBackgroundMesh(low)
 
 
-def _curve_cutout(linear, cutout: Cutout, xy_ring, t_ring, closed, region, width, height,
+def _curve_cutout(linear, cutouts: list, xy_rings: list, t_rings: list, closed, region, width, height,
                   curved: bool = True) -> PanelMesh:
+    """The quadratic mesh with every opening's mid-side nodes on its exact curve, and its named boundaries."""
     from dataclasses import replace
 
     from skfem import MeshTri2
 
     p = linear.p
     scale = max(width, height)
-    cut_facets, flip = _chain_facets(linear, xy_ring, closed, scale)
     facets = linear.facets
-    t_nodes, s_nodes = _arc_s(cutout, t_ring, closed)
     quad = MeshTri2.from_mesh(linear)
     doflocs = quad.doflocs.copy()
-    mid_dofs = quad.dofs.facet_dofs[0, cut_facets]  # the one mid-side DOF of each P2 facet
-    if curved:
-        doflocs[:, mid_dofs] = _curved_midpoints(cutout, s_nodes)
+    members = []
+    for cutout, xy_ring, t_ring in zip(cutouts, xy_rings, t_rings):
+        cut_facets, flip = _chain_facets(linear, xy_ring, closed, scale)
+        t_nodes, s_nodes = _arc_s(cutout, t_ring, closed)
+        if curved:
+            doflocs[:, quad.dofs.facet_dofs[0, cut_facets]] = _curved_midpoints(cutout, s_nodes)
+        members.append((cut_facets, flip, s_nodes - s_nodes[0], t_nodes))
     quad = replace(quad, doflocs=doflocs)
+    cut_facets, flip, s0, t0 = members[0]
 
     mid = p[:, facets].mean(axis=1)  # (2, nf) midpoints of straight facets
     bnd = quad.boundary_facets()
@@ -442,10 +501,10 @@ def _curve_cutout(linear, cutout: Cutout, xy_ring, t_ring, closed, region, width
         "top": bnd[np.abs(mid[1, bnd] - height) < tol],
         "mirror_h": bnd[np.abs(mid[1, bnd] - region.y0) < tol] if region.mirror_h else np.array([], dtype=np.int64),
         "mirror_v": bnd[np.abs(mid[0, bnd] - region.x0) < tol] if region.mirror_v else np.array([], dtype=np.int64),
-        "cutout": np.sort(cut_facets),
+        "cutout": np.sort(np.concatenate([m[0] for m in members])),
     }
-    return PanelMesh(mesh=quad, boundaries=names, cutout_facets=cut_facets, cutout_flip=flip,
-                     cutout_s=s_nodes - s_nodes[0], cutout_t=t_nodes, region=region, closed=closed)
+    return PanelMesh(mesh=quad, boundaries=names, cutout_facets=cut_facets, cutout_flip=flip, cutout_s=s0,
+                     cutout_t=t0, region=region, closed=closed, members=tuple(members))
 
 
 def mesh_from_gmsh(gmsh, surface: int):

@@ -411,13 +411,14 @@ def write_plots(out_dir: Path, study_def, trials, best: Candidate, usable_baseli
                                  {f: e.peak_stress_mpa for f, _, e in usable_baselines}),
     ]
     gov = [r.name for r in ev.load_cases].index(ev.governing_load_case)
-    paths.append(plots.plot_stress_field(out_dir / "best_stress_field.png", ev, fields, cut.polygon(720).T, gov, size,
+    outlines = [o.T for o in cut.outlines(720)]
+    paths.append(plots.plot_stress_field(out_dir / "best_stress_field.png", ev, fields, outlines, gov, size,
                                          study_def.title))
     paths.append(plots.plot_boundary_stress(out_dir / "best_boundary_stress.png", ev, fields,
                                             study_def.material.allowable_stress, study_def.title))
     if ev.stability is not None:
         paths.append(plots.plot_buckling_mode(out_dir / "best_buckling_mode.png", ev.stability, fields.stability,
-                                              cut.polygon(720).T, study_def.panel, study_def.title))
+                                              [o.T for o in cut.outlines(720)], study_def.panel, study_def.title))
     files.write_vtk(out_dir / "best_stress_field.vtu", fields, [r.name for r in ev.load_cases])
     return paths
 

@@ -347,6 +347,7 @@ class PanelSolution:
     youngs_modulus: float
     poisson_ratio: float
     ring_edge: BoundaryStress | None = field(default=None, repr=False)  # the web just outside a ring's outer edge
+    members: tuple = field(default=(), repr=False)  # BoundaryStress of every opening of a row (the first is cutout)
 
     @property
     def dofs(self) -> int:
@@ -436,8 +437,12 @@ def solve_panel(pm, youngs_modulus: float, poisson_ratio: float, remote: np.ndar
     ring_edge = boundary_stress(mesh, u, pm.ring_facets, youngs_modulus, poisson_ratio, closed=pm.closed,
                                 s_nodes=pm.ring_s, elements=pm.ring_outside) \
         if recover and pm.ring_facets is not None else None
+    members = ()
+    if recover and len(pm.members) > 1:
+        members = (cut,) + tuple(boundary_stress(mesh, u, f, youngs_modulus, poisson_ratio, closed=True, s_nodes=s_m)
+                                 for f, _, s_m, _ in pm.members[1:])
     return PanelSolution(basis=basis, u=u, cutout=cut, youngs_modulus=youngs_modulus, poisson_ratio=poisson_ratio,
-                         ring_edge=ring_edge)
+                         ring_edge=ring_edge, members=members)
 
 
 def member_stress(bs: BoundaryStress, youngs_modulus: float, poisson_ratio: float, member_modulus: float

@@ -29,6 +29,7 @@ SHAPE_PARAMETERS: dict[str, tuple[str, ...]] = {
     "spline": ("radii", "symmetry"),
 }
 COMMON_CUTOUT_KEYS = ("shape", "center", "rotation")
+ROW_KEYS = ("count", "pitch", "direction")  # a row of copies of one opening
 REINFORCEMENT_KEYS = ("kind", "height", "width", "thickness", "youngs_modulus")
 REINFORCEMENT_PREFIX = "reinforcement."  # cutout values of the [reinforcement] table: "reinforcement.height", ...
 
@@ -160,7 +161,7 @@ class CutoutSpec:
         shape.check()
         center = vals["center"]
         cutout = Cutout(shape=shape, center=(float(center[0]), float(center[1])), rotation=float(vals["rotation"]),
-                        reinforcement=build_reinforcement(vals))
+                        reinforcement=build_reinforcement(vals), row=build_row(vals))
         if cutout.reinforcement is not None:
             from holeshape.geometry.reinforcement import check_formable
 
@@ -173,6 +174,27 @@ class CutoutSpec:
 
     def without_reinforcement(self) -> CutoutSpec:
         return CutoutSpec(self.shape, {k: v for k, v in self.values.items() if not k.startswith(REINFORCEMENT_PREFIX)})
+
+
+def build_row(values: dict):
+    """The :class:`~holeshape.geometry.base.Row` of a cutout's numeric values (None for one opening)."""
+    from holeshape.geometry.base import Row
+
+    count = int(values.get("count", 1))
+    if count == 1:
+        return None
+    pitch = float(values["pitch"])
+    if not (math.isfinite(pitch) and pitch > 0):
+        raise GeometryError(f"cutout.pitch must be a finite number > 0 mm, got {pitch!r}")
+    return Row(count=count, pitch=pitch, direction=float(values.get("direction", 0.0)))
+
+
+def nominal_row(values: dict):
+    """The row of a cutout's values with a searched pitch at its ``value`` (else mid-range): for the standard
+    shapes. None for one opening."""
+    vals = {k: (v.value if v.value is not None else 0.5 * (v.min + v.max)) if isinstance(v, Range) else v
+            for k, v in values.items() if k in ROW_KEYS}
+    return build_row(vals)
 
 
 def nominal_reinforcement(values: dict):
@@ -428,6 +450,9 @@ def parse_study(doc: dict, source: str = "") -> Study:
         raise StudyError(f"load_case names must be unique, got {dup[0]!r} more than once")
 
     reinforcement = _parse_reinforcement(_table(doc, "reinforcement"), panel) if "reinforcement" in doc else {}
+    if isinstance(doc.get("cutout"), list):
+        raise StudyError(f"[[cutout]] is given {len(doc['cutout'])} times: several separately shaped openings are not"
+                         " supported yet; give one [cutout] table, with count = ..., pitch = ... for a row of copies")
     cutout = _parse_cutout(_table(doc, "cutout"), panel, reinforcement)
 
     ms = _table(doc, "measure", required=False)
@@ -446,6 +471,9 @@ def parse_study(doc: dict, source: str = "") -> Study:
     if constraints.min_margin is not None and material.allowable_stress is None:
         raise StudyError(f"constraints.min_margin = {constraints.min_margin!r} needs material.allowable_stress (MPa)"
                          " to measure the margin of safety against")
+    if constraints.access is not None and "count" in cutout.values:
+        raise StudyError(f"constraints.access with a row of {cutout.values['count']} openings (cutout.count): an access"
+                         " envelope belongs to one opening; give the row without it, or a single opening")
     for name in ("max_added_mass", "max_reinforcement_area"):
         if getattr(constraints, name) is not None and not reinforcement:
             raise StudyError(f"constraints.{name} = {getattr(constraints, name)!r} needs a [reinforcement] table"
@@ -628,10 +656,29 @@ def _parse_reinforcement(c: dict, panel: Panel) -> dict[str, Any]:
     return out
 
 
+def _parse_row(c: dict, reinforcement: dict | None) -> dict[str, Any]:
+    """count / pitch / direction of a row of copies of the opening ({} for one opening)."""
+    if not any(k in c for k in ROW_KEYS):
+        return {}
+    count = c.get("count")
+    if isinstance(count, bool) or not isinstance(count, int) or not 1 <= count <= 50:
+        raise StudyError(f"cutout.count must be an integer from 1 to 50 (openings in the row), got {count!r}")
+    if count == 1:
+        return {}
+    if "pitch" not in c:
+        raise StudyError(f"cutout.count = {count} needs cutout.pitch (mm, centre to centre along the row)")
+    if reinforcement:
+        raise StudyError(f"cutout.count = {count} with a [reinforcement]: reinforced rows are not supported yet;"
+                         " reinforce a single opening, or leave the row bare")
+    out = {"count": count, "pitch": _number(c, "pitch", "cutout.", positive=True, allow_range=True),
+           "direction": _number(c, "direction", "cutout.", default=0.0)}
+    return out
+
+
 def _parse_cutout(c: dict, panel: Panel, reinforcement: dict | None = None) -> CutoutSpec:
     shape = _string(c, "shape", "cutout.", tuple(SHAPE_PARAMETERS))
     params = SHAPE_PARAMETERS[shape]
-    _unknown(c, COMMON_CUTOUT_KEYS + params, "cutout.")
+    _unknown(c, COMMON_CUTOUT_KEYS + ROW_KEYS + params, "cutout.")
     values: dict[str, Any] = {}
     for key in params:
         if key == "symmetry":
@@ -663,6 +710,7 @@ def _parse_cutout(c: dict, panel: Panel, reinforcement: dict | None = None) -> C
     values["center"] = [_number({"v": v}, "v", f"cutout.center[{i}]", allow_range=True) if not isinstance(v, dict)
                         else _range(v, f"cutout.center[{i}]", False) for i, v in enumerate(center)]
     values["rotation"] = _number(c, "rotation", "cutout.", default=0.0, allow_range=True)
+    values.update(_parse_row(c, reinforcement))
     values.update(reinforcement or {})
     spec = CutoutSpec(shape=shape, values=values)
     if all(r.value is not None for r in spec.ranges.values()):
@@ -678,6 +726,14 @@ def check_cutout_in_panel(cutout, panel: Panel) -> None:
     if not poly.is_valid:
         raise GeometryError(f"cutout ({cutout.family}, {cutout.parameters()}) crosses itself; "
                             "the outline must be a simple closed curve")
+    if cutout.count > 1:
+        polys = [Polygon(p) for p in cutout.outlines(720)]
+        gap = min(a.distance(b) for a, b in zip(polys, polys[1:]))
+        size = max(poly.bounds[2] - poly.bounds[0], poly.bounds[3] - poly.bounds[1])
+        if gap < 1e-3 * size:
+            raise GeometryError(
+                f"cutout.pitch = {cutout.row.pitch:g} mm makes neighbouring openings of the row overlap or touch"
+                f" (web between them {gap:.3g} mm); the pitch must exceed the opening's size along the row")
     edge, gap = min(cutout.edge_gaps(panel.width, panel.height).items(), key=lambda kv: kv[1])
     if gap <= 0:
         raise GeometryError(

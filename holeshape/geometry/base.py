@@ -157,6 +157,22 @@ def require_positive(name: str, value: float) -> None:
 
 
 @dataclass(frozen=True)
+class Row:
+    """``count`` copies of one opening at ``pitch`` (mm, centre to centre) along ``direction`` (degrees,
+    counter-clockwise from x), centred on the cutout's centre."""
+
+    count: int
+    pitch: float
+    direction: float = 0.0
+
+    def offsets(self) -> np.ndarray:
+        """(count, 2) offsets of the members' centres from the row's centre, mm, in order along the row."""
+        k = np.arange(self.count) - 0.5 * (self.count - 1)
+        d = math.radians(self.direction)
+        return np.outer(k * self.pitch, [math.cos(d), math.sin(d)])
+
+
+@dataclass(frozen=True)
 class Cutout:
     """A shape placed in the panel: centre (mm, panel coordinates) and counter-clockwise rotation (degrees), with
     its reinforcement (``holeshape.geometry.reinforcement.Reinforcement``; None for a bare opening)."""
@@ -165,6 +181,21 @@ class Cutout:
     center: tuple[float, float]
     rotation: float = 0.0
     reinforcement: object = None
+    row: Row | None = None  # several openings at a pitch (None: one opening)
+
+    @property
+    def members(self) -> list[Cutout]:
+        """The single openings of a row, in order along it (``[self]`` for one opening)."""
+        if self.row is None or self.row.count == 1:
+            return [self]
+        from dataclasses import replace
+
+        return [replace(self, center=(self.center[0] + float(dx), self.center[1] + float(dy)), row=None)
+                for dx, dy in self.row.offsets()]
+
+    @property
+    def count(self) -> int:
+        return 1 if self.row is None else self.row.count
 
     @property
     def family(self) -> str:
@@ -182,7 +213,8 @@ class Cutout:
 
     @property
     def area(self) -> float:
-        return self.shape.area
+        """Removed area, mm^2 (the total of a row)."""
+        return self.shape.area * self.count
 
     @property
     def min_radius(self) -> float:
@@ -190,8 +222,16 @@ class Cutout:
 
     @property
     def bounds(self) -> tuple[float, float, float, float]:
-        p = self.sampling.points
-        return float(p[0].min()), float(p[1].min()), float(p[0].max()), float(p[1].max())
+        """Bounding box of every opening (x0, y0, x1, y1), mm."""
+        b = []
+        for m in self.members:
+            p = m.sampling.points
+            b.append((float(p[0].min()), float(p[1].min()), float(p[0].max()), float(p[1].max())))
+        return min(x[0] for x in b), min(x[1] for x in b), max(x[2] for x in b), max(x[3] for x in b)
+
+    def outlines(self, n: int = 720) -> list[np.ndarray]:
+        """(n, 2) outline of every opening (one for a single opening), as :meth:`polygon` gives each."""
+        return [m.polygon(n) for m in self.members]
 
     def edge_gaps(self, width: float, height: float) -> dict[str, float]:
         """Distance (mm) from the outline to each edge of a ``width`` x ``height`` panel with its origin at the
@@ -209,6 +249,8 @@ class Cutout:
         out["rotation"] = self.rotation
         if self.reinforcement is not None:
             out.update({f"reinforcement.{k}": v for k, v in self.reinforcement.parameters().items()})
+        if self.row is not None:
+            out.update(count=self.row.count, pitch=self.row.pitch, direction=self.row.direction)
         return out
 
     @property
@@ -219,7 +261,10 @@ class Cutout:
         return replace(self, reinforcement=None)
 
     def panel_symmetry(self) -> tuple[bool, bool]:
-        """Whether the placed outline is mirror symmetric about a horizontal and a vertical line through its centre."""
+        """Whether the placed outline is mirror symmetric about a horizontal and a vertical line through its centre
+        (a row is modelled whole: neither)."""
+        if self.count > 1:
+            return False, False
         r = self.rotation % 180.0
         sx, sy = self.shape.symmetric_about_x, self.shape.symmetric_about_y
         if math.isclose(r, 0.0, abs_tol=1e-9) or math.isclose(r, 180.0, abs_tol=1e-9):

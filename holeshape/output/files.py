@@ -126,8 +126,8 @@ def write_dxf(path: Path, cutout: Cutout, panel_size: tuple[float, float] | None
     import ezdxf
     from ezdxf import units
 
-    pts = profile_points(cutout)
-    err = chord_error(cutout, pts)
+    profiles = [profile_points(m) for m in cutout.members]  # one closed outline per opening of a row
+    err = max(chord_error(m, p) for m, p in zip(cutout.members, profiles))
     if err > CHORD_TOLERANCE_MM:
         raise HoleshapeError(f"profile chord error {err:.4f} mm exceeds {CHORD_TOLERANCE_MM} mm; not written")
     ring_pts = None
@@ -143,8 +143,9 @@ def write_dxf(path: Path, cutout: Cutout, panel_size: tuple[float, float] | None
     doc.header["$MEASUREMENT"] = 1  # metric
     doc.layers.add(CUTOUT_LAYER, color=1)
     msp = doc.modelspace()
-    msp.add_lwpolyline([tuple(map(float, p)) for p in pts], format="xy", close=True,
-                       dxfattribs={"layer": CUTOUT_LAYER})
+    for prof in profiles:
+        msp.add_lwpolyline([tuple(map(float, p)) for p in prof], format="xy", close=True,
+                           dxfattribs={"layer": CUTOUT_LAYER})
     if panel_size is not None:
         doc.layers.add(PANEL_LAYER, color=8)
         w, h = panel_size
@@ -171,15 +172,24 @@ def write_dxf(path: Path, cutout: Cutout, panel_size: tuple[float, float] | None
     if note is not None:  # DXF comment lines (group 999) ahead of the first section
         text = f"999\nholeshape: {note}\n" + text
     atomic_write(path, text)
-    out = {"vertices": int(len(pts)), "chord_error_mm": err}
+    out = {"vertices": int(sum(len(p) for p in profiles)), "chord_error_mm": err}
+    if len(profiles) > 1:
+        out["outlines"] = len(profiles)
     if ring_pts is not None:
         out["ring_vertices"] = int(len(ring_pts))
     return out
 
 
 def write_csv(path: Path, cutout: Cutout) -> Path:
-    pts = profile_points(cutout)
-    rows = ["x_mm,y_mm"] + [f"{x:.6f},{y:.6f}" for x, y in np.vstack([pts, pts[:1]])]
+    """The profile's points (closed); a row of openings adds an ``opening`` column (1, 2, ...)."""
+    if cutout.count == 1:
+        pts = profile_points(cutout)
+        rows = ["x_mm,y_mm"] + [f"{x:.6f},{y:.6f}" for x, y in np.vstack([pts, pts[:1]])]
+        return atomic_write(path, "\n".join(rows) + "\n")
+    rows = ["x_mm,y_mm,opening"]
+    for k, m in enumerate(cutout.members, 1):
+        pts = profile_points(m)
+        rows += [f"{x:.6f},{y:.6f},{k}" for x, y in np.vstack([pts, pts[:1]])]
     return atomic_write(path, "\n".join(rows) + "\n")
 
 

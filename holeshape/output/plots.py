@@ -88,7 +88,12 @@ def _warn(fig, ev: Evaluation) -> None:
                  wrap=True)
 
 
-def plot_stress_field(path: Path, ev: Evaluation, fields: EvaluationFields, cutout_xy: np.ndarray,
+def outline_list(cutout_xy) -> list[np.ndarray]:
+    """Outlines (2, n) to draw: one array, or a list of them (a row of openings)."""
+    return [cutout_xy] if isinstance(cutout_xy, np.ndarray) and cutout_xy.ndim == 2 else list(cutout_xy)
+
+
+def plot_stress_field(path: Path, ev: Evaluation, fields: EvaluationFields, cutout_xy,
                       case_index: int, panel_size: tuple[float, float], title: str) -> Path:
     plt = pyplot()
     measure = ev.stress_measure if ev.stress_measure != "hoop" else "von_mises"
@@ -98,7 +103,8 @@ def plot_stress_field(path: Path, ev: Evaluation, fields: EvaluationFields, cuto
     fig, ax = plt.subplots(figsize=(8, 8 * panel_size[1] / panel_size[0] + 0.8))
     top = max(float(np.percentile(v, 99.9)), ev.load_cases[case_index].peak_stress_mpa)
     tpc = ax.tripcolor(p[0], p[1], t.T, v, shading="gouraud", cmap="viridis", vmin=0, vmax=top)
-    ax.plot(*np.concatenate([cutout_xy, cutout_xy[:, :1]], axis=1), color="white", lw=1.2)
+    for xy in outline_list(cutout_xy):
+        ax.plot(*np.concatenate([xy, xy[:, :1]], axis=1), color="white", lw=1.2)
     if fields.ring_boundary is not None:
         ax.plot(*fields.ring_boundary.xy, color="white", lw=1.0, ls="--", label="doubler ring's outer edge")
         ax.legend(loc="upper right", fontsize=8)
@@ -140,11 +146,14 @@ def plot_boundary_stress(path: Path, ev: Evaluation, fields: EvaluationFields, a
     fig, axes = plt.subplots(2 if second else 1, 1, figsize=(9, 8.4 if second else 4.8), squeeze=False)
     styles = ["-", "--", "-.", ":"]
     ax = axes[0, 0]
+    gov = next(r for r in ev.load_cases if r.name == ev.governing_load_case)
     for j, r in enumerate(ev.load_cases):
-        at = next((loc.peak_stress_mpa for loc in r.locations if loc.location == "cutout edge"), r.peak_stress_mpa)
+        here = gov.peak_location if gov.peak_location.startswith("opening") else "cutout edge"
+        at = next((loc.peak_stress_mpa for loc in r.locations if loc.location == here), r.peak_stress_mpa)
         ax.plot(bs.s, vals[:, j], styles[j % 4], lw=1.6, label=f"{r.name} (peak here {at:.1f} MPa)")
+    which = f" of {gov.peak_location} (governing)" if gov.peak_location.startswith("opening") else ""
     panels = [(ax, "arc length round the cutout, counter-clockwise (mm)", f"{STRESS_LABELS[ev.stress_measure]} (MPa)",
-               f"{title}: stress along the cutout edge" + (" (in the web)" if second else ""), bs.s)]
+               f"{title}: stress along the cutout edge{which}" + (" (in the web)" if second else ""), bs.s)]
     if second:
         s2, v2, where, xlabel, ylabel = second
         ax2 = axes[1, 0]
@@ -192,7 +201,7 @@ def plot_mesh(path: Path, fields: EvaluationFields, cutout_bounds: tuple[float, 
     return save(fig, path)
 
 
-def plot_buckling_mode(path: Path, stability, fields, cutout_xy: np.ndarray, panel, title: str) -> Path:
+def plot_buckling_mode(path: Path, stability, fields, cutout_xy, panel, title: str) -> Path:
     """Out-of-plane deflection contours of the lowest buckling mode(s) of the governing load case (largest
     deflection scaled to 1), cutout drawn, panel edges labelled with their support."""
     plt = pyplot()
@@ -205,8 +214,9 @@ def plot_buckling_mode(path: Path, stability, fields, cutout_xy: np.ndarray, pan
     fig, axes = plt.subplots(1, n, figsize=(min(16, 6.5 * n), 6.5 * aspect + 1.6), squeeze=False)
     for k, ax in enumerate(axes[0]):
         ax.plot([0, panel.width, panel.width, 0, 0], [0, 0, panel.height, panel.height, 0], color="black", lw=1.2)
-        ax.fill(*cutout_xy, color="white", zorder=3)
-        ax.plot(*np.concatenate([cutout_xy, cutout_xy[:, :1]], axis=1), color="black", lw=1.2, zorder=4)
+        for xy in outline_list(cutout_xy):
+            ax.fill(*xy, color="white", zorder=3)
+            ax.plot(*np.concatenate([xy, xy[:, :1]], axis=1), color="black", lw=1.2, zorder=4)
         if modes:
             factor, w = modes[k]
             levels = np.linspace(-1.0, 1.0, 21)

@@ -63,10 +63,13 @@ def plot_shapes(path: Path, best, baselines, panel, constraints, title: str, bes
     ax.plot([0, panel.width, panel.width, 0, 0], [0, 0, panel.height, panel.height, 0], color="black", lw=1.2)
     styles = ["--", "-.", ":"]
     for i, (family, cut) in enumerate(baselines):
-        p = cut.polygon(720)
-        ax.plot(*np.vstack([p, p[:1]]).T, styles[i % 3], color="0.45", lw=1.2,
-                label=f"{family.replace('_', ' ')}: {base_peaks[family]:.1f} MPa")
-    p = best.polygon(720)
+        for k, p in enumerate(cut.outlines(720)):
+            ax.plot(*np.vstack([p, p[:1]]).T, styles[i % 3], color="0.45", lw=1.2,
+                    label=f"{family.replace('_', ' ')}: {base_peaks[family]:.1f} MPa" if k == 0 else None)
+    for p in best.outlines(720)[1:]:  # the other openings of a row
+        ax.fill(*p.T, color="C0", alpha=0.15)
+        ax.plot(*np.vstack([p, p[:1]]).T, color="C0", lw=2.2)
+    p = best.polygon(720) if best.count == 1 else best.outlines(720)[0]
     r = best.reinforcement
     if r is not None and r.kind == "ring":
         from holeshape.geometry.reinforcement import ring_outline
@@ -135,10 +138,14 @@ def plot_family_overlay(path: Path, study, run_dir: Path, ranked: list[dict]) ->
     styles = ["-", "--", "-.", ":", (0, (5, 1)), (0, (1, 1))]
     for i, r in enumerate(ranked):
         csv = run_dir / folder_name(r["shape"]) / "family_best.csv"
-        pts = np.loadtxt(csv, delimiter=",", skiprows=1)
-        ax.plot(pts[:, 0], pts[:, 1], linestyle=styles[i % len(styles)], lw=2.4 if i == 0 else 1.3,
-                color="C0" if i == 0 else f"{0.15 + 0.12 * i:.2f}",
-                label=f"{r['rank']}. {r['shape'].replace('_', ' ')}: {r['peak_stress_mpa']:.1f} MPa")
+        pts = np.atleast_2d(np.loadtxt(csv, delimiter=",", skiprows=1))
+        opening = pts[:, 2] if pts.shape[1] > 2 else np.ones(len(pts))
+        for k in np.unique(opening):
+            sel = pts[opening == k]
+            ax.plot(sel[:, 0], sel[:, 1], linestyle=styles[i % len(styles)], lw=2.4 if i == 0 else 1.3,
+                    color="C0" if i == 0 else f"{0.15 + 0.12 * i:.2f}",
+                    label=f"{r['rank']}. {r['shape'].replace('_', ' ')}: {r['peak_stress_mpa']:.1f} MPa"
+                    if k == opening[0] else None)
     if study.constraints.access is not None:
         from holeshape.search.baselines import baseline_center
 

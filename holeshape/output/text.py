@@ -92,6 +92,19 @@ SHEAR_NOTES = {"uniform": "the web carries the whole shear force, nearly evenly 
                "parabolic": "parabolic shear over the depth (the panel is a solid rectangular section)"}
 
 
+def row_lines(ev: Evaluation) -> list[str]:
+    """A row of openings: the web between neighbours and every opening's peak for each load case."""
+    if not ev.ligaments_between_mm:
+        return []
+    n = len(ev.ligaments_between_mm) + 1
+    lines = ["", f"  row           {n} openings; web between neighbours "
+                 + ", ".join(f"{w:.1f}" for w in ev.ligaments_between_mm) + " mm"]
+    for c in ev.load_cases:
+        lines.append(f"    {c.name}: " + ", ".join(f"{loc.location} {loc.peak_stress_mpa:.1f}" for loc in c.locations)
+                     + f" MPa; governs at {c.peak_location}")
+    return lines
+
+
 def beam_lines(ev: Evaluation, beam_cases: dict) -> list[str]:
     """The beam-load block: each beam case's forces, the reference stress and the tee sections' mean stresses.
     ``beam_cases``: name -> (shear force N, bending moment N mm, shear distribution)."""
@@ -138,6 +151,7 @@ def check_summary(title: str, family: str, params: dict, ev: Evaluation, edges_n
         f"  ligament      narrowest {lig.width_mm:.1f} mm, to the {lig.edge} edge (net-section stress per load case"
         " above: mean normal stress across it)",
     ]
+    lines += row_lines(ev)
     lines += beam_lines(ev, beam_cases or {})
     if ev.reinforcement is not None:
         lines += reinforcement_lines(ev)

@@ -28,9 +28,11 @@ def standard_shapes(spec_values: dict, panel: Panel, cons: Constraints, density:
     family cannot meet the constraints. With a [reinforcement] the shapes carry it at its nominal sizes
     (``study.nominal_reinforcement``)."""
     from holeshape.geometry.reinforcement import check_formable
-    from holeshape.study import nominal_reinforcement
+    from holeshape.study import nominal_reinforcement, nominal_row
 
     reinforcement = nominal_reinforcement(spec_values)
+    row = nominal_row(spec_values)  # a row: rows of the standard shapes at the nominal pitch
+    count = 1 if row is None else row.count
     center = baseline_center(spec_values, panel, cons)
     rot = cons.access.rotation if cons.access is not None else 0.0
     shapes: list[tuple[str, object]] = []
@@ -51,11 +53,11 @@ def standard_shapes(spec_values: dict, panel: Panel, cons: Constraints, density:
         target = cons.area or cons.min_area
         if target is None:
             return []
-        r = math.sqrt(target / math.pi)
+        r = math.sqrt(target / count / math.pi)
         shapes = [("circle", Circle(r))]
     out: list[tuple[str, Cutout | None, str]] = []
     for family, shape in shapes:
-        cut = Cutout(shape, center, rot, reinforcement)
+        cut = Cutout(shape, center, rot, reinforcement, row)
         try:
             if cons.area is not None:
                 cut = scaled_to_area(cut, cons.area)

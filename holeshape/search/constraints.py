@@ -10,6 +10,7 @@ import math
 
 import numpy as np
 
+from holeshape.evaluate import neighbour_ligaments as neighbour_gaps
 from holeshape.geometry import Cutout
 from holeshape.study import Constraints, Panel
 
@@ -65,6 +66,15 @@ def constraint_values(cutout: Cutout, panel: Panel, cons: Constraints, density: 
         values["ligament"] = (cons.min_ligament - gap) / cons.min_ligament
         if gap < cons.min_ligament:
             reasons.append(f"ligament to the {edge} edge {gap:.3g} mm < {cons.min_ligament:g} mm")
+    if cutout.count > 1:
+        between = min(neighbour_gaps(cutout))
+        values["row_overlap"] = -between / size
+        if between <= 0:
+            reasons.append(f"neighbouring openings of the row overlap (pitch {cutout.row.pitch:.3g} mm)")
+        if cons.min_ligament is not None:
+            values["ligament_between"] = (cons.min_ligament - between) / cons.min_ligament
+            if 0 < between < cons.min_ligament:
+                reasons.append(f"ligament between neighbouring openings {between:.3g} mm < {cons.min_ligament:g} mm")
     if cons.min_radius is not None:
         r = cutout.min_radius
         values["min_radius"] = (cons.min_radius - r) / cons.min_radius
@@ -161,6 +171,10 @@ def requirement_rows(ev, cutout: Cutout, panel: Panel, cons: Constraints, materi
     gap = min(edge_gaps(cutout, panel).values())
     if cons.min_ligament is not None:
         add("ligament to the panel edges (mm)", gap, f">= {cons.min_ligament:g}", gap >= cons.min_ligament)
+        if cutout.count > 1:
+            between = min(neighbour_gaps(cutout))
+            add("ligament between neighbouring openings (mm)", between, f">= {cons.min_ligament:g}",
+                between >= cons.min_ligament)
     if cons.min_radius is not None:
         add("smallest radius of the outline (mm)", cutout.min_radius, f">= {cons.min_radius:g}",
             cutout.min_radius >= cons.min_radius)
