@@ -63,6 +63,12 @@ def family_ranges(study, raw_cutout: dict) -> dict[str, dict]:
         p, q = 0.1 * pmax, 0.1 * qmax
     rmin = max(cons.min_radius or 0.0, 0.5)
     common = {"center": raw_cutout.get("center", [panel.width / 2, panel.height / 2])}
+    if "count" in raw_cutout:  # a row: every family as the same row, each opening no wider than the pitch allows
+        common.update({k: raw_cutout[k] for k in ("count", "pitch", "direction") if k in raw_cutout})
+        pitch = study.cutout.values["pitch"]
+        half = 0.5 * (pitch.min if isinstance(pitch, Range) else pitch) * 0.999
+        pmax, qmax = min(pmax, half), min(qmax, half)
+        p, q = min(p, 0.5 * pmax), min(q, 0.5 * qmax)
     rot = raw_cutout.get("rotation", 0.0)
     out = {
         "circle": {"radius": _r(min(math.hypot(p, q), min(pmax, qmax)), min(pmax, qmax))},
@@ -92,6 +98,11 @@ def run_compare(study_path: str, out: str, workers: int = 1, progress: bool = Tr
 
     study = load_study(study_path)
     doc = tomllib.loads(Path(study_path).read_text(encoding="utf-8"))
+    if isinstance(doc.get("cutout"), list):
+        if len(doc["cutout"]) > 1:
+            raise StudyError(f"holeshape compare ranks shape families for one opening (or a row); this study has"
+                             f" {len(doc['cutout'])} [[cutout]] tables: compare them one at a time")
+        doc["cutout"] = doc["cutout"][0]
     out_dir = Path(out)
     out_dir.mkdir(parents=True, exist_ok=True)
     rows, summaries = [], {}

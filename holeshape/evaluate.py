@@ -428,10 +428,13 @@ def evaluate(panel: Panel, material: Material, load_cases: tuple[LoadCase, ...],
 
 
 def neighbour_ligaments(cutout: Cutout) -> tuple[float, ...]:
-    """The width of web (mm) between each pair of neighbouring openings of a row (empty for one opening)."""
+    """The width of web (mm) between each pair of neighbouring openings of a row, or from each of several separate
+    openings to its nearest neighbour (empty for one opening)."""
     from shapely.geometry import Polygon
 
     polys = [Polygon(p) for p in cutout.outlines(720)]
+    if cutout.others:  # separate openings: each one's nearest neighbour (every pair is a candidate)
+        return tuple(float(min(a.distance(b) for j, b in enumerate(polys) if j != i)) for i, a in enumerate(polys))
     return tuple(float(a.distance(b)) for a, b in zip(polys, polys[1:]))
 
 

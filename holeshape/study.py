@@ -40,11 +40,15 @@ def flat_name(base: str, index: int | None = None) -> str:
 
 
 def split_flat_name(name: str) -> tuple[str, int | None]:
-    """``"radii[2]"`` -> ``("radii", 2)``; ``"a"`` -> ``("a", None)`` (the inverse of :func:`flat_name`)."""
+    """``"radii[2]"`` -> ``("radii", 2)``; ``"a"`` -> ``("a", None)``; ``"cutout[1].radii[2]"`` ->
+    ``("cutout[1].radii", 2)`` (the inverse of :func:`flat_name`)."""
     if name.endswith("]") and "[" in name:
-        base, idx = name[:-1].split("[", 1)
+        base, idx = name[:-1].rsplit("[", 1)
         return base, int(idx)
     return name, None
+
+
+OTHER_PREFIX = "cutout[{}]."  # values of the i-th further [[cutout]] table (i from 1): "cutout[1].a", ...
 
 
 def set_flat(values: dict, name: str, value) -> None:
@@ -153,6 +157,14 @@ class CutoutSpec:
 
         for k, v in vals.items():
             vals[k] = [number(f"{k}[{i}]", x) for i, x in enumerate(v)] if isinstance(v, list) else number(k, v)
+        others = []
+        i = 1
+        while OTHER_PREFIX.format(i) + "shape" in vals:  # further [[cutout]] tables, each built on its own
+            pre = OTHER_PREFIX.format(i)
+            own = {k[len(pre):]: v for k, v in vals.items() if k.startswith(pre)}
+            others.append(CutoutSpec(own.pop("shape"), own).build())
+            i += 1
+        vals = {k: v for k, v in vals.items() if not k.startswith("cutout[")}
         cls = FAMILIES[self.shape]
         kwargs = {k: vals[k] for k in SHAPE_PARAMETERS[self.shape] if k in vals}
         if "radii" in kwargs:
@@ -161,7 +173,7 @@ class CutoutSpec:
         shape.check()
         center = vals["center"]
         cutout = Cutout(shape=shape, center=(float(center[0]), float(center[1])), rotation=float(vals["rotation"]),
-                        reinforcement=build_reinforcement(vals), row=build_row(vals))
+                        reinforcement=build_reinforcement(vals), row=build_row(vals), others=tuple(others))
         if cutout.reinforcement is not None:
             from holeshape.geometry.reinforcement import check_formable
 
@@ -450,10 +462,11 @@ def parse_study(doc: dict, source: str = "") -> Study:
         raise StudyError(f"load_case names must be unique, got {dup[0]!r} more than once")
 
     reinforcement = _parse_reinforcement(_table(doc, "reinforcement"), panel) if "reinforcement" in doc else {}
-    if isinstance(doc.get("cutout"), list):
-        raise StudyError(f"[[cutout]] is given {len(doc['cutout'])} times: several separately shaped openings are not"
-                         " supported yet; give one [cutout] table, with count = ..., pitch = ... for a row of copies")
-    cutout = _parse_cutout(_table(doc, "cutout"), panel, reinforcement)
+    tables = doc.get("cutout")
+    if isinstance(tables, list):
+        cutout = _parse_cutouts(tables, panel, reinforcement)
+    else:
+        cutout = _parse_cutout(_table(doc, "cutout"), panel, reinforcement)
 
     ms = _table(doc, "measure", required=False)
     _unknown(ms, ("stress", "accuracy"), "measure.")
@@ -471,6 +484,12 @@ def parse_study(doc: dict, source: str = "") -> Study:
     if constraints.min_margin is not None and material.allowable_stress is None:
         raise StudyError(f"constraints.min_margin = {constraints.min_margin!r} needs material.allowable_stress (MPa)"
                          " to measure the margin of safety against")
+    if constraints.area is not None and OTHER_PREFIX.format(1) + "shape" in cutout.values:
+        raise StudyError(f"constraints.area = {constraints.area!r} mm^2 fixes the area of one design scaled to it;"
+                         " with several [[cutout]] tables use min_area / max_area (the total)")
+    if constraints.access is not None and OTHER_PREFIX.format(1) + "shape" in cutout.values:
+        raise StudyError("constraints.access with several [[cutout]] tables: an access envelope belongs to one"
+                         " opening; give it with a single [cutout]")
     if constraints.access is not None and "count" in cutout.values:
         raise StudyError(f"constraints.access with a row of {cutout.values['count']} openings (cutout.count): an access"
                          " envelope belongs to one opening; give the row without it, or a single opening")
@@ -656,6 +675,31 @@ def _parse_reinforcement(c: dict, panel: Panel) -> dict[str, Any]:
     return out
 
 
+def _parse_cutouts(tables: list, panel: Panel, reinforcement: dict | None) -> CutoutSpec:
+    """Several [[cutout]] tables: the first is the spec, the others ride in its values as ``cutout[i].<key>``."""
+    if not tables or not all(isinstance(t, dict) for t in tables):
+        raise StudyError(f"cutout must be a [cutout] table or [[cutout]] tables, got {tables!r}")
+    if len(tables) == 1:
+        return _parse_cutout(tables[0], panel, reinforcement)
+    if reinforcement:
+        raise StudyError(f"[[cutout]] is given {len(tables)} times with a [reinforcement]: reinforcing several"
+                         " openings is not supported yet; reinforce a single opening")
+    for i, t in enumerate(tables):
+        if "count" in t:
+            raise StudyError(f"cutout[{i}].count: a row inside one of several [[cutout]] tables is not supported;"
+                             " give either one [cutout] with count and pitch or separate [[cutout]] tables")
+    specs = [_parse_cutout(t, panel, None, check=False, where=f"cutout[{i}]." if i else "cutout.")
+             for i, t in enumerate(tables)]
+    values = dict(specs[0].values)
+    for i, sp in enumerate(specs[1:], 1):
+        values[OTHER_PREFIX.format(i) + "shape"] = sp.shape
+        values.update({OTHER_PREFIX.format(i) + k: v for k, v in sp.values.items()})
+    spec = CutoutSpec(shape=specs[0].shape, values=values)
+    if all(r.value is not None for r in spec.ranges.values()):
+        check_cutout_in_panel(spec.build(), panel)
+    return spec
+
+
 def _parse_row(c: dict, reinforcement: dict | None) -> dict[str, Any]:
     """count / pitch / direction of a row of copies of the opening ({} for one opening)."""
     if not any(k in c for k in ROW_KEYS):
@@ -675,45 +719,46 @@ def _parse_row(c: dict, reinforcement: dict | None) -> dict[str, Any]:
     return out
 
 
-def _parse_cutout(c: dict, panel: Panel, reinforcement: dict | None = None) -> CutoutSpec:
-    shape = _string(c, "shape", "cutout.", tuple(SHAPE_PARAMETERS))
+def _parse_cutout(c: dict, panel: Panel, reinforcement: dict | None = None, check: bool = True,
+                  where: str = "cutout.") -> CutoutSpec:
+    shape = _string(c, "shape", where, tuple(SHAPE_PARAMETERS))
     params = SHAPE_PARAMETERS[shape]
-    _unknown(c, COMMON_CUTOUT_KEYS + ROW_KEYS + params, "cutout.")
+    _unknown(c, COMMON_CUTOUT_KEYS + ROW_KEYS + params, where)
     values: dict[str, Any] = {}
     for key in params:
         if key == "symmetry":
-            values[key] = _string(c, key, "cutout.", ("none", "x", "xy"), default="none")
+            values[key] = _string(c, key, where, ("none", "x", "xy"), default="none")
         elif key == "radii":
             radii = c.get("radii")
             if radii is None:
-                raise StudyError("cutout.radii is missing (a list of radii in mm, equally spaced in angle)")
+                raise StudyError(f"{where}radii is missing (a list of radii in mm, equally spaced in angle)")
             if isinstance(radii, dict):  # one range for every radius
                 count = radii.get("count")
                 rest = {k: v for k, v in radii.items() if k != "count"}
                 if not isinstance(count, int) or isinstance(count, bool) or count < 2:
-                    raise StudyError(f"cutout.radii.count must be an integer >= 2 when radii is a range, got {count!r}")
-                rng = _range(rest, "cutout.radii", True)
+                    raise StudyError(f"{where}radii.count must be an integer >= 2 when radii is a range, got {count!r}")
+                rng = _range(rest, f"{where}radii", True)
                 values[key] = [rng] * count
             elif isinstance(radii, list):
-                values[key] = [_number({"r": r}, "r", f"cutout.radii[{i}]", positive=True, allow_range=True)
-                               if not isinstance(r, dict) else _range(r, f"cutout.radii[{i}]", True)
+                values[key] = [_number({"r": r}, "r", f"{where}radii[{i}]", positive=True, allow_range=True)
+                               if not isinstance(r, dict) else _range(r, f"{where}radii[{i}]", True)
                                for i, r in enumerate(radii)]
             else:
-                raise StudyError(f"cutout.radii must be a list of numbers (mm), got {radii!r}")
+                raise StudyError(f"{where}radii must be a list of numbers (mm), got {radii!r}")
         else:
-            values[key] = _number(c, key, "cutout.", positive=True, allow_range=True)
+            values[key] = _number(c, key, where, positive=True, allow_range=True)
     center = c.get("center", [panel.width / 2, panel.height / 2])
     if isinstance(center, dict):
-        raise StudyError("cutout.center ranges are given per coordinate: center = [{min=..., max=...}, 100.0]")
+        raise StudyError(f"{where}center ranges are given per coordinate: center = [{{min=..., max=...}}, 100.0]")
     if not isinstance(center, list) or len(center) != 2:
-        raise StudyError(f"cutout.center must be [x, y] in mm, got {center!r}")
-    values["center"] = [_number({"v": v}, "v", f"cutout.center[{i}]", allow_range=True) if not isinstance(v, dict)
-                        else _range(v, f"cutout.center[{i}]", False) for i, v in enumerate(center)]
-    values["rotation"] = _number(c, "rotation", "cutout.", default=0.0, allow_range=True)
+        raise StudyError(f"{where}center must be [x, y] in mm, got {center!r}")
+    values["center"] = [_number({"v": v}, "v", f"{where}center[{i}]", allow_range=True) if not isinstance(v, dict)
+                        else _range(v, f"{where}center[{i}]", False) for i, v in enumerate(center)]
+    values["rotation"] = _number(c, "rotation", where, default=0.0, allow_range=True)
     values.update(_parse_row(c, reinforcement))
     values.update(reinforcement or {})
     spec = CutoutSpec(shape=shape, values=values)
-    if all(r.value is not None for r in spec.ranges.values()):
+    if check and all(r.value is not None for r in spec.ranges.values()):
         check_cutout_in_panel(spec.build(), panel)
     return spec
 
@@ -726,7 +771,17 @@ def check_cutout_in_panel(cutout, panel: Panel) -> None:
     if not poly.is_valid:
         raise GeometryError(f"cutout ({cutout.family}, {cutout.parameters()}) crosses itself; "
                             "the outline must be a simple closed curve")
-    if cutout.count > 1:
+    if cutout.others:
+        polys = [Polygon(p) for p in cutout.outlines(720)]
+        for i, a in enumerate(polys):
+            if not a.is_valid:
+                raise GeometryError(f"cutout[{i}] crosses itself; the outline must be a simple closed curve")
+            for j in range(i):
+                gap = a.distance(polys[j])
+                if gap < 1e-3 * math.sqrt(min(a.area, polys[j].area)):
+                    raise GeometryError(f"cutout[{i}] overlaps or touches cutout[{j}] (web between them {gap:.3g} mm);"
+                                        " separate openings need web between them")
+    elif cutout.count > 1:
         polys = [Polygon(p) for p in cutout.outlines(720)]
         gap = min(a.distance(b) for a, b in zip(polys, polys[1:]))
         size = max(poly.bounds[2] - poly.bounds[0], poly.bounds[3] - poly.bounds[1])

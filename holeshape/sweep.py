@@ -30,7 +30,7 @@ class Vary:
 
 
 def parse_vary(text: str, allowed: list[str]) -> Vary:
-    m = re.fullmatch(r"\s*([A-Za-z_][A-Za-z_.]*(?:\[\d+\])?)\s*=\s*([-+0-9.eE]+):([-+0-9.eE]+):(\d+)\s*", text)
+    m = re.fullmatch(r"\s*([A-Za-z_][A-Za-z_.0-9\[\]]*?(?:\[\d+\])?)\s*=\s*([-+0-9.eE]+):([-+0-9.eE]+):(\d+)\s*", text)
     if not m:
         raise StudyError(f"--vary {text!r} must read name=low:high:count, for example b=20:60:9")
     name, lo, hi, n = m.group(1), float(m.group(2)), float(m.group(3)), int(m.group(4))

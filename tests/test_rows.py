@@ -105,7 +105,7 @@ trials = 12
      r"reinforced rows are not supported yet"),
     ("min_ligament = 30.0", "min_ligament = 30.0\naccess = {diameter = 60.0}",
      r"constraints\.access with a row of 5 openings"),
-    ('[cutout]', '[[cutout]]\nshape = "circle"\nradius = 10.0\n\n[[cutout]]', r"\[\[cutout\]\] is given 2 times"),
+
 ])
 def test_rows_that_cannot_be_built_are_one_line_errors(tmp_path, capsys, old, new, message):
     assert old in ROW_STUDY, old
@@ -147,3 +147,74 @@ def test_search_over_the_pitch_keeps_the_web_between_neighbours(tmp_path):
     doc = ezdxf.readfile(out / "best.dxf")
     assert len(doc.modelspace().query("LWPOLYLINE[layer=='CUTOUT_PROFILE']")) == 5  # one outline per opening
     assert (out / "best.csv").read_text().splitlines()[0] == "x_mm,y_mm,opening"
+
+
+TWO = """
+title = "two openings"
+
+[panel]
+width = 600.0
+height = 300.0
+thickness = 2.0
+
+[material]
+name = "al"
+youngs_modulus = 71000.0
+poisson_ratio = 0.33
+allowable_stress = 280.0
+
+[[load_case]]
+name = "shear"
+tau_xy = 40.0
+
+[[cutout]]
+shape = "circle"
+center = [180.0, 150.0]
+radius = {min = 30.0, max = 70.0, value = 50.0}
+
+[[cutout]]
+shape = "ellipse"
+center = [420.0, 150.0]
+a = {min = 30.0, max = 90.0, value = 60.0}
+b = 40.0
+rotation = {min = -45.0, max = 45.0, value = 30.0}
+
+[constraints]
+min_ligament = 30.0
+min_area = 10000.0
+
+[search]
+trials = 10
+"""
+
+
+def test_separate_openings_each_with_its_own_shape(tmp_path, capsys):
+    p = tmp_path / "two.toml"
+    p.write_text(TWO)
+    assert main(["check", str(p), "--json", "--accuracy", "draft"]) == 0
+    d = json.loads(capsys.readouterr().out)
+    # the total area: pi r^2 + pi a b (closed forms)
+    assert d["area_mm2"] == pytest.approx(3.141592653589793 * (50.0 ** 2 + 60.0 * 40.0), rel=1e-6)
+    assert [loc["location"] for loc in d["load_cases"][0]["locations"]] == ["opening 1", "opening 2"]
+    assert d["params"]["cutout[1].shape"] == "ellipse" and d["params"]["cutout[1].rotation"] == 30.0
+    # a search over both tables' ranges: every searched parameter of the second table is a design variable
+    out = tmp_path / "run"
+    assert main(["optimise", str(p), "--out", str(out), "--quiet"]) == 0
+    b = json.loads((out / "summary.json").read_text())["best"]
+    assert b["meets_every_requirement"] and b["area_mm2"] >= 10000.0
+    assert -45.0 <= b["params"]["cutout[1].rotation"] <= 45.0
+    doc = ezdxf.readfile(out / "best.dxf")
+    assert len(doc.modelspace().query("LWPOLYLINE[layer=='CUTOUT_PROFILE']")) == 2
+
+
+@pytest.mark.parametrize("old, new, message", [
+    ("center = [420.0, 150.0]", "center = [260.0, 150.0]", r"cutout\[1\] overlaps or touches cutout\[0\]"),
+    ("b = 40.0", "b = -4.0", r"cutout\[1\]\.b must be > 0"),
+    ('shape = "ellipse"', 'shape = "ellipse"\ncount = 2', r"cutout\[1\]\.count: a row inside one of several"),
+])
+def test_separate_openings_bad_input(tmp_path, capsys, old, new, message):
+    p = tmp_path / "two.toml"
+    p.write_text(TWO.replace(old, new))
+    assert main(["check", str(p), "--accuracy", "draft"]) == 2
+    err = capsys.readouterr().err.strip()
+    assert len(err.splitlines()) == 1 and re.search(message, err), err

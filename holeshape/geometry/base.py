@@ -182,10 +182,16 @@ class Cutout:
     rotation: float = 0.0
     reinforcement: object = None
     row: Row | None = None  # several openings at a pitch (None: one opening)
+    others: tuple = ()  # further openings of their own shapes (separate [[cutout]] tables), each a Cutout
 
     @property
     def members(self) -> list[Cutout]:
-        """The single openings of a row, in order along it (``[self]`` for one opening)."""
+        """The single openings: of a row, in order along it; with ``others``, this one then those (``[self]`` for
+        one opening)."""
+        if self.others:
+            from dataclasses import replace
+
+            return [replace(self, others=()), *self.others]
         if self.row is None or self.row.count == 1:
             return [self]
         from dataclasses import replace
@@ -195,6 +201,8 @@ class Cutout:
 
     @property
     def count(self) -> int:
+        if self.others:
+            return 1 + len(self.others)
         return 1 if self.row is None else self.row.count
 
     @property
@@ -213,12 +221,14 @@ class Cutout:
 
     @property
     def area(self) -> float:
-        """Removed area, mm^2 (the total of a row)."""
+        """Removed area, mm^2 (the total of several openings)."""
+        if self.others:
+            return self.shape.area + sum(o.area for o in self.others)
         return self.shape.area * self.count
 
     @property
     def min_radius(self) -> float:
-        return self.shape.min_radius
+        return min([self.shape.min_radius] + [o.min_radius for o in self.others])
 
     @property
     def bounds(self) -> tuple[float, float, float, float]:
@@ -251,6 +261,9 @@ class Cutout:
             out.update({f"reinforcement.{k}": v for k, v in self.reinforcement.parameters().items()})
         if self.row is not None:
             out.update(count=self.row.count, pitch=self.row.pitch, direction=self.row.direction)
+        for i, o in enumerate(self.others, 1):
+            out[f"cutout[{i}].shape"] = o.family
+            out.update({f"cutout[{i}].{k}": v for k, v in o.parameters().items()})
         return out
 
     @property

@@ -93,12 +93,12 @@ SHEAR_NOTES = {"uniform": "the web carries the whole shear force, nearly evenly 
 
 
 def row_lines(ev: Evaluation) -> list[str]:
-    """A row of openings: the web between neighbours and every opening's peak for each load case."""
+    """Several openings (a row or separate tables): the web between them and every opening's peak per load case."""
     if not ev.ligaments_between_mm:
         return []
-    n = len(ev.ligaments_between_mm) + 1
-    lines = ["", f"  row           {n} openings; web between neighbours "
-                 + ", ".join(f"{w:.1f}" for w in ev.ligaments_between_mm) + " mm"]
+    n = len(ev.load_cases[0].locations)
+    lines = ["", f"  openings      {n}; narrowest web between openings {min(ev.ligaments_between_mm):.1f} mm (each: "
+                 + ", ".join(f"{w:.1f}" for w in ev.ligaments_between_mm) + " mm)"]
     for c in ev.load_cases:
         lines.append(f"    {c.name}: " + ", ".join(f"{loc.location} {loc.peak_stress_mpa:.1f}" for loc in c.locations)
                      + f" MPa; governs at {c.peak_location}")

@@ -70,7 +70,8 @@ def constraint_values(cutout: Cutout, panel: Panel, cons: Constraints, density: 
         between = min(neighbour_gaps(cutout))
         values["row_overlap"] = -between / size
         if between <= 0:
-            reasons.append(f"neighbouring openings of the row overlap (pitch {cutout.row.pitch:.3g} mm)")
+            reasons.append(f"neighbouring openings of the row overlap (pitch {cutout.row.pitch:.3g} mm)"
+                           if cutout.row is not None else "two of the openings overlap")
         if cons.min_ligament is not None:
             values["ligament_between"] = (cons.min_ligament - between) / cons.min_ligament
             if 0 < between < cons.min_ligament:
