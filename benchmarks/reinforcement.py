@@ -7,23 +7,15 @@ bare, with a formed flange, with a doubler ring. Prints a Markdown table of best
 
 from __future__ import annotations
 
-import time
 from pathlib import Path
+
+from timing import best_of
 
 from holeshape.evaluate import evaluate
 from holeshape.geometry import Reinforcement
 from holeshape.study import Measure, load_study
 
 STUDY = Path(__file__).resolve().parents[1] / "studies" / "floor-beam-flanged-access.toml"
-
-
-def best_of(fn, n: int = 3) -> tuple[float, object]:
-    times, out = [], None
-    for _ in range(n):
-        t0 = time.perf_counter()
-        out = fn()
-        times.append(time.perf_counter() - t0)
-    return min(times), out
 
 
 def main() -> None:

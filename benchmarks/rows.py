@@ -7,23 +7,15 @@ standard accuracy, plane stress and then with the buckling check; best of 3 wall
 
 from __future__ import annotations
 
-import time
 from dataclasses import replace
 from pathlib import Path
+
+from timing import best_of
 
 from holeshape.evaluate import evaluate
 from holeshape.study import Measure, load_study
 
 STUDY = Path(__file__).resolve().parents[1] / "studies" / "floor-beam-lightening-row.toml"
-
-
-def best_of(fn, n: int = 3):
-    times, out = [], None
-    for _ in range(n):
-        t0 = time.perf_counter()
-        out = fn()
-        times.append(time.perf_counter() - t0)
-    return min(times), out
 
 
 def main() -> None:

@@ -295,12 +295,7 @@ def mesh_panel(width: float, height: float, cutout: Cutout, region: Region, spec
             _size_field(gmsh, cut_pts + off_pts, np.concatenate([node_h, h_off]), spec.growth, h_max)
         else:
             _size_field(gmsh, cut_pts, node_h, spec.growth, h_max)
-        gmsh.option.setNumber("Mesh.MeshSizeFromPoints", 0)
-        gmsh.option.setNumber("Mesh.MeshSizeFromCurvature", 0)
-        gmsh.option.setNumber("Mesh.MeshSizeExtendFromBoundary", 0)
-        gmsh.option.setNumber("Mesh.MeshSizeMax", h_max)
-        gmsh.option.setNumber("Mesh.Algorithm", 6)
-        gmsh.model.mesh.generate(2)
+        _generate(gmsh, h_max)
         node_tags, coords, _ = gmsh.model.mesh.getNodes()
         tris, n_ring = [], 0
         for k, surface in enumerate(surfaces):
@@ -323,6 +318,16 @@ def mesh_panel(width: float, height: float, cutout: Cutout, region: Region, spec
         return pm
     ring_elements = np.arange(t.shape[1] - n_ring, t.shape[1])
     return _with_ring(pm, outer, xy_off, t_off, ring_elements, spec.curved)
+
+
+def _generate(gmsh, h_max: float) -> None:
+    """Mesh the model in 2-D with sizes from the background field only (capped at ``h_max``)."""
+    gmsh.option.setNumber("Mesh.MeshSizeFromPoints", 0)
+    gmsh.option.setNumber("Mesh.MeshSizeFromCurvature", 0)
+    gmsh.option.setNumber("Mesh.MeshSizeExtendFromBoundary", 0)
+    gmsh.option.setNumber("Mesh.MeshSizeMax", h_max)
+    gmsh.option.setNumber("Mesh.Algorithm", 6)
+    gmsh.model.mesh.generate(2)
 
 
 def _linear_mesh(node_tags, coords, enodes):
@@ -370,12 +375,7 @@ def _mesh_row(width: float, height: float, cutout: Cutout, region: Region, spec:
         for line in holes:
             gmsh.model.mesh.setTransfiniteCurve(line, 2)
         _size_field(gmsh, all_pts, np.concatenate(all_h), spec.growth, h_max)
-        gmsh.option.setNumber("Mesh.MeshSizeFromPoints", 0)
-        gmsh.option.setNumber("Mesh.MeshSizeFromCurvature", 0)
-        gmsh.option.setNumber("Mesh.MeshSizeExtendFromBoundary", 0)
-        gmsh.option.setNumber("Mesh.MeshSizeMax", h_max)
-        gmsh.option.setNumber("Mesh.Algorithm", 6)
-        gmsh.model.mesh.generate(2)
+        _generate(gmsh, h_max)
         node_tags, coords, _ = gmsh.model.mesh.getNodes()
         etypes, _, enodes = gmsh.model.mesh.getElements(2, surface)
     except Exception as err:  # gmsh raises bare Exception
