@@ -460,7 +460,7 @@ def design_check(study_def, best: Candidate, out_dir: Path, dxf_info: dict, warn
             verdict_reasons=tuple(v["verdict_reasons"]), advice=tuple(v["advice"]),
             buckling_load_factor=r.buckling_load_factor, buckling_error_estimate_pct=r.buckling_error_estimate_pct,
             buckling_reserve=r.buckling_reserve, buckling_load_factor_unperforated=r.buckling_load_factor_unperforated,
-            with_stability=with_stab))
+            with_stability=with_stab, locations=tuple(asdict(loc) for loc in r.locations if cut.count > 1)))
     density = study_def.material.density
     return DesignCheck(
         peak_stress_mpa=ev.peak_stress_mpa, kt=ev.kt, kt_reference=ev.kt_reference, area_mm2=ev.area_mm2,

@@ -111,10 +111,16 @@ class CaseCheck:
     buckling_reserve: float | None = None
     buckling_load_factor_unperforated: float | None = None
     with_stability: bool = False
+    # several openings: each opening's peak (LocationPeak as a dict: location, peak_stress_mpa, x_mm, y_mm,
+    # error_estimate_pct); empty for one opening
+    locations: tuple[dict, ...] = ()
 
     def to_dict(self) -> dict:
         d = asdict(self)
         d.pop("with_stability")
+        d["locations"] = list(self.locations)
+        if not self.locations:
+            d.pop("locations")
         d["verdict_reasons"], d["advice"] = list(self.verdict_reasons), list(self.advice)
         if not self.with_stability:
             for k in CASE_KEYS:
@@ -123,7 +129,7 @@ class CaseCheck:
 
     @classmethod
     def from_dict(cls, d: dict) -> CaseCheck:
-        return cls(**{k: (tuple(v) if k in ("verdict_reasons", "advice") else v) for k, v in d.items()},
+        return cls(**{k: (tuple(v) if k in ("verdict_reasons", "advice", "locations") else v) for k, v in d.items()},
                    with_stability="buckling_load_factor" in d)
 
 

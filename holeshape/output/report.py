@@ -108,8 +108,12 @@ def describe_params(params: dict) -> str:
             return "(" + ", ".join(one(k, x) for x in v) + ")"
         if not isinstance(v, (int, float)) or isinstance(v, bool):
             return str(v)
-        if k == "rotation":
+        if k in ("rotation", "direction") or k.endswith((".rotation", ".direction")):
             return f"{v:.1f} deg"
+        if k == "count":
+            return f"{int(v)}"
+        if k == "pitch":
+            return f"{v:.1f} mm"
         if k == "exponent":
             return f"{v:.2f}"
         return f"{v:.1f} mm" if k in LENGTH_KEYS and k != "center" else f"{v:.1f}"
@@ -318,6 +322,12 @@ def section_recommendation(page: Page, b: DesignCheck) -> None:
     page.table([c.to_dict() for c in b.load_cases], [
         ("name", "load case"), ("peak_stress_mpa", "peak (MPa)"), ("kt", "Kt"), ("x_mm", "x (mm)"),
         ("y_mm", "y (mm)"), ("margin_of_safety", "margin of safety")])
+    per_opening = [{"name": c.name, **loc} for c in b.load_cases for loc in c.locations
+                   if loc["location"].startswith("opening")]
+    if per_opening:
+        page.para("Every opening, every load case (the peak of each opening's edge, with its mesh error estimate):")
+        page.table(per_opening, [("name", "load case"), ("location", "opening"), ("peak_stress_mpa", "peak (MPa)"),
+                                 ("x_mm", "x (mm)"), ("y_mm", "y (mm)"), ("error_estimate_pct", "error estimate (%)")])
     reqs = [asdict(r) for r in b.requirements]
     if reqs:
         failed = [r for r in reqs if not r["met"]]

@@ -204,6 +204,9 @@ def optimise_summary(rec: RunRecord) -> str:
     for r in b.load_cases:
         mos = "" if r.margin_of_safety is None else f", MoS {r.margin_of_safety:+.3f}"
         lines.append(f"    {r.name}: {r.peak_stress_mpa:.2f} MPa at ({r.x_mm:.1f}, {r.y_mm:.1f}) mm{mos}")
+        if r.locations:
+            lines.append("      " + ", ".join(f"{loc['location']} {loc['peak_stress_mpa']:.1f}" for loc in r.locations)
+                         + " MPa")
     if rec.baselines:
         lines.append("  standard shapes (same constraints, fine level):")
     for row in rec.baselines:
