@@ -9,10 +9,13 @@ from __future__ import annotations
 
 import fcntl
 import logging
+import math
 import multiprocessing
 import time
 from dataclasses import asdict, dataclass
 from pathlib import Path
+
+import numpy as np
 
 from holeshape import __version__, cautions
 from holeshape.errors import SearchError, StorageError, StudyError
@@ -86,12 +89,13 @@ def _family_params(study_family: str, base_family: str, cut, space: DesignSpace)
         vals = {"a": a, "b": b, "exponent": 2.0}
     elif study_family == "ellipse" and base_family == "circle":
         vals = {"a": sh.radius, "b": sh.radius}
-    elif study_family == "spline" and base_family == "circle":
-        n = len(space.spec.values["radii"])
-        vals = {flat_name("radii", i): sh.radius for i in range(n)}
+    elif study_family == "spline":
+        vals = _spline_radii(cut, space)
     else:
         return None
     vals.update({"center[0]": cut.center[0], "center[1]": cut.center[1], "rotation": cut.rotation})
+    if study_family == "spline" and base_family != "circle":
+        vals["rotation"] = _spline_rotation(cut, space)
     dims = space.dimensions
     out = {}
     for k, r in dims.items():
@@ -113,6 +117,28 @@ def _family_params(study_family: str, base_family: str, cut, space: DesignSpace)
             if space.constraints.area is None or k in ("center[0]", "center[1]", "rotation", "exponent"):
                 return None
     return out
+
+
+def _spline_rotation(cut, space: DesignSpace) -> float:
+    """The rotation a spline start takes: the standard shape's where the study searches it, else the study's."""
+    fixed = space.values({}).get("rotation", 0.0)
+    return cut.rotation if "rotation" in space.dimensions or isinstance(fixed, (list, str)) else float(fixed)
+
+
+def _spline_radii(cut, space: DesignSpace) -> dict[str, float]:
+    """The spline radii through a standard shape's outline (its polar radius about its centre at the spline's
+    angles, in the spline's own frame): the same shape for a circle, a close one otherwise (a start)."""
+    spec_radii = space.spec.values["radii"]
+    n = len(spec_radii)
+    sym = space.values({}).get("symmetry", "none")
+    span = {"none": 2 * math.pi * (n - 1) / n, "x": math.pi, "xy": math.pi / 2}[sym]
+    theta = np.linspace(0.0, span, n) + math.radians(_spline_rotation(cut, space))
+    p = cut.sampling.points
+    phi = np.arctan2(p[1] - cut.center[1], p[0] - cut.center[0])
+    rho = np.hypot(p[0] - cut.center[0], p[1] - cut.center[1])
+    order = np.argsort(phi)
+    r = np.interp(np.mod(theta + math.pi, 2 * math.pi) - math.pi, phi[order], rho[order], period=2 * math.pi)
+    return {flat_name("radii", i): float(v) for i, v in enumerate(r)}
 
 
 def run_optimise(study_path: str, out: str, workers: int = 1, storage_url: str | None = None,

@@ -20,6 +20,10 @@ MEASURES = ("von_mises", "max_principal", "hoop")
 ACCURACIES = ("draft", "standard", "fine")
 EDGE_SUPPORTS = ("simply_supported", "clamped")
 GOALS = ("lowest_peak", "largest_opening", "lightest_reinforcement")
+# "auto": the gradient refinement for a free-form outline of many radii searched for the lowest peak, else the
+# sampler then simplex; "sampler_simplex": Optuna's TPE then Nelder-Mead; "gradient": standard shapes, then
+# sequential linear programming on finite differences over a moved mesh (holeshape.search.gradient)
+METHODS = ("auto", "sampler_simplex", "gradient")
 SHAPE_PARAMETERS: dict[str, tuple[str, ...]] = {
     "circle": ("radius",),
     "ellipse": ("a", "b"),
@@ -291,12 +295,13 @@ class SearchSettings:
     ``goal``: "lowest_peak" (lowest peak stress), "lightest_reinforcement" (the least reinforcement volume, hence
     mass, that meets every constraint: searched [reinforcement] sizes) or "largest_opening" (largest removed area
     within every
-    constraint: the weight-reduction study)."""
+    constraint: the weight-reduction study); ``method``: one of :data:`METHODS`."""
 
     trials: int = 60
     seed: int = 0
     global_fraction: float = 0.25
     goal: str = "lowest_peak"
+    method: str = "auto"
 
 
 @dataclass(frozen=True)
@@ -639,7 +644,7 @@ def _parse_constraints(c: dict, panel: Panel) -> Constraints:
 
 
 def _parse_search(c: dict) -> SearchSettings:
-    _unknown(c, ("trials", "seed", "global_fraction", "goal"), "search.")
+    _unknown(c, ("trials", "seed", "global_fraction", "goal", "method"), "search.")
     trials, seed = c.get("trials", 60), c.get("seed", 0)
     for name, v in (("trials", trials), ("seed", seed)):
         if isinstance(v, bool) or not isinstance(v, int):
@@ -652,7 +657,8 @@ def _parse_search(c: dict) -> SearchSettings:
     if not 0.0 < frac <= 1.0:
         raise StudyError(f"search.global_fraction must be in (0, 1], got {frac!r}")
     goal = _string(c, "goal", "search.", GOALS, default="lowest_peak")
-    return SearchSettings(trials=trials, seed=seed, global_fraction=frac, goal=goal)
+    method = _string(c, "method", "search.", METHODS, default="auto")
+    return SearchSettings(trials=trials, seed=seed, global_fraction=frac, goal=goal, method=method)
 
 
 def _parse_reinforcement(c: dict, panel: Panel) -> dict[str, Any]:

@@ -19,6 +19,7 @@ import numpy as np
 
 from holeshape.errors import GeometryError, HoleshapeError, StorageError
 from holeshape.search.constraints import constraint_values, solved_constraint_values
+from holeshape.search.gradient import chosen_method
 from holeshape.search.space import DesignSpace
 from holeshape.study import ACCURACIES, Measure, Study, load_study, split_flat_name
 
@@ -79,6 +80,10 @@ class Objective:
     cache: dict = field(default_factory=dict, compare=False, hash=False)  # shared results of this run
 
     def __call__(self, params: dict[str, float]) -> dict:
+        return self.evaluate(params)[0]
+
+    def evaluate(self, params: dict[str, float], keep: bool = False):
+        """(record, the solved fields of the last mesh level when ``keep`` and the design was solved, else None)."""
         from holeshape.evaluate import evaluate
 
         t0 = time.perf_counter()
@@ -88,7 +93,7 @@ class Objective:
         except GeometryError as err:
             rec.update(state="infeasible", constraints={"outline": 1.0})
             rec["user_attrs"].update(feasible=False, reason=str(err))
-            return rec
+            return rec, None
         cons, reasons = constraint_values(cutout, self.study.panel, self.study.constraints,
                                           self.study.material.density)
         rec["constraints"] = cons
@@ -97,19 +102,20 @@ class Objective:
         if reasons:
             rec["state"] = "infeasible"
             rec["user_attrs"].update(feasible=False, reason="; ".join(reasons))
-            return rec
+            return rec, None
         study = self.study
         try:
-            ev = evaluate(study.panel, study.material, study.load_cases, cutout,
-                          Measure(study.measure.stress, SEARCH_ACCURACY), time_limit_s=TRIAL_TIME_LIMIT_S,
-                          stability=search_stability(study), cache=self.cache)
+            out = evaluate(study.panel, study.material, study.load_cases, cutout,
+                           Measure(study.measure.stress, SEARCH_ACCURACY), time_limit_s=TRIAL_TIME_LIMIT_S,
+                           stability=search_stability(study), cache=self.cache, keep_fields=keep)
+            ev, fields = out if keep else (out, None)
         except HoleshapeError as err:
             # the project's own errors (mesh, solve, geometry) belong to the design: record it failed, with its
             # reason, and go on; anything else is a bug and stops the study (see run_worker)
             rec["state"] = "failed"
             rec["user_attrs"].update(feasible=True, failure=f"{type(err).__name__}: {' '.join(str(err).split())}")
             log.debug("trial failed", exc_info=True)
-            return rec
+            return rec, None
         post, post_reasons = solved_constraint_values(ev, study.constraints)
         rec["constraints"].update(post)
         rec["state"] = "complete"
@@ -123,7 +129,7 @@ class Objective:
             rec["user_attrs"]["buckling_load_factor"] = ev.stability.load_factor
         if post_reasons:
             rec["user_attrs"]["reason"] = "; ".join(post_reasons)
-        return rec
+        return rec, fields
 
 
 def search_stability(study: Study):
@@ -205,10 +211,11 @@ def started(study) -> int:
 
 
 def is_feasible(t) -> bool:
+    """A candidate: complete, meeting every constraint, and a full evaluation (not a gradient probe)."""
     from optuna.trial import TrialState
 
     return t.state == TrialState.COMPLETE and t.user_attrs.get("feasible", False) and \
-        all(v <= 0 for v in t.constraints.values())
+        not t.user_attrs.get("probe", False) and all(v <= 0 for v in t.constraints.values())
 
 
 def best_feasible(study):
@@ -275,6 +282,7 @@ def run_worker(study_path: str, storage_url: str | None, out_dir: str, study_nam
     study = optuna.load_study(study_name=study_name, storage=storage, sampler=sampler)
     objective = Objective(study_def, space, trade_off)
     n_global = max(1, int(math.ceil(settings.global_fraction * settings.trials)))
+    method = "sampler_simplex" if trade_off else chosen_method(study_def)
     dists = space.distributions()
     simplex = None
     pending = None
@@ -285,7 +293,8 @@ def run_worker(study_path: str, storage_url: str | None, out_dir: str, study_nam
             on_trial(study)
         if started(study) >= settings.trials:  # counting running ones too: workers do not overshoot the budget
             return
-        if trade_off or done < n_global or len(dists) == 0 or best_feasible(study) is None:
+        sampler_phase = done < n_global and method != "gradient"
+        if trade_off or sampler_phase or len(dists) == 0 or best_feasible(study) is None:
             trial = study.ask(dists)
             try:
                 rec = objective(trial.params)
@@ -299,6 +308,10 @@ def run_worker(study_path: str, storage_url: str | None, out_dir: str, study_nam
                 if len(finished(study)) >= settings.trials:
                     rec = {"state": "failed", "constraints": {}, "user_attrs": {"failure": OVER_BUDGET}}
                 _record(study, trial, rec, trade_off)
+            continue
+        if method == "gradient":
+            _refine(study, study_def, space, objective, gate, worker, seed, on_trial)
+            method = "sampler_simplex"  # a refinement that stopped before the budget: the simplex takes the rest
             continue
         # local refinement from the best feasible design; each worker starts its simplex differently
         if simplex is None:
@@ -322,6 +335,29 @@ def run_worker(study_path: str, storage_url: str | None, out_dir: str, study_nam
         pending = _penalised(rec, reference)
         if rec["state"] == "complete" and rec["user_attrs"].get("feasible"):
             reference = min(reference, rec["value"])
+
+
+def _refine(study, study_def: Study, space: DesignSpace, objective: Objective, gate: BudgetGate, worker: int,
+            seed: int, on_trial=None) -> None:
+    """The gradient refinement (holeshape.search.gradient) from a feasible design: worker k starts from the k-th
+    best distinct one (the standard shapes and any sampled design), so two workers do not walk the same path."""
+    from holeshape.search.gradient import Refinement
+
+    trials = study_def.search.trials
+
+    def record(rec: dict) -> bool:
+        with gate:
+            if len(finished(study)) >= trials:
+                return False
+            add_record(study, space, rec, False)
+        if on_trial is not None:
+            on_trial(study)
+        return True
+
+    starts = sorted((t for t in finished(study) if is_feasible(t)), key=lambda t: t.value)
+    distinct = [t for i, t in enumerate(starts) if all(abs(t.value - u.value) > 1e-9 for u in starts[:i])]
+    start = distinct[worker % len(distinct)]
+    Refinement(study_def, space, objective, record, list(space.dimensions), seed).run(dict(start.params))
 
 
 WORKER_BUG_EXIT = 70  # a worker process stopped on an error that is not one of the project's own
