@@ -152,6 +152,13 @@ def run_optimise(study_path: str, out: str, workers: int = 1, storage_url: str |
     study_def = load_study(study_path)
     space = DesignSpace(study_def.cutout, study_def.constraints)
     space.check()
+    if study_def.search.method == "gradient" and not trade_off:
+        from holeshape.search.gradient import not_applicable
+
+        why = not_applicable(study_def)
+        if why is not None:
+            raise StudyError(f"search.method = \"gradient\" cannot be used for this study: {why}; use \"auto\" or"
+                             " \"sampler_simplex\"")
     if workers < 1 or workers > 64:
         raise StudyError(f"--workers must be between 1 and 64, got {workers}")
     out_dir = Path(out)
@@ -347,7 +354,9 @@ def trial_counts(study) -> TrialCounts:
     counted = {t.number for t in finished(study)}
     failed = [t for t in trials if t.state == TrialState.FAIL and t.number in counted]
     interrupted = [t for t in trials if t.state == TrialState.FAIL and t.number not in counted]
-    return TrialCounts(completed=len(complete), infeasible=len([t for t in complete if not is_feasible(t)]),
+    probes = [t for t in complete if t.user_attrs.get("probe")]
+    return TrialCounts(completed=len(complete), probes=len(probes),
+                       infeasible=len([t for t in complete if not is_feasible(t) and not t.user_attrs.get("probe")]),
                        failed=len(failed), interrupted=len(interrupted),
                        refused_after_solve=_refused_after_solve(complete),
                        failures=tuple(sorted({str(t.user_attrs.get("failure")) for t in failed})[:10]))
@@ -436,6 +445,9 @@ def write_plots(out_dir: Path, study_def, trials, best: Candidate, usable_baseli
                                  study_def.panel, study_def.constraints, study_def.title, ev.peak_stress_mpa,
                                  {f: e.peak_stress_mpa for f, _, e in usable_baselines}),
     ]
+    if study_def.cutout.shape == "spline":
+        radii = search_plots.plot_radii_history(out_dir / "search_outlines.png", trials, study_def.title)
+        paths += [radii] if radii is not None else []
     gov = [r.name for r in ev.load_cases].index(ev.governing_load_case)
     outlines = [o.T for o in cut.outlines(720)]
     paths.append(plots.plot_stress_field(out_dir / "best_stress_field.png", ev, fields, outlines, gov, size,

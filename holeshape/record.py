@@ -254,6 +254,12 @@ class TrialCounts:
     interrupted: int
     refused_after_solve: dict
     failures: tuple[str, ...]
+    probes: int = 0  # gradient probes among the completed trials (one mesh level each; no candidates)
+
+    @property
+    def probe_note(self) -> str:
+        """' (of them k gradient probes)' for the outputs, or ''."""
+        return f", {self.probes} of them gradient probes" if self.probes else ""
 
 
 @dataclass(frozen=True)
@@ -283,7 +289,8 @@ class RunRecord:
              "family_best": self.family_best, "baselines": [b.to_dict() for b in self.baselines],
              "improvement_over_baselines_pct": self.improvement_over_baselines_pct,
              "trials_completed": t.completed, "trials_infeasible": t.infeasible, "trials_failed": t.failed,
-             "trials_interrupted": t.interrupted, "failures": list(t.failures), "storage": self.storage,
+             "trials_interrupted": t.interrupted, "trials_probes": t.probes, "failures": list(t.failures),
+             "storage": self.storage,
              "study": self.study, "search_accuracy": self.search_accuracy, "elapsed_s": self.elapsed_s,
              "plots": list(self.plots), "holeshape_version": self.holeshape_version, "cautions": self.cautions}
         if self.front is not None:
@@ -296,7 +303,7 @@ class RunRecord:
     def from_summary(cls, d: dict) -> RunRecord:
         trials = TrialCounts(d["trials_completed"], d["trials_infeasible"], d["trials_failed"],
                              d.get("trials_interrupted", 0), d.get("trials_refused_after_solve", {}),
-                             tuple(d.get("failures", [])))
+                             tuple(d.get("failures", [])), d.get("trials_probes", 0))
         return cls(best=DesignCheck.from_dict(d["best"]), family_best=d.get("family_best"),
                    baselines=tuple(Baseline.from_dict(b) for b in d.get("baselines", [])),
                    improvement_over_baselines_pct=d.get("improvement_over_baselines_pct", {}),

@@ -269,8 +269,10 @@ def build_report(run_dir: str | Path, fmt: str = "html") -> Path:
     section_validation(page, validation)
     page.h2(SECTIONS[8])
     page.img("search_history.png", "search history, best so far against trial")
+    page.img("search_outlines.png", "outline of each new best design (free-form search), overlaid about the centre")
     page.img("trade_off_front.png", "trade-off front, removed area against peak stress")
-    page.para(f"{rec.trials.completed} trials completed ({rec.trials.infeasible} infeasible), "
+    page.para(f"{rec.trials.completed} trials completed ({rec.trials.infeasible} infeasible"
+              f"{rec.trials.probe_note}), "
               f"{rec.trials.failed} failed; storage {rec.storage}.")
     section_cautions(page, inputs, rec.cautions)
     return page.write(title)

@@ -21,9 +21,15 @@ def plot_history(path: Path, trials, title: str, goal: str = "lowest_peak") -> P
     fig, ax = plt.subplots(figsize=(8, 4.6))
     sign = -1.0 if goal == "largest_opening" else 1.0  # the study stores minus the area for the largest opening
     scale = 1e-3 if goal == "lightest_reinforcement" else 1.0  # mm^3 -> cm^3
+    probes = [(t.number, sign * scale * t.values[0]) for t in trials if t.state == TrialState.COMPLETE
+              and t.user_attrs.get("probe") and t.values[0] < 1e8]
+    trials = [t for t in trials if not t.user_attrs.get("probe")]
     feas = [(t.number, sign * scale * t.values[0]) for t in trials if t.state == TrialState.COMPLETE
             and t.user_attrs.get("feasible") and all(v <= 0 for v in t.constraints.values())]
     infeas = [t.number for t in trials if t.state == TrialState.COMPLETE and not t.user_attrs.get("feasible", True)]
+    if probes:
+        n, v = np.array(probes).T
+        ax.plot(n, v, ".", ms=2, color="C0", alpha=0.5, label=f"gradient probes ({len(probes)}; moved mesh)")
     failed = [t.number for t in trials if t.state == TrialState.FAIL]
     if feas:
         n, v = np.array(feas).T
@@ -53,6 +59,47 @@ def plot_history(path: Path, trials, title: str, goal: str = "lowest_peak") -> P
     ax.legend(fontsize=8, loc="upper right")
     ax.set_title(f"{title}: search history")
     fig.tight_layout(rect=(0, 0.02, 1, 1))
+    return save(fig, path)
+
+
+def plot_radii_history(path: Path, trials, title: str) -> Path | None:
+    """The outline of every new best design of a free-form (spline) search, overlaid about its centre and coloured
+    by trial (late = dark), the final one in black: how the shape evolved, in one panel. None when the study has
+    no spline designs."""
+    from optuna.trial import TrialState
+
+    from holeshape.geometry.spline import Spline
+
+    best, steps = np.inf, []
+    for t in sorted(trials, key=lambda t: t.number):
+        d = t.user_attrs.get("dims") or {}
+        if t.state != TrialState.COMPLETE or t.user_attrs.get("probe") or "radii" not in d or \
+                not t.user_attrs.get("feasible") or any(v > 0 for v in t.constraints.values()):
+            continue
+        if t.values[0] < best:
+            best = t.values[0]
+            steps.append((t.number, best, Spline(tuple(d["radii"]), d.get("symmetry", "none")),
+                          float(d.get("rotation", 0.0))))
+    if not steps:
+        return None
+    plt = pyplot()
+    fig, ax = plt.subplots(figsize=(6.4, 6.0))
+    th = np.linspace(0.0, 2 * np.pi, 721)
+    cmap = plt.get_cmap("viridis_r")
+    last = steps[-1][0] or 1
+    for k, (num, val, shape, rot) in enumerate(steps):
+        x, y = shape.local_xy(th)
+        c, s = np.cos(np.radians(rot)), np.sin(np.radians(rot))
+        final = k == len(steps) - 1
+        ax.plot(c * x - s * y, s * x + c * y, color="black" if final else cmap(0.15 + 0.85 * num / last),
+                lw=2.0 if final else 0.9, label=f"trial {num}: {val:.1f}" if final or k == 0 else None)
+    ax.set_aspect("equal")
+    ax.grid(True, alpha=0.3)
+    ax.set_xlabel("x from the centre (mm)")
+    ax.set_ylabel("y from the centre (mm)")
+    ax.legend(fontsize=8, loc="upper right", title="first and last best (objective)")
+    ax.set_title(f"{title}: outline of each new best design ({len(steps)})", fontsize=10)
+    fig.tight_layout()
     return save(fig, path)
 
 

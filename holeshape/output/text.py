@@ -172,7 +172,7 @@ def optimise_summary(rec: RunRecord) -> str:
     t = rec.trials
     lines = [
         f"holeshape optimise: {rec.study}",
-        f"  trials        {t.completed} completed ({t.infeasible} infeasible), {t.failed} failed;"
+        f"  trials        {t.completed} completed ({t.infeasible} infeasible{t.probe_note}), {t.failed} failed;"
         f" storage {rec.storage}",
         f"  best          {b.shape}: {dims}",
         f"  size          {x1 - x0:.1f} x {y1 - y0:.1f} mm overall, smallest radius {b.min_radius_mm:.2f} mm,"
