@@ -17,6 +17,7 @@ demo: $(STAMP)
 	$(VENV)/bin/holeshape check studies/rib-web-check.toml --plots runs/rib-web-access/current-design
 	$(VENV)/bin/holeshape optimise studies/rib-web-access.toml --out runs/rib-web-access
 	$(VENV)/bin/holeshape optimise studies/rib-web-lightening.toml --out runs/rib-web-lightening
+	$(VENV)/bin/holeshape optimise studies/rib-web-freeform.toml --out runs/rib-web-freeform
 	$(VENV)/bin/holeshape optimise studies/floor-beam-flanged-access.toml --out runs/floor-beam-flanged-access
 	$(VENV)/bin/holeshape check studies/floor-beam-service-opening.toml --plots runs/floor-beam-service-opening
 	$(VENV)/bin/holeshape optimise studies/floor-beam-lightening-row.toml --out runs/floor-beam-lightening-row

@@ -202,7 +202,7 @@ def run_optimise(study_path: str, out: str, workers: int = 1, storage_url: str |
                     add_record(study, space, rec, trade_off)
         _run_workers(study_path, storage_url, out_dir, name, workers, trade_off, study_def.search.trials, progress,
                      study_def.search.goal)
-        return _finish(study_def, study, space, baselines, out_dir, storage_name, trade_off, t0, cache)
+        return _finish(study_def, study, space, baselines, out_dir, storage_name, trade_off, t0, cache, workers)
 
 
 def _create_or_load(optuna, name: str, storage, directions: list[str]):
@@ -397,6 +397,8 @@ def choose_recommendation(checks: FinalChecks, study, space, usable_baselines
             own = cand
             break
         fallback = fallback or (cand, reasons)
+    if callable(usable_baselines):  # checked meanwhile in another process (see _finish)
+        usable_baselines = usable_baselines()
     if own is None and fallback is not None and not usable_baselines:
         own = fallback[0]
         warnings.append(f"the best design found misses a requirement at the {FINAL_ACCURACY} level: "
@@ -514,17 +516,53 @@ def design_check(study_def, best: Candidate, out_dir: Path, dxf_info: dict, warn
         stability=None if ev.stability is None else ev.stability.to_dict(), reinforcement=reinforcement)
 
 
+def _side_checks(study_def, baselines, validate: bool):
+    """The final checks that do not depend on the search's winner, run in a process of their own when the study has
+    several workers: the standard shapes at the final level, and the validation appendix."""
+    from holeshape.validation import run_validation
+
+    rows, usable = check_standard_shapes(FinalChecks(study_def, {}), baselines)
+    return rows, usable, run_validation(FINAL_ACCURACY) if validate else None
+
+
 def _finish(study_def, study, space, baselines, out_dir: Path, storage_name: str, trade_off: bool, t0: float,
-            cache: dict) -> dict:
-    """The end of a run, in named steps: final checks, choice, profiles, plots, the typed record, the files."""
+            cache: dict, workers: int = 1) -> dict:
+    """The end of a run, in named steps: final checks, choice, profiles, plots, the typed record, the files.
+    With several workers the standard shapes and the validation appendix are checked in a second process while
+    this one checks the search's best designs."""
     from holeshape.output import files, search_plots
     from holeshape.output.report import build_report
 
     checks = FinalChecks(study_def, cache)
     goal = study_def.search.goal
     trials = study.get_trials(deepcopy=False)
-    base_rows, usable = check_standard_shapes(checks, baselines)
-    best, own, warnings = choose_recommendation(checks, study, space, usable)
+    validate = not (out_dir / "validation.json").exists()
+    side = None
+    cached = all(c is None or _standard_key(study_def, c, checks.measure) in cache for _, c, _ in baselines)
+    if workers > 1 and not (cached and not validate):
+        from concurrent.futures import ProcessPoolExecutor
+
+        pool = ProcessPoolExecutor(max_workers=1, mp_context=multiprocessing.get_context("spawn"))
+        side = pool.submit(_side_checks, study_def, baselines, validate)
+        pool.shutdown(wait=False)
+    got: dict = {}
+
+    def side_result():
+        if "rows" not in got:
+            rows, usable, valid = side.result()
+            got.update(rows=rows, usable=usable, validation=valid)
+            for _, cut, ev in usable:  # later families of a compare run reuse them
+                cache[_standard_key(study_def, cut, checks.measure)] = ev
+        return got["usable"]
+
+    if side is None:
+        base_rows, usable = check_standard_shapes(checks, baselines)
+        best, own, warnings = choose_recommendation(checks, study, space, usable)
+    else:
+        best, own, warnings = choose_recommendation(checks, study, space, side_result)
+        usable, base_rows = side_result(), got["rows"]
+        if got["validation"] is not None:
+            files.write_json(out_dir / "validation.json", got["validation"])
     dxf_info, family_best = write_profiles(out_dir, study_def, best, own)
     plot_paths = write_plots(out_dir, study_def, trials, best, usable, "lowest_peak" if trade_off else goal)
     ev = best.evaluation
@@ -557,10 +595,15 @@ def _finish(study_def, study, space, baselines, out_dir: Path, storage_name: str
 def _standard_shape_evaluation(panel, material, load_cases, cutout, measure, stability, cache: dict):
     """The standard shapes are the same for every family that ``compare`` searches: evaluate each once per run
     (``cache`` belongs to the run)."""
-    key = ("standard shape", panel, material, load_cases, cutout, measure, stability)
+    key = ("standard shape", panel, material, load_cases, cutout, measure, stability)  # as _standard_key
     if key not in cache:
         cache[key] = evaluate(panel, material, load_cases, cutout, measure, stability=stability, cache=cache)
     return cache[key]
+
+
+def _standard_key(study_def, cutout, measure) -> tuple:
+    s = study_def
+    return ("standard shape", s.panel, s.material, s.load_cases, cutout, measure, s.stability)
 
 
 def _refused_after_solve(complete) -> dict:
