@@ -3,6 +3,7 @@
 Run:  .venv/bin/python benchmarks/search.py            (the harmonic-hole benchmark below)
       .venv/bin/python benchmarks/search.py freeform   (free-form splines of 12 and 24 radii, same load and area)
       .venv/bin/python benchmarks/search.py freeform cmaes   (also CMA-ES rows; needs `pip install cmaes`)
+      .venv/bin/python benchmarks/search.py harmonic | workers   (one part of the first)
 For three seeds and the same budget of evaluations: holeshape's strategy (standard shapes, TPE, then Nelder-Mead),
 plain random search (Optuna's RandomSampler) and a grid sweep (4 x 4 x 5). Prints the evaluations needed to come
 within 2 %, 0.5 % and 0.2 % of the optimum (best-so-far, draft-level values), the wall time per study, and the
@@ -223,33 +224,46 @@ def fmt(n):
     return "-" if n is None else str(n)
 
 
-def main() -> None:
+def main(parts: tuple[str, ...] = ("harmonic", "workers")) -> None:
     sys.stdout.reconfigure(line_buffering=True)
     with tempfile.TemporaryDirectory() as tmp:
         folder = Path(tmp)
-        print(f"Budget {BUDGET} evaluations; optimum {OPTIMUM} MPa; evaluations to reach within 2 % / 0.5 % / 0.2 %\n")
-        print("| method | seed | within 2 % | within 0.5 % | within 0.2 % | best (MPa) | wall time |")
-        print("|---|---|---|---|---|---|---|")
-        for seed in (1, 2, 3):
-            vals, wall = holeshape_run(folder, seed)
-            print(f"| holeshape (TPE then Nelder-Mead) | {seed} | {fmt(first_within(vals, 0.02))} |"
-                  f" {fmt(first_within(vals, 0.005))} | {fmt(first_within(vals, 0.002))} | {min(vals):.2f} |"
-                  f" {wall:.1f} s |")
-        for seed in (1, 2, 3):
-            t0 = time.perf_counter()
-            vals = random_run(folder, seed)
-            print(f"| random search | {seed} | {fmt(first_within(vals, 0.02))} | {fmt(first_within(vals, 0.005))} |"
-                  f" {fmt(first_within(vals, 0.002))} | {min(vals):.2f} | {time.perf_counter() - t0:.1f} s |")
+        if "harmonic" in parts:
+            harmonic_table(folder)
+        if "workers" in parts:
+            workers_timing(folder)
+
+
+def harmonic_table(folder: Path) -> None:
+    print(f"Budget {BUDGET} evaluations; optimum {OPTIMUM} MPa; evaluations to reach within 2 % / 0.5 % / 0.2 %\n")
+    print("| method | seed | within 2 % | within 0.5 % | within 0.2 % | best (MPa) | wall time |")
+    print("|---|---|---|---|---|---|---|")
+    for seed in (1, 2, 3):
+        vals, wall = holeshape_run(folder, seed)
+        print(f"| holeshape (TPE then Nelder-Mead) | {seed} | {fmt(first_within(vals, 0.02))} |"
+              f" {fmt(first_within(vals, 0.005))} | {fmt(first_within(vals, 0.002))} | {min(vals):.2f} |"
+              f" {wall:.1f} s |")
+    for seed in (1, 2, 3):
         t0 = time.perf_counter()
-        vals = grid_run(folder)
-        print(f"| grid 4 x 4 x 5 | - | {fmt(first_within(vals, 0.02))} | {fmt(first_within(vals, 0.005))} |"
+        vals = random_run(folder, seed)
+        print(f"| random search | {seed} | {fmt(first_within(vals, 0.02))} | {fmt(first_within(vals, 0.005))} |"
               f" {fmt(first_within(vals, 0.002))} | {min(vals):.2f} | {time.perf_counter() - t0:.1f} s |")
-        for trials in (60, 300):
-            _, w1 = holeshape_run(folder, 11, workers=1, trials=trials)
-            _, w2 = holeshape_run(folder, 12, workers=2, trials=trials)
-            print(f"\nWall time for a {trials}-trial study (search and the final fine-level checks): 1 worker"
-                  f" {w1:.1f} s, 2 workers {w2:.1f} s: speed-up {w1 / w2:.2f}x on this 2-core machine")
+    t0 = time.perf_counter()
+    vals = grid_run(folder)
+    print(f"| grid 4 x 4 x 5 | - | {fmt(first_within(vals, 0.02))} | {fmt(first_within(vals, 0.005))} |"
+          f" {fmt(first_within(vals, 0.002))} | {min(vals):.2f} | {time.perf_counter() - t0:.1f} s |")
+
+def workers_timing(folder: Path) -> None:
+    """1 against 2 worker processes (run it alone on the machine: another busy process takes the second core)."""
+    for trials in (60, 300):
+        _, w1 = holeshape_run(folder, 11, workers=1, trials=trials)
+        _, w2 = holeshape_run(folder, 12, workers=2, trials=trials)
+        print(f"\nWall time for a {trials}-trial study (search and the final fine-level checks): 1 worker"
+              f" {w1:.1f} s, 2 workers {w2:.1f} s: speed-up {w1 / w2:.2f}x on this 2-core machine")
 
 
 if __name__ == "__main__":
-    free_form_main() if sys.argv[1:2] == ["freeform"] else main()
+    if sys.argv[1:2] == ["freeform"]:
+        free_form_main()
+    else:
+        main(tuple(sys.argv[1:]) or ("harmonic", "workers"))

@@ -40,6 +40,7 @@ STRESS_ROWS_FROM = 0.6  # sample points above this share of the peak enter the l
 GEOMETRY_ROWS_FROM = -0.5  # geometric rows closer than this to their limit (in outline sizes) enter it
 PENALTY = 50.0  # weight of the elastic slack on the geometric rows against the peak (scaled to 1)
 PROBE_NOTE = "gradient probe: the last design's mesh moved with the boundary, one mesh level, not a candidate"
+PROBE_REASON = "a gradient probe, not a candidate (one mesh level, no error estimate, solved requirements not checked)"
 
 
 def not_applicable(study: Study) -> str | None:
@@ -253,7 +254,7 @@ class Refinement:
                                              self.study, cutout)
                 rec["state"] = "complete"
                 rec["value"] = peak
-                rec["user_attrs"]["peak_stress_mpa"] = peak
+                rec["user_attrs"].update(peak_stress_mpa=peak, reason=PROBE_REASON)
         except (GeometryError, HoleshapeError) as err:
             rec["state"] = "failed"
             rec["user_attrs"]["failure"] = f"{type(err).__name__}: {' '.join(str(err).split())}"
