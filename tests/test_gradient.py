@@ -15,7 +15,7 @@ from dataclasses import replace
 import numpy as np
 import pytest
 import tomllib
-from test_search import _finished_params, optimise, write  # noqa: E402  (tests/ is on the path)
+from test_search import HARMONIC, _finished_params, optimise, write  # noqa: E402  (tests/ is on the path)
 
 from holeshape.cli import main
 from holeshape.evaluate import ACCURACY_LEVELS, evaluate
@@ -25,32 +25,13 @@ from holeshape.mesh import Region, mesh_panel
 from holeshape.search.gradient import chosen_method, moved_mesh, sample_stress
 from holeshape.study import LoadCase, Measure, parse_study
 
-FREE = """
-title = "free-form harmonic hole"
-[panel]
-width = 2000.0
-height = 2000.0
-thickness = 1.0
-[material]
-youngs_modulus = 71000.0
-poisson_ratio = 0.33
-[[load_case]]
-name = "biaxial"
-sigma_x = 100.0
-sigma_y = 50.0
-[cutout]
-shape = "spline"
-symmetry = "none"
-radii = {min = 6.0, max = 30.0, count = 12}
-[constraints]
-area = 628.3185307179587
-[search]
-trials = TRIALS
-seed = 3
-METHOD
-[measure]
-stress = "hoop"
-"""
+# the harmonic-hole study of test_search.py with the opening drawn free-form: 12 radii, every one searched
+FREE = HARMONIC.replace('title = "harmonic hole check"', 'title = "free-form harmonic hole"').replace(
+    'shape = "superellipse"\na = {min = 10.0, max = 40.0}\nb = {min = 10.0, max = 40.0}\n'
+    'exponent = {min = 2.0, max = 6.0}',
+    'shape = "spline"\nsymmetry = "none"\nradii = {min = 6.0, max = 30.0, count = 12}').replace(
+    "seed = 3", "seed = 3\nMETHOD")
+assert 'shape = "spline"' in FREE and "METHOD" in FREE
 
 
 def _parse(text: str):

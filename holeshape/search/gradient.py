@@ -26,7 +26,7 @@ from dataclasses import dataclass, replace
 
 import numpy as np
 
-from holeshape.errors import GeometryError, HoleshapeError
+from holeshape.errors import HoleshapeError
 from holeshape.geometry import Cutout
 from holeshape.study import Constraints, Panel, Study
 
@@ -255,7 +255,7 @@ class Refinement:
                 rec["state"] = "complete"
                 rec["value"] = peak
                 rec["user_attrs"].update(peak_stress_mpa=peak, reason=PROBE_REASON)
-        except (GeometryError, HoleshapeError) as err:
+        except HoleshapeError as err:  # geometry, mesh and solve errors belong to the design
             rec["state"] = "failed"
             rec["user_attrs"]["failure"] = f"{type(err).__name__}: {' '.join(str(err).split())}"
         if not self.record(rec):
