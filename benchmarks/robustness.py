@@ -70,7 +70,7 @@ def draws(n: int) -> None:
 
     from holeshape.search.runner import Objective
     from holeshape.search.space import DesignSpace
-    from holeshape.study import load_study
+    from holeshape.studyfile import load_study
 
     rng = np.random.default_rng(1)
     states, crashes, reasons = Counter(), 0, Counter()

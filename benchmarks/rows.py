@@ -13,7 +13,8 @@ from pathlib import Path
 from timing import best_of
 
 from holeshape.evaluate import evaluate
-from holeshape.study import Measure, load_study
+from holeshape.study import Measure
+from holeshape.studyfile import load_study
 
 STUDY = Path(__file__).resolve().parents[1] / "studies" / "floor-beam-lightening-row.toml"
 

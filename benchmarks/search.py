@@ -62,7 +62,7 @@ def holeshape_run(folder: Path, seed: int, workers: int = 1, trials: int = BUDGE
 def objective_for(folder: Path, seed: int):
     from holeshape.search.runner import Objective
     from holeshape.search.space import DesignSpace
-    from holeshape.study import load_study
+    from holeshape.studyfile import load_study
 
     s = load_study(study_file(folder, seed, BUDGET))
     return Objective(s, DesignSpace(s.cutout, s.constraints)), DesignSpace(s.cutout, s.constraints)
@@ -104,7 +104,7 @@ def free_form_file(folder: Path, count: int, seed: int, trials: int, method: str
 def free_form_objective(folder: Path, count: int, seed: int, trials: int, method: str):
     from holeshape.search.runner import Objective
     from holeshape.search.space import DesignSpace
-    from holeshape.study import load_study
+    from holeshape.studyfile import load_study
 
     s = load_study(free_form_file(folder, count, seed, trials, method))
     space = DesignSpace(s.cutout, s.constraints)

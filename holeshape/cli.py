@@ -136,7 +136,7 @@ def _check(args) -> int:
     from dataclasses import replace
 
     from holeshape.evaluate import evaluate
-    from holeshape.study import load_study
+    from holeshape.studyfile import load_study
 
     study = load_study(args.study)
     measure = replace(study.measure, accuracy=args.accuracy) if args.accuracy else study.measure

@@ -15,7 +15,8 @@ from pathlib import Path
 
 from holeshape.errors import HoleshapeError, SearchError, StudyError
 from holeshape.record import REINFORCED_SUFFIX, RunInputs, RunRecord, folder_name
-from holeshape.study import Range, dump_toml, load_study
+from holeshape.study import Range
+from holeshape.studyfile import dump_toml, load_study
 
 FAMILY_ORDER = ("circle", "ellipse", "rounded_rectangle", "slot", "superellipse", "spline")
 REINFORCEMENT_LIMITS = ("max_added_mass", "max_reinforcement_area")
@@ -108,7 +109,7 @@ def run_compare(study_path: str, out: str, workers: int = 1, progress: bool = Tr
     rows, summaries = [], {}
     shared: dict = {}  # the standard shapes and the unperforated panel: the same for every family
     if not (out_dir / "validation.json").exists():  # one validation appendix serves every family's search
-        from holeshape.optimise import FINAL_ACCURACY
+        from holeshape.finish import FINAL_ACCURACY
         from holeshape.validation import run_validation
 
         files.write_json(out_dir / "validation.json", run_validation(FINAL_ACCURACY))

@@ -12,7 +12,8 @@ from pathlib import Path
 import numpy as np
 
 from holeshape.errors import GeometryError, HoleshapeError, StudyError
-from holeshape.study import Range, flat_name, load_study, set_flat, split_flat_name
+from holeshape.study import Range, flat_name, set_flat, split_flat_name
+from holeshape.studyfile import load_study
 
 MAX_POINTS = 400
 

@@ -11,7 +11,7 @@ import math
 
 from hypothesis import strategies as st
 
-from holeshape.study import dump_toml as to_toml  # noqa: F401 - re-exported for the tests
+from holeshape.studyfile import dump_toml as to_toml  # noqa: F401 - re-exported for the tests
 
 VALID = {
     "title": "robustness base study",

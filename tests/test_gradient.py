@@ -5,17 +5,12 @@ search contracts (exact budget, probes recorded, resume after a kill, two worker
 from __future__ import annotations
 
 import json
-import os
-import signal
-import subprocess
-import sys
-import time
 from dataclasses import replace
 
 import numpy as np
 import pytest
 import tomllib
-from test_search import HARMONIC, _finished_params, optimise, write  # noqa: E402  (tests/ is on the path)
+from test_search import HARMONIC, kill_after, optimise, resume_keeps, write  # noqa: E402  (tests/ is on the path)
 
 from holeshape.cli import main
 from holeshape.evaluate import ACCURACY_LEVELS, evaluate
@@ -23,7 +18,8 @@ from holeshape.geometry import Cutout
 from holeshape.geometry.spline import Spline
 from holeshape.mesh import Region, mesh_panel
 from holeshape.search.gradient import chosen_method, moved_mesh, sample_stress
-from holeshape.study import LoadCase, Measure, parse_study
+from holeshape.study import LoadCase, Measure
+from holeshape.studyfile import parse_study
 
 # the harmonic-hole study of test_search.py with the opening drawn free-form: 12 radii, every one searched
 FREE = HARMONIC.replace('title = "harmonic hole check"', 'title = "free-form harmonic hole"').replace(
@@ -110,27 +106,9 @@ def test_twelve_radius_search_approaches_the_harmonic_hole(tmp_path, capsys):
 def test_gradient_search_resumes_after_a_kill_and_runs_with_two_workers(tmp_path, capsys):
     study = write(tmp_path, FREE, TRIALS=60, METHOD="")
     out = tmp_path / "run"
-    cmd = [sys.executable, "-m", "holeshape.cli", "optimise", str(study), "--out", str(out), "-q"]
-    proc = subprocess.Popen(cmd, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL, start_new_session=True,
-                            cwd=os.getcwd())
-    journal = out / "study.journal"
-    deadline = time.time() + 120
-    while time.time() < deadline:
-        time.sleep(0.3)
-        try:
-            if len(_finished_params(journal)) >= 20:
-                break
-        except Exception:  # noqa: BLE001 - the study may not exist yet
-            continue
-    os.killpg(proc.pid, signal.SIGKILL)
-    proc.wait()
-    before = _finished_params(journal)
+    before = kill_after(study, out, 20)
     assert 20 <= len(before) < 60
-    d = optimise(capsys, study, out)
-    after = _finished_params(journal)
-    assert d["trials_completed"] + d["trials_failed"] == 60 == len(after)
-    for number, params in before.items():
-        assert after[number] == params
+    resume_keeps(capsys, study, out, before, 60)
     d2 = optimise(capsys, write(tmp_path, FREE, name="two.toml", TRIALS=40, METHOD=""), tmp_path / "two",
                   "--workers", "2")
     assert d2["trials_completed"] + d2["trials_failed"] == 40

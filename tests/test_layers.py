@@ -14,15 +14,16 @@ PACKAGE = Path(__file__).resolve().parents[1] / "holeshape"
 LAYERS = [
     ("holeshape", "holeshape.errors"),
     ("holeshape.geometry",),
-    ("holeshape.study",),
+    ("holeshape.study", "holeshape.studyfile"),
     ("holeshape.mesh",),
     ("holeshape.solve",),
+    ("holeshape.plate",),
     ("holeshape.stability",),
     ("holeshape.evaluate",),
     ("holeshape.search", "holeshape.validation"),
     ("holeshape.record",),
     ("holeshape.output",),
-    ("holeshape.optimise",),
+    ("holeshape.optimise", "holeshape.finish"),
     ("holeshape.compare", "holeshape.sweep"),
     ("holeshape.cli",),
 ]

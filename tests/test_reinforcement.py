@@ -210,7 +210,8 @@ def test_reinforcement_keys_and_mass_in_the_json():
 def _free_top_edge_plate(n: int):
     from skfem import MeshTri1
 
-    from holeshape.stability import crossed_grid, plate_basis
+    from holeshape.plate import plate_basis
+    from holeshape.stability import crossed_grid
 
     p, t = crossed_grid(300.0, 300.0, n, n)
     m = MeshTri1(p, t)
@@ -236,7 +237,7 @@ def test_edge_beam_limits_on_a_plate_with_one_free_edge():
     #   (derived from the plate energy; an upper bound by the Rayleigh principle);
     # - a beam alone (the web 100x thinner than a foil) under an end load P: Euler's pin-ended column pi^2 EI / a^2
     #   (exact); 0.5 % covers the second differences at 24 segments (measured 0.14 %)
-    from holeshape.stability import edge_beam_matrices
+    from holeshape.plate import edge_beam_matrices
 
     pb, supported, chain = _free_top_edge_plate(24)
     d = E * T ** 3 / (12 * (1 - NU ** 2))

@@ -48,7 +48,7 @@ def test_every_malformed_study_gives_one_clear_line(tmp_path_factory, case, comm
 
 def test_valid_base_study_is_accepted(tmp_path):
     """The mutations above start from a study that is itself valid (else the test proves nothing)."""
-    from holeshape.study import load_study
+    from holeshape.studyfile import load_study
 
     p = tmp_path / "ok.toml"
     p.write_text(to_toml(VALID))

@@ -176,32 +176,42 @@ def _finished_params(journal: Path) -> dict[int, dict]:
     return {t.number: dict(t.params) for t in finished(study)}
 
 
+def kill_after(study: Path, out: Path, count: int) -> dict[int, dict]:
+    """Start ``holeshape optimise`` in a process group of its own, SIGKILL it once ``count`` trials have finished
+    (or after 120 s) and return the finished trials' parameters as the journal holds them after the kill."""
+    cmd = [sys.executable, "-m", "holeshape.cli", "optimise", str(study), "--out", str(out), "-q"]
+    proc = subprocess.Popen(cmd, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL, start_new_session=True,
+                            cwd=os.getcwd())
+    journal = out / "study.journal"
+    deadline = time.time() + 120
+    while time.time() < deadline:
+        time.sleep(0.3)
+        try:
+            if len(_finished_params(journal)) >= count:
+                break
+        except Exception:  # noqa: BLE001 - the journal or the study may not exist yet
+            continue
+    os.killpg(proc.pid, signal.SIGKILL)
+    proc.wait()
+    return _finished_params(journal)
+
+
+def resume_keeps(capsys, study: Path, out: Path, before: dict[int, dict], total: int) -> dict:
+    """Resume the killed run: the budget is met exactly and every trial finished before the kill is unchanged."""
+    d = optimise(capsys, study, out)
+    after = _finished_params(out / "study.journal")
+    assert d["trials_completed"] + d["trials_failed"] == total == len(after)
+    for number, params in before.items():
+        assert after[number] == params
+    return d
+
+
 def test_resume_after_sigkill_keeps_every_completed_trial(tmp_path, capsys):
     study = write(tmp_path, RIB, TRIALS=30, CONSTRAINTS="min_area = 6000.0")
     out = tmp_path / "run"
-    cmd = [sys.executable, "-m", "holeshape.cli", "optimise", str(study), "--out", str(out), "-q"]
-    proc = subprocess.Popen(cmd, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL, start_new_session=True)
-    journal = out / "study.journal"
-    deadline = time.time() + 120
-    before: dict = {}
-    while time.time() < deadline:
-        time.sleep(0.3)
-        if journal.exists():
-            try:
-                before = _finished_params(journal)
-            except Exception:  # noqa: BLE001 - the study may not exist yet
-                continue
-            if len(before) >= 10:
-                break
-    os.killpg(proc.pid, signal.SIGKILL)
-    proc.wait()
-    before = _finished_params(journal)
+    before = kill_after(study, out, 10)
     assert 10 <= len(before) < 30
-    d = optimise(capsys, study, out)
-    after = _finished_params(journal)
-    assert d["trials_completed"] + d["trials_failed"] == 30 == len(after)
-    for number, params in before.items():  # every trial finished before the kill is still there, unchanged
-        assert after[number] == params
+    resume_keeps(capsys, study, out, before, 30)
 
 
 def test_two_workers_lose_and_duplicate_nothing(tmp_path, capsys):

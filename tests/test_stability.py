@@ -243,8 +243,8 @@ def test_traction_edges_against_an_independent_plate_element():
     from skfem import Basis, ElementTriArgyris, ElementTriP2, ElementVector, MeshTri1
 
     from holeshape.mesh import MeshSpec, Region, mesh_panel
+    from holeshape.plate import bending_stiffness, geometric_stiffness, lowest_factors
     from holeshape.solve import solve_panel, stress_from_gradient
-    from holeshape.stability import bending_stiffness, geometric_stiffness, lowest_factors
 
     cut = Cutout(Circle(15.0), (B / 2, B / 2), 0.0)
     panel = Panel(B, B, T, "traction")

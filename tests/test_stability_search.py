@@ -10,7 +10,7 @@ from pathlib import Path
 import pytest
 
 from holeshape.cli import main
-from holeshape.study import parse_study
+from holeshape.studyfile import parse_study
 
 ROOT = Path(__file__).resolve().parents[1]
 

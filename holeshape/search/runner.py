@@ -21,7 +21,8 @@ from holeshape.errors import GeometryError, HoleshapeError, StorageError
 from holeshape.search.constraints import constraint_values, solved_constraint_values
 from holeshape.search.gradient import chosen_method
 from holeshape.search.space import DesignSpace
-from holeshape.study import ACCURACIES, Measure, Study, load_study, split_flat_name
+from holeshape.study import ACCURACIES, Measure, Study, split_flat_name
+from holeshape.studyfile import load_study
 
 log = logging.getLogger("holeshape.search")
 

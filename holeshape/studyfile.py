@@ -1,0 +1,588 @@
+"""Study files (TOML, mm / N / MPa): read and checked once, at the edge, into the frozen dataclasses of
+:mod:`holeshape.study`.
+
+Every rule broken gives a :class:`StudyError` whose one-line message names the field, echoes the value and says
+what is allowed. Unknown keys are errors (with a "did you mean" hint), so a misspelt key never passes silently.
+"""
+
+from __future__ import annotations
+
+import difflib
+import math
+from pathlib import Path
+from typing import Any
+
+from holeshape.errors import GeometryError, StudyError
+from holeshape.study import (
+    ACCURACIES,
+    COMMON_CUTOUT_KEYS,
+    EDGE_SUPPORTS,
+    EDGES,
+    GOALS,
+    MEASURES,
+    METHODS,
+    OTHER_PREFIX,
+    REINFORCEMENT_KEYS,
+    ROW_KEYS,
+    SHAPE_PARAMETERS,
+    SHEAR_DISTRIBUTIONS,
+    Access,
+    Constraints,
+    CutoutSpec,
+    LoadCase,
+    Material,
+    Measure,
+    Panel,
+    Range,
+    SearchSettings,
+    StabilitySettings,
+    Study,
+)
+
+
+def _unknown(table: dict, allowed: tuple[str, ...], where: str) -> None:
+    for key in table:
+        if key not in allowed:
+            hint = difflib.get_close_matches(key, allowed, n=1)
+            tip = f" (did you mean {hint[0]!r}?)" if hint else ""
+            raise StudyError(f"{where}{key} is not a known key{tip}; allowed: {', '.join(allowed)}")
+
+
+def _number(table: dict, key: str, where: str, *, default: Any = ..., positive: bool = False,
+            allow_range: bool = False) -> Any:
+    if key not in table:
+        if default is ...:
+            raise StudyError(f"{where}{key} is missing (a number{' > 0' if positive else ''} is required)")
+        return default
+    v = table[key]
+    if allow_range and isinstance(v, dict):
+        return _range(v, f"{where}{key}", positive)
+    if isinstance(v, bool) or not isinstance(v, (int, float)):
+        raise StudyError(f"{where}{key} must be a number, got {v!r}")
+    v = float(v)
+    if not math.isfinite(v):
+        raise StudyError(f"{where}{key} must be finite, got {v!r}")
+    if positive and v <= 0:
+        raise StudyError(f"{where}{key} must be > 0, got {v!r}")
+    return v
+
+
+def _range(v: dict, name: str, positive: bool) -> Range:
+    _unknown(v, ("min", "max", "log", "value"), f"{name}.")
+    lo = _number(v, "min", f"{name}.", positive=positive)
+    hi = _number(v, "max", f"{name}.", positive=positive)
+    log = v.get("log", False)
+    if not isinstance(log, bool):
+        raise StudyError(f"{name}.log must be true or false, got {log!r}")
+    if lo > hi:
+        raise StudyError(f"{name} must have min <= max, got min = {lo!r}, max = {hi!r}")
+    if log and lo <= 0:
+        raise StudyError(f"{name} with log = true needs min > 0, got {lo!r}")
+    value = _number(v, "value", f"{name}.", default=None)
+    if value is not None and not lo <= value <= hi:
+        raise StudyError(f"{name}.value must lie between min = {lo!r} and max = {hi!r}, got {value!r}")
+    return Range(lo, hi, log, value)
+
+
+def _string(table: dict, key: str, where: str, choices: tuple[str, ...] | None = None, default: Any = ...) -> Any:
+    if key not in table:
+        if default is ...:
+            raise StudyError(f"{where}{key} is missing")
+        return default
+    v = table[key]
+    if not isinstance(v, str):
+        raise StudyError(f"{where}{key} must be a string, got {v!r}")
+    if choices is not None and v not in choices:
+        hint = difflib.get_close_matches(v, choices, n=1)
+        tip = f" (did you mean {hint[0]!r}?)" if hint else ""
+        raise StudyError(f"{where}{key} must be one of {', '.join(choices)}, got {v!r}{tip}")
+    return v
+
+
+def _table(doc: dict, key: str, required: bool = True) -> dict:
+    if key not in doc:
+        if required:
+            raise StudyError(f"[{key}] table is missing")
+        return {}
+    v = doc[key]
+    if not isinstance(v, dict):
+        raise StudyError(f"{key} must be a table ([{key}]), got {v!r}")
+    return v
+
+
+TOP_KEYS = ("title", "panel", "material", "load_case", "cutout", "measure", "constraints", "search", "stability",
+            "reinforcement")
+
+
+def parse_study(doc: dict, source: str = "") -> Study:
+    """Validate a decoded TOML document and build the :class:`Study`."""
+    _unknown(doc, TOP_KEYS, "")
+    title = doc.get("title", Path(source).stem if source else "untitled study")
+    if not isinstance(title, str):
+        raise StudyError(f"title must be a string, got {title!r}")
+
+    p = _table(doc, "panel")
+    _unknown(p, ("width", "height", "thickness", "edges", "section_inertia", "neutral_axis_y", "shear_distribution"),
+             "panel.")
+    panel = Panel(
+        width=_number(p, "width", "panel.", positive=True),
+        height=_number(p, "height", "panel.", positive=True),
+        thickness=_number(p, "thickness", "panel.", positive=True),
+        edges=_string(p, "edges", "panel.", EDGES, default="traction"),
+        section_inertia=_number(p, "section_inertia", "panel.", default=None, positive=True),
+        neutral_axis_y=_number(p, "neutral_axis_y", "panel.", default=None),
+        shear_distribution=_string(p, "shear_distribution", "panel.", SHEAR_DISTRIBUTIONS, default="uniform"),
+    )
+
+    m = _table(doc, "material")
+    _unknown(m, ("name", "youngs_modulus", "poisson_ratio", "allowable_stress", "density"), "material.")
+    nu = _number(m, "poisson_ratio", "material.")
+    if not -1.0 < nu < 0.5:
+        raise StudyError(f"material.poisson_ratio must lie strictly between -1 and 0.5, got {nu!r}")
+    material = Material(
+        name=_string(m, "name", "material.", default="unnamed material"),
+        youngs_modulus=_number(m, "youngs_modulus", "material.", positive=True),
+        poisson_ratio=nu,
+        allowable_stress=_number(m, "allowable_stress", "material.", default=None, positive=True),
+        density=_number(m, "density", "material.", default=None, positive=True),
+    )
+
+    cases = doc.get("load_case")
+    if cases is None:
+        raise StudyError("[[load_case]] is missing: give at least one load case (sigma_x, sigma_y, tau_xy in MPa)")
+    if isinstance(cases, dict):
+        cases = [cases]
+    if not isinstance(cases, list) or not cases or not all(isinstance(c, dict) for c in cases):
+        raise StudyError(f"load_case must be one or more [[load_case]] tables, got {cases!r}")
+    load_cases = []
+    for i, c in enumerate(cases):
+        where = f"load_case[{i}]."
+        _unknown(c, ("name", "sigma_x", "sigma_y", "tau_xy", "shear_force", "bending_moment"), where)
+        if any(k in c for k in ("shear_force", "bending_moment")):
+            lc = _beam_case(c, i, where, panel)
+            load_cases.append(lc)
+            continue
+        lc = LoadCase(
+            name=_string(c, "name", where, default=f"load case {i + 1}"),
+            sigma_x=_number(c, "sigma_x", where, default=0.0),
+            sigma_y=_number(c, "sigma_y", where, default=0.0),
+            tau_xy=_number(c, "tau_xy", where, default=0.0),
+        )
+        if lc.components == (0.0, 0.0, 0.0):
+            raise StudyError(f"load_case[{i}] ({lc.name!r}) has no stress: give at least one of sigma_x, sigma_y,"
+                             " tau_xy (MPa, non-zero)")
+        load_cases.append(lc)
+    names = [lc.name for lc in load_cases]
+    dup = sorted({n for n in names if names.count(n) > 1})
+    if dup:
+        raise StudyError(f"load_case names must be unique, got {dup[0]!r} more than once")
+
+    reinforcement = _parse_reinforcement(_table(doc, "reinforcement"), panel) if "reinforcement" in doc else {}
+    tables = doc.get("cutout")
+    if isinstance(tables, list):
+        cutout = _parse_cutouts(tables, panel, reinforcement)
+    else:
+        cutout = _parse_cutout(_table(doc, "cutout"), panel, reinforcement)
+
+    ms = _table(doc, "measure", required=False)
+    _unknown(ms, ("stress", "accuracy"), "measure.")
+    measure = Measure(
+        stress=_string(ms, "stress", "measure.", MEASURES, default="von_mises"),
+        accuracy=_string(ms, "accuracy", "measure.", ACCURACIES, default="standard"),
+    )
+    constraints = _parse_constraints(_table(doc, "constraints", required=False), panel)
+    search = _parse_search(_table(doc, "search", required=False))
+    stability = _parse_stability(_table(doc, "stability", required=False)) if "stability" in doc else None
+    if constraints.min_buckling_factor is not None and stability is None:
+        raise StudyError(f"constraints.min_buckling_factor = {constraints.min_buckling_factor!r} needs a [stability]"
+                         ' table (at least edge_support = "simply_supported" or "clamped") to say how the panel'
+                         " edges are supported out of plane")
+    if constraints.min_margin is not None and material.allowable_stress is None:
+        raise StudyError(f"constraints.min_margin = {constraints.min_margin!r} needs material.allowable_stress (MPa)"
+                         " to measure the margin of safety against")
+    if constraints.area is not None and OTHER_PREFIX.format(1) + "shape" in cutout.values:
+        raise StudyError(f"constraints.area = {constraints.area!r} mm^2 fixes the area of one design scaled to it;"
+                         " with several [[cutout]] tables use min_area / max_area (the total)")
+    if constraints.access is not None and OTHER_PREFIX.format(1) + "shape" in cutout.values:
+        raise StudyError("constraints.access with several [[cutout]] tables: an access envelope belongs to one"
+                         " opening; give it with a single [cutout]")
+    if constraints.access is not None and "count" in cutout.values:
+        raise StudyError(f"constraints.access with a row of {cutout.values['count']} openings (cutout.count): an access"
+                         " envelope belongs to one opening; give the row without it, or a single opening")
+    for name in ("max_added_mass", "max_reinforcement_area"):
+        if getattr(constraints, name) is not None and not reinforcement:
+            raise StudyError(f"constraints.{name} = {getattr(constraints, name)!r} needs a [reinforcement] table"
+                             ' (kind = "flange" or "ring") to limit')
+    if constraints.max_added_mass is not None and material.density is None:
+        raise StudyError(f"constraints.max_added_mass = {constraints.max_added_mass!r} kg needs material.density"
+                         " (kg/m^3) to weigh the reinforcement")
+    if search.goal == "lightest_reinforcement":
+        if not reinforcement or not any(isinstance(v, Range) for v in reinforcement.values()):
+            raise StudyError('search.goal = "lightest_reinforcement" needs a [reinforcement] table with at least one'
+                             " size given as a range ({min = ..., max = ...}) to search")
+        if constraints.min_margin is None and constraints.min_buckling_factor is None:
+            raise StudyError('search.goal = "lightest_reinforcement" needs a requirement the reinforcement must'
+                             " meet: give constraints.min_margin and/or constraints.min_buckling_factor")
+    if search.goal == "largest_opening":
+        if constraints.area is not None:
+            raise StudyError(f'search.goal = "largest_opening" cannot be combined with constraints.area ='
+                             f" {constraints.area!r} (a fixed area leaves nothing to enlarge); use min_area / max_area")
+        if constraints.min_margin is None and constraints.min_buckling_factor is None:
+            raise StudyError('search.goal = "largest_opening" needs a structural limit that bounds the opening:'
+                             " give constraints.min_margin (against material.allowable_stress) and/or"
+                             " constraints.min_buckling_factor (with [stability])")
+    return Study(title=title, panel=panel, material=material, load_cases=tuple(load_cases), cutout=cutout,
+                 measure=measure, constraints=constraints, search=search, source=source, stability=stability)
+
+
+def _beam_case(c: dict, i: int, where: str, panel: Panel) -> LoadCase:
+    """A load case given by the beam's shear force and bending moment, checked against the panel's section."""
+    mixed = [k for k in ("sigma_x", "sigma_y", "tau_xy") if k in c]
+    if mixed:
+        raise StudyError(f"load_case[{i}] mixes remote stresses ({', '.join(mixed)}) with beam forces (shear_force,"
+                         " bending_moment); give one kind per load case (a study may mix both kinds of case)")
+    lc = LoadCase(name=_string(c, "name", where, default=f"load case {i + 1}"),
+                  shear_force=_number(c, "shear_force", where, default=0.0),
+                  bending_moment=_number(c, "bending_moment", where, default=0.0))
+    if lc.shear_force == 0.0 and lc.bending_moment == 0.0:
+        raise StudyError(f"load_case[{i}] ({lc.name!r}) has no load: give shear_force (N) and/or bending_moment"
+                         " (N mm), non-zero")
+    if panel.section_inertia is None:
+        raise StudyError(f"load_case[{i}] ({lc.name!r}) gives beam forces but panel.section_inertia is missing (mm^4,"
+                         " the second moment of area of the whole beam section about its neutral axis)")
+    if panel.edges != "traction":
+        raise StudyError(f"load_case[{i}] ({lc.name!r}) gives beam forces, which load the panel edges as tractions:"
+                         f' panel.edges must be "traction", got {panel.edges!r}')
+    na = panel.neutral_axis
+    if not 0.0 <= na <= panel.height:
+        raise StudyError(f"panel.neutral_axis_y = {na!r} mm must lie within the panel height (0 to"
+                         f" {panel.height:g} mm)")
+    if panel.shear_distribution == "parabolic":
+        solid = panel.thickness * panel.height ** 3 / 12.0
+        if abs(na - panel.height / 2) > 1e-9 * panel.height or abs(panel.section_inertia / solid - 1) > 0.01:
+            raise StudyError(
+                f'panel.shear_distribution = "parabolic" is the solid rectangular section (the panel is the whole'
+                f" section): it needs the neutral axis at mid-height and panel.section_inertia = t h^3 / 12 ="
+                f" {solid:.6g} mm^4, got {panel.section_inertia!r} mm^4 with the neutral axis at {na:g} mm; use"
+                ' "uniform" for a web between caps')
+    return lc
+
+
+def _parse_stability(c: dict) -> StabilitySettings:
+    w = "stability."
+    _unknown(c, ("edge_support", "required_factor", "modes"), w)
+    modes = c.get("modes", 1)
+    if isinstance(modes, bool) or not isinstance(modes, int) or not 1 <= modes <= 6:
+        raise StudyError(f"stability.modes must be an integer from 1 to 6 (mode shapes to plot), got {modes!r}")
+    return StabilitySettings(
+        edge_support=_string(c, "edge_support", w, EDGE_SUPPORTS, default="simply_supported"),
+        required_factor=_number(c, "required_factor", w, default=1.0, positive=True),
+        modes=modes)
+
+
+def _parse_constraints(c: dict, panel: Panel) -> Constraints:
+    w = "constraints."
+    _unknown(c, ("min_area", "max_area", "area", "access", "clearance", "min_ligament", "min_radius",
+                 "min_buckling_factor", "min_margin", "max_added_mass", "max_reinforcement_area"), w)
+    access = None
+    if "access" in c:
+        a = c["access"]
+        if not isinstance(a, dict):
+            raise StudyError(f"constraints.access must be a table such as {{width = 100.0, height = 60.0}} or "
+                             f"{{diameter = 80.0}}, got {a!r}")
+        _unknown(a, ("width", "height", "diameter", "center", "rotation"), "constraints.access.")
+        aw = "constraints.access."
+        if "diameter" in a:
+            if "width" in a or "height" in a:
+                raise StudyError("constraints.access takes either diameter or width and height, not both")
+            dims = {"diameter": _number(a, "diameter", aw, positive=True)}
+        elif "width" in a or "height" in a:
+            dims = {"width": _number(a, "width", aw, positive=True), "height": _number(a, "height", aw, positive=True)}
+        else:
+            raise StudyError("constraints.access needs width and height (mm) or diameter (mm)")
+        center = a.get("center")
+        if center is not None:
+            if not isinstance(center, list) or len(center) != 2:
+                raise StudyError(f"constraints.access.center must be [x, y] in mm, got {center!r}")
+            center = tuple(_number({"v": v}, "v", f"{aw}center[{i}]") for i, v in enumerate(center))
+        access = Access(center=center, rotation=_number(a, "rotation", aw, default=0.0), **dims)
+    cons = Constraints(
+        min_area=_number(c, "min_area", w, default=None, positive=True),
+        max_area=_number(c, "max_area", w, default=None, positive=True),
+        area=_number(c, "area", w, default=None, positive=True),
+        access=access,
+        clearance=_number(c, "clearance", w, default=0.0),
+        min_ligament=_number(c, "min_ligament", w, default=None, positive=True),
+        min_radius=_number(c, "min_radius", w, default=None, positive=True),
+        min_buckling_factor=_number(c, "min_buckling_factor", w, default=None, positive=True),
+        min_margin=_number(c, "min_margin", w, default=None),
+        max_added_mass=_number(c, "max_added_mass", w, default=None, positive=True),
+        max_reinforcement_area=_number(c, "max_reinforcement_area", w, default=None, positive=True),
+    )
+    if cons.min_margin is not None and not -1.0 < cons.min_margin <= 10.0:
+        raise StudyError(f"constraints.min_margin must lie in (-1, 10] (a margin of safety, e.g. 0.0 or 0.15), got"
+                         f" {cons.min_margin!r}")
+    if cons.clearance < 0:
+        raise StudyError(f"constraints.clearance must be >= 0 mm, got {cons.clearance!r}")
+    if cons.area is not None and (cons.min_area is not None or cons.max_area is not None):
+        raise StudyError("constraints.area fixes the area: give either area or min_area / max_area, not both")
+    if cons.min_area is not None and cons.max_area is not None and cons.min_area > cons.max_area:
+        raise StudyError(f"constraints.min_area ({cons.min_area!r} mm^2) must not exceed constraints.max_area"
+                         f" ({cons.max_area!r} mm^2)")
+    limit = panel.width * panel.height
+    for name in ("min_area", "area"):
+        v = getattr(cons, name)
+        if v is not None and v >= limit:
+            raise StudyError(f"constraints.{name} = {v!r} mm^2 cannot be removed from a {limit:g} mm^2 panel")
+    if cons.min_ligament is not None and 2 * cons.min_ligament >= min(panel.width, panel.height):
+        raise StudyError(f"constraints.min_ligament = {cons.min_ligament!r} mm leaves no room for an opening in a "
+                         f"{panel.width:g} x {panel.height:g} mm panel")
+    if access is not None:
+        x0, y0, x1, y1 = access.polygon((0.0, 0.0), cons.clearance).bounds
+        lig = 2 * (cons.min_ligament or 0.0)
+        if x1 - x0 + lig >= panel.width or y1 - y0 + lig >= panel.height:
+            raise StudyError(
+                f"constraints.access envelope ({x1 - x0:g} x {y1 - y0:g} mm with clearance {cons.clearance:g} mm) plus"
+                f" the ligament of {cons.min_ligament or 0:g} mm each side cannot fit the {panel.width:g} x "
+                f"{panel.height:g} mm panel")
+        env_area = access.polygon((0.0, 0.0), cons.clearance).area
+        for name in ("max_area", "area"):
+            v = getattr(cons, name)
+            if v is not None and v < env_area:
+                raise StudyError(f"constraints.{name} = {v!r} mm^2 is smaller than the access envelope with its "
+                                 f"clearance ({env_area:.0f} mm^2): no opening can meet both")
+    return cons
+
+
+def _parse_search(c: dict) -> SearchSettings:
+    _unknown(c, ("trials", "seed", "global_fraction", "goal", "method"), "search.")
+    trials, seed = c.get("trials", 60), c.get("seed", 0)
+    for name, v in (("trials", trials), ("seed", seed)):
+        if isinstance(v, bool) or not isinstance(v, int):
+            raise StudyError(f"search.{name} must be an integer, got {v!r}")
+    if trials < 1 or trials > 100_000:
+        raise StudyError(f"search.trials must be between 1 and 100000, got {trials!r}")
+    if seed < 0:
+        raise StudyError(f"search.seed must be >= 0, got {seed!r}")
+    frac = _number(c, "global_fraction", "search.", default=0.25)
+    if not 0.0 < frac <= 1.0:
+        raise StudyError(f"search.global_fraction must be in (0, 1], got {frac!r}")
+    goal = _string(c, "goal", "search.", GOALS, default="lowest_peak")
+    method = _string(c, "method", "search.", METHODS, default="auto")
+    return SearchSettings(trials=trials, seed=seed, global_fraction=frac, goal=goal, method=method)
+
+
+def _parse_reinforcement(c: dict, panel: Panel) -> dict[str, Any]:
+    """The [reinforcement] table as cutout values named ``reinforcement.<key>`` (sizes may be ranges)."""
+    w = "reinforcement."
+    _unknown(c, REINFORCEMENT_KEYS, w)
+    from holeshape.geometry.reinforcement import KINDS
+
+    kind = _string(c, "kind", w, KINDS)
+    need = {"flange": ("height",), "ring": ("width", "thickness")}[kind]
+    wrong = {"flange": "width", "ring": "height"}[kind]
+    if wrong in c:
+        takes = {"flange": "height (and thickness, default the web's)", "ring": "width and thickness"}[kind]
+        raise StudyError(f"reinforcement.{wrong} does not apply to kind = {kind!r}; a {kind} takes {takes}")
+    out: dict[str, Any] = {w + "kind": kind}
+    for key in need + tuple(k for k in ("thickness",) if k not in need and k in c):
+        out[w + key] = _number(c, key, w, positive=True, allow_range=True)
+    if "youngs_modulus" in c:
+        out[w + "youngs_modulus"] = _number(c, "youngs_modulus", w, positive=True, allow_range=True)
+    return out
+
+
+def _parse_cutouts(tables: list, panel: Panel, reinforcement: dict | None) -> CutoutSpec:
+    """Several [[cutout]] tables: the first is the spec, the others ride in its values as ``cutout[i].<key>``."""
+    if not tables or not all(isinstance(t, dict) for t in tables):
+        raise StudyError(f"cutout must be a [cutout] table or [[cutout]] tables, got {tables!r}")
+    if len(tables) == 1:
+        return _parse_cutout(tables[0], panel, reinforcement)
+    if reinforcement:
+        raise StudyError(f"[[cutout]] is given {len(tables)} times with a [reinforcement]: reinforcing several"
+                         " openings is not supported yet; reinforce a single opening")
+    for i, t in enumerate(tables):
+        if "count" in t:
+            raise StudyError(f"cutout[{i}].count: a row inside one of several [[cutout]] tables is not supported;"
+                             " give either one [cutout] with count and pitch or separate [[cutout]] tables")
+    specs = [_parse_cutout(t, panel, None, check=False, where=f"cutout[{i}]." if i else "cutout.")
+             for i, t in enumerate(tables)]
+    values = dict(specs[0].values)
+    for i, sp in enumerate(specs[1:], 1):
+        values[OTHER_PREFIX.format(i) + "shape"] = sp.shape
+        values.update({OTHER_PREFIX.format(i) + k: v for k, v in sp.values.items()})
+    spec = CutoutSpec(shape=specs[0].shape, values=values)
+    if all(r.value is not None for r in spec.ranges.values()):
+        check_cutout_in_panel(spec.build(), panel)
+    return spec
+
+
+def _parse_row(c: dict, reinforcement: dict | None) -> dict[str, Any]:
+    """count / pitch / direction of a row of copies of the opening ({} for one opening)."""
+    if not any(k in c for k in ROW_KEYS):
+        return {}
+    count = c.get("count")
+    if isinstance(count, bool) or not isinstance(count, int) or not 1 <= count <= 50:
+        raise StudyError(f"cutout.count must be an integer from 1 to 50 (openings in the row), got {count!r}")
+    if count == 1:
+        return {}
+    if "pitch" not in c:
+        raise StudyError(f"cutout.count = {count} needs cutout.pitch (mm, centre to centre along the row)")
+    if reinforcement:
+        raise StudyError(f"cutout.count = {count} with a [reinforcement]: reinforced rows are not supported yet;"
+                         " reinforce a single opening, or leave the row bare")
+    out = {"count": count, "pitch": _number(c, "pitch", "cutout.", positive=True, allow_range=True),
+           "direction": _number(c, "direction", "cutout.", default=0.0)}
+    return out
+
+
+def _parse_cutout(c: dict, panel: Panel, reinforcement: dict | None = None, check: bool = True,
+                  where: str = "cutout.") -> CutoutSpec:
+    shape = _string(c, "shape", where, tuple(SHAPE_PARAMETERS))
+    params = SHAPE_PARAMETERS[shape]
+    _unknown(c, COMMON_CUTOUT_KEYS + ROW_KEYS + params, where)
+    values: dict[str, Any] = {}
+    for key in params:
+        if key == "symmetry":
+            values[key] = _string(c, key, where, ("none", "x", "xy"), default="none")
+        elif key == "radii":
+            radii = c.get("radii")
+            if radii is None:
+                raise StudyError(f"{where}radii is missing (a list of radii in mm, equally spaced in angle)")
+            if isinstance(radii, dict):  # one range for every radius
+                count = radii.get("count")
+                rest = {k: v for k, v in radii.items() if k != "count"}
+                if not isinstance(count, int) or isinstance(count, bool) or count < 2:
+                    raise StudyError(f"{where}radii.count must be an integer >= 2 when radii is a range, got {count!r}")
+                rng = _range(rest, f"{where}radii", True)
+                values[key] = [rng] * count
+            elif isinstance(radii, list):
+                values[key] = [_number({"r": r}, "r", f"{where}radii[{i}]", positive=True, allow_range=True)
+                               if not isinstance(r, dict) else _range(r, f"{where}radii[{i}]", True)
+                               for i, r in enumerate(radii)]
+            else:
+                raise StudyError(f"{where}radii must be a list of numbers (mm), got {radii!r}")
+        else:
+            values[key] = _number(c, key, where, positive=True, allow_range=True)
+    center = c.get("center", [panel.width / 2, panel.height / 2])
+    if isinstance(center, dict):
+        raise StudyError(f"{where}center ranges are given per coordinate: center = [{{min=..., max=...}}, 100.0]")
+    if not isinstance(center, list) or len(center) != 2:
+        raise StudyError(f"{where}center must be [x, y] in mm, got {center!r}")
+    values["center"] = [_number({"v": v}, "v", f"{where}center[{i}]", allow_range=True) if not isinstance(v, dict)
+                        else _range(v, f"{where}center[{i}]", False) for i, v in enumerate(center)]
+    values["rotation"] = _number(c, "rotation", where, default=0.0, allow_range=True)
+    values.update(_parse_row(c, reinforcement))
+    values.update(reinforcement or {})
+    spec = CutoutSpec(shape=shape, values=values)
+    if check and all(r.value is not None for r in spec.ranges.values()):
+        check_cutout_in_panel(spec.build(), panel)
+    return spec
+
+
+def check_cutout_in_panel(cutout, panel: Panel) -> None:
+    """Raise :class:`GeometryError` unless the cutout is a simple closed curve strictly inside the panel."""
+    from shapely.geometry import Polygon
+
+    poly = Polygon(cutout.polygon(720))
+    if not poly.is_valid:
+        raise GeometryError(f"cutout ({cutout.family}, {cutout.parameters()}) crosses itself; "
+                            "the outline must be a simple closed curve")
+    if cutout.others:
+        polys = [Polygon(p) for p in cutout.outlines(720)]
+        for i, a in enumerate(polys):
+            if not a.is_valid:
+                raise GeometryError(f"cutout[{i}] crosses itself; the outline must be a simple closed curve")
+            for j in range(i):
+                gap = a.distance(polys[j])
+                if gap < 1e-3 * math.sqrt(min(a.area, polys[j].area)):
+                    raise GeometryError(f"cutout[{i}] overlaps or touches cutout[{j}] (web between them {gap:.3g} mm);"
+                                        " separate openings need web between them")
+    elif cutout.count > 1:
+        polys = [Polygon(p) for p in cutout.outlines(720)]
+        gap = min(a.distance(b) for a, b in zip(polys, polys[1:]))
+        size = max(poly.bounds[2] - poly.bounds[0], poly.bounds[3] - poly.bounds[1])
+        if gap < 1e-3 * size:
+            raise GeometryError(
+                f"cutout.pitch = {cutout.row.pitch:g} mm makes neighbouring openings of the row overlap or touch"
+                f" (web between them {gap:.3g} mm); the pitch must exceed the opening's size along the row")
+    edge, gap = min(cutout.edge_gaps(panel.width, panel.height).items(), key=lambda kv: kv[1])
+    if gap <= 0:
+        raise GeometryError(
+            f"cutout.center {list(cutout.center)} puts the {cutout.family} outside or across the {edge} panel edge"
+            f" (ligament {gap:.3g} mm); it must lie inside the {panel.width:g} x {panel.height:g} mm panel")
+    if gap < 1e-3 * min(panel.width, panel.height):
+        raise GeometryError(
+            f"cutout.center {list(cutout.center)} leaves a ligament of only {gap:.3g} mm to the {edge} edge;"
+            f" at least {1e-3 * min(panel.width, panel.height):.3g} mm (0.1 % of the panel) is needed to mesh it")
+    r = cutout.reinforcement
+    if r is not None and r.kind == "ring":
+        from holeshape.geometry.reinforcement import ring_outline
+
+        outer = ring_outline(cutout, r.width)
+        if not Polygon(outer.polygon(720)).is_valid:
+            raise GeometryError(f"reinforcement.width = {r.width:g} mm makes the ring's outer edge cross itself")
+        ring_edge, ring_gap = min(outer.edge_gaps(panel.width, panel.height).items(), key=lambda kv: kv[1])
+        if ring_gap < 1e-3 * min(panel.width, panel.height):
+            raise GeometryError(
+                f"reinforcement.width = {r.width:g} mm runs the ring past the {ring_edge} panel edge (gap"
+                f" {ring_gap:.3g} mm); the ring must lie inside the panel with a ligament of web beyond it")
+
+
+def dump_toml(doc: dict) -> str:
+    """A small TOML writer for these documents (tables, arrays of tables, inline tables, floats incl. nan/inf)."""
+
+    def val(v):
+        if isinstance(v, bool):
+            return "true" if v else "false"
+        if isinstance(v, float):
+            if math.isnan(v):
+                return "nan"
+            if math.isinf(v):
+                return "inf" if v > 0 else "-inf"
+            return repr(v)
+        if isinstance(v, int):
+            return str(v)
+        if isinstance(v, str):
+            return '"' + v.replace("\\", "\\\\").replace('"', '\\"') + '"'
+        if isinstance(v, list):
+            return "[" + ", ".join(val(x) for x in v) + "]"
+        if isinstance(v, dict):
+            return "{" + ", ".join(f"{key(k)} = {val(x)}" for k, x in v.items()) + "}"
+        raise TypeError(v)
+
+    def key(k):
+        return k if k.replace("_", "").isalnum() else val(k)
+
+    lines = [f"{key(k)} = {val(v)}" for k, v in doc.items() if not isinstance(v, (dict, list)) or
+             (isinstance(v, list) and not all(isinstance(x, dict) for x in v))]
+    for k, v in doc.items():
+        if isinstance(v, dict):
+            lines.append(f"\n[{key(k)}]")
+            lines += [f"{key(a)} = {val(b)}" for a, b in v.items()]
+        elif isinstance(v, list) and v and all(isinstance(x, dict) for x in v):
+            for item in v:
+                lines.append(f"\n[[{key(k)}]]")
+                lines += [f"{key(a)} = {val(b)}" for a, b in item.items()]
+    return "\n".join(lines) + "\n"
+
+
+def load_study(path: str | Path) -> Study:
+    """Read and validate a study file."""
+    try:
+        import tomllib
+    except ModuleNotFoundError:  # Python 3.10
+        import tomli as tomllib  # type: ignore[no-redef]
+
+    path = Path(path)
+    try:
+        text = path.read_text(encoding="utf-8")
+    except FileNotFoundError as err:
+        raise StudyError(f"study file {str(path)!r} does not exist") from err
+    except (OSError, UnicodeDecodeError) as err:
+        raise StudyError(f"study file {str(path)!r} cannot be read: {err}") from err
+    try:
+        doc = tomllib.loads(text)
+    except tomllib.TOMLDecodeError as err:
+        raise StudyError(f"study file {str(path)!r} is not valid TOML: {err}") from err
+    return parse_study(doc, source=str(path))
