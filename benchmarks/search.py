@@ -50,7 +50,7 @@ def holeshape_run(folder: Path, seed: int, workers: int = 1, trials: int = BUDGE
 
     from holeshape.optimise import run_optimise
 
-    out = folder / f"run-{seed}-{workers}"
+    out = folder / f"run-{seed}-{workers}-{trials}"  # a fresh run folder for every study file
     t0 = time.perf_counter()
     run_optimise(str(study_file(folder, seed, trials)), str(out), workers=workers, progress=False)
     wall = time.perf_counter() - t0
