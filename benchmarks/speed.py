@@ -52,10 +52,8 @@ def baseline_peak(cutout, load, ratio: float) -> tuple[float, int]:
     region = choose_region(panel, cutout, lc)
     spec = MeshSpec(boundary_ratio=ratio, growth=0.3, max_fraction=0.1, min_segments=int(3 * ratio), curved=False)
     pm = mesh_panel(BIG, BIG, cutout, region, spec)
-    sol = solve_panel(pm, ALUMINIUM.youngs_modulus, ALUMINIUM.poisson_ratio, np.array([load]), "traction", BIG, BIG)
-    from holeshape.solve import plane_stress_constants
-
-    lam, mu = plane_stress_constants(ALUMINIUM.youngs_modulus, ALUMINIUM.poisson_ratio)
+    sol = solve_panel(pm, ALUMINIUM.elastic, np.array([load]), "traction", BIG, BIG)
+    lam, mu = ALUMINIUM.elastic.lame
     sb = Basis(pm.mesh, ElementTriP2(), intorder=4)
     uh = sol.basis.interpolate(sol.u[:, 0])
     g = uh.grad

@@ -20,11 +20,12 @@ import time
 import numpy as np
 
 from holeshape import stability as S
+from holeshape.elastic import Isotropic
 from holeshape.evaluate import evaluate
 from holeshape.geometry import Circle, Cutout, Superellipse
 from holeshape.study import LoadCase, Material, Measure, Panel, StabilitySettings
 
-ALU = Material("aluminium alloy sheet", 71000.0, 0.33, 280.0)
+ALU = Material("aluminium alloy sheet", Isotropic(71000.0, 0.33), 280.0)
 DESIGNS = [
     ("rib web, superellipse 120 x 80 (bundled check study)", Panel(300.0, 200.0, 2.5, "traction"),
      (LoadCase("shear and chordwise tension", sigma_x=16.0, tau_xy=18.0), LoadCase("compression", sigma_x=-18.0)),
@@ -75,7 +76,7 @@ def argyris_comparison() -> None:
     from holeshape.solve import solve_panel, stress_from_gradient
 
     E, nu, t, b = 70000.0, 0.3, 1.0, 100.0
-    mat = Material("m", E, nu)
+    mat = Material("m", Isotropic(E, nu))
     panel = Panel(b, b, t, "traction")
     cut = Cutout(Circle(15.0), (50.0, 50.0), 0.0)
     ref = math.pi ** 2 * E / (12 * (1 - nu ** 2)) * (t / b) ** 2
@@ -86,12 +87,12 @@ def argyris_comparison() -> None:
     for frac in (1 / 8, 1 / 12, 1 / 16, 1 / 24):
         t0 = time.perf_counter()
         pm = mesh_panel(b, b, cut, Region(b, b), MeshSpec(4.0, 0.3, frac, 32, ligament_elements=4.0))
-        sol = solve_panel(pm, E, nu, np.array([[-1.0, 0.0, 0.0]]), "traction", b, b)
+        sol = solve_panel(pm, Isotropic(E, nu), np.array([[-1.0, 0.0, 0.0]]), "traction", b, b)
         m = pm.mesh
         pb = Basis(MeshTri1(m.p[:, :m.nvertices], m.t), ElementTriArgyris(), intorder=8)
         sb = Basis(m, ElementVector(ElementTriP2()), quadrature=pb.quadrature)
-        St = stress_from_gradient(np.asarray(sb.interpolate(sol.u[:, 0]).grad), E, nu)
-        K = S.bending_stiffness(pb, E, nu, t)
+        St = stress_from_gradient(np.asarray(sb.interpolate(sol.u[:, 0]).grad), Isotropic(E, nu))
+        K = S.bending_stiffness(pb, Isotropic(E, nu), t)
         KG = S.geometric_stiffness(pb, St, t)
         bnd = pm.boundaries
         fixed = np.concatenate([
@@ -113,7 +114,7 @@ def argyris_comparison() -> None:
 def accuracy_table() -> None:
     """Unperforated plates against exact and published k, every level."""
     E, nu, t, b = 70000.0, 0.3, 1.0, 100.0
-    mat = Material("m", E, nu)
+    mat = Material("m", Isotropic(E, nu))
     cases = [("simply supported square, compression", Panel(b, b, t), LoadCase("c", sigma_x=-1.0),
               "simply_supported", 4.0),
              ("simply supported a/b = 1.5, compression", Panel(1.5 * b, b, t), LoadCase("c", sigma_x=-1.0),

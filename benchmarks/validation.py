@@ -17,7 +17,7 @@ sys.path.insert(0, str(Path(__file__).resolve().parents[1] / "tests"))
 from conftest import ALUMINIUM, BIG, big_panel, centred  # noqa: E402
 
 from holeshape.evaluate import evaluate  # noqa: E402
-from holeshape.geometry import Circle, Cutout, Reinforcement  # noqa: E402
+from holeshape.geometry import Circle, Cutout, Flange, Ring  # noqa: E402
 from holeshape.study import LoadCase, Measure, Panel  # noqa: E402
 
 
@@ -40,16 +40,16 @@ def rows(accuracy: str):
                       100.0 * kt, 1.0, strip))
     from holeshape.validation import lame_ring_hoop
 
-    nu, mid = ALUMINIUM.poisson_ratio, (BIG / 2, BIG / 2)
+    nu, mid = ALUMINIUM.elastic.poisson_ratio, (BIG / 2, BIG / 2)
     for ratio in (1.5, 2.0, 4.0):  # doubler thickness (ratio - 1) t over the web, out to b = 2a
         cases.append((f"Lame, doubler ring to b = 2a, total thickness {ratio:g} t, equibiaxial",
-                      Cutout(Circle(10.0), mid, 0.0, Reinforcement("ring", width=10.0, thickness=ratio - 1.0)),
+                      Cutout(Circle(10.0), mid, 0.0, Ring(width=10.0, thickness=ratio - 1.0)),
                       (100, 100, 0), 100.0 * lame_ring_hoop(ratio, 2.0, nu), 0.1, big_panel()))
     for share in (1.0, 0.5, 2.0):  # edge member area over Mansfield's neutral a t / (1 - nu)
         area = share * 10.0 / (1 - nu)
         q = 2 * 100.0 / (1 + nu + 10.0 / area)  # radial stress the member takes (Lame, derived in the tests)
         cases.append((f"Mansfield, flange of {share:g} x the neutral area, equibiaxial (sheet hoop)",
-                      Cutout(Circle(10.0), mid, 0.0, Reinforcement("flange", height=area)), (100, 100, 0),
+                      Cutout(Circle(10.0), mid, 0.0, Flange(height=area)), (100, 100, 0),
                       200.0 - q, 0.1, big_panel()))
     for name, cut, load, published, tol, panel in cases:
         t0 = time.perf_counter()

@@ -6,24 +6,26 @@ the shear buckling coefficient of the uncut bay beside the published 9.34 (Stein
 Run: .venv/bin/python examples/web_buckling.py
 """
 
-from holeshape.evaluate import evaluate
+from holeshape.checkrun import check_design
+from holeshape.elastic import Isotropic
 from holeshape.geometry import Circle, Cutout
 from holeshape.stability import critical_stress_coefficient
-from holeshape.study import LoadCase, Material, Measure, Panel, StabilitySettings
+from holeshape.study import LoadCase, Material, Measure, Panel, StabilitySettings, Study
 
 
 def main() -> dict:
     web = Panel(width=200.0, height=200.0, thickness=1.2, edges="traction")
-    alloy = Material(name="aluminium alloy sheet", youngs_modulus=71000.0, poisson_ratio=0.33,
+    alloy = Material(name="aluminium alloy sheet", elastic=Isotropic(71000.0, 0.33),
                      allowable_stress=250.0)
     shear = (LoadCase("floor shear", tau_xy=10.0),)
     hole = Cutout(Circle(radius=30.0), center=(100.0, 100.0))
-    ev = evaluate(web, alloy, shear, hole, Measure("von_mises", "standard"),
-                  stability=StabilitySettings("simply_supported", required_factor=1.5))
-    st = ev.stability
+    study = Study.of(web, alloy, shear, hole, measure=Measure("von_mises", "standard"), title="floor web bay",
+                     stability=StabilitySettings("simply_supported", required_factor=1.5))
+    res = check_design(study)
+    ev, st = res.evaluation, res.result("stability").stability
     k_plain = critical_stress_coefficient(10.0 * st.unperforated_factor, 200.0, 1.2, 71000.0, 0.33)
     print(f"peak {ev.peak_stress_mpa:.1f} MPa (error estimate {ev.error_estimate_pct:.2f} %), margin "
-          f"{ev.margin_of_safety:+.3f}")
+          f"{res.result('stress').margin_of_safety:+.3f}")
     print(f"buckling load factor {st.load_factor:.3f} with the hole (error estimate {st.error_estimate_pct:.2g} %),"
           f" {st.unperforated_factor:.3f} without it (k = {k_plain:.3f}; Stein & Neff 9.34); reserve against the"
           f" required 1.5: {st.reserve:.3f}")

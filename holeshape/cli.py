@@ -133,70 +133,30 @@ def _fail(args, err: BaseException, code: int, internal: bool = False) -> int:
 
 
 def _check(args) -> int:
-    from dataclasses import replace
+    from holeshape.checkrun import run_check
 
-    from holeshape.evaluate import evaluate
-    from holeshape.studyfile import load_study
-
-    study = load_study(args.study)
-    measure = replace(study.measure, accuracy=args.accuracy) if args.accuracy else study.measure
-    cutout = study.cutout.build()
-    want_fields = bool(args.plots)
-    if args.plots:
-        plot_dir = Path(args.plots)
-        try:
-            plot_dir.mkdir(parents=True, exist_ok=True)
-        except OSError as err:
-            raise StudyError(f"--plots {args.plots!r} cannot be created: {err.strerror}") from err
-    out = evaluate(study.panel, study.material, study.load_cases, cutout, measure, keep_fields=want_fields,
-                   stability=study.stability)
-    ev, fields = out if want_fields else (out, None)
-    from holeshape.search.constraints import requirement_rows, verdict
-
-    requirements = requirement_rows(ev, cutout, study.panel, study.constraints, study.material)
-    plots: list[str] = []
-    if fields is not None:
-        from holeshape.output import plots as P
-
-        gov = [r.name for r in ev.load_cases].index(ev.governing_load_case)
-        size = (study.panel.width, study.panel.height)
-        outline = [o.T for o in cutout.outlines(720)]
-        plots = [str(p) for p in (
-            P.plot_stress_field(plot_dir / "stress_field.png", ev, fields, outline, gov, size, study.title),
-            P.plot_boundary_stress(plot_dir / "boundary_stress.png", ev, fields, study.material.allowable_stress,
-                                   study.title),
-            P.plot_mesh(plot_dir / "mesh_near_cutout.png", fields, cutout.bounds, study.title),
-        )]
-        if ev.stability is not None:
-            plots.append(str(P.plot_buckling_mode(plot_dir / "buckling_mode.png", ev.stability, fields.stability,
-                                                  outline, study.panel, study.title)))
+    res = run_check(args.study, accuracy=args.accuracy, plots=args.plots)
     if args.json:
-        d = ev.to_dict()
-        d.update({"title": study.title, "shape": cutout.family, "params": cutout.parameters(),
-                  "holeshape_version": __version__, "plots": plots, "cautions":
-                  cautions(ev.stability is not None, ev.reinforcement is not None),
-                  "requirements": requirements, "meets_every_requirement": all(r["met"] for r in requirements)})
-        d.update(verdict(requirements))
-        for c in d["load_cases"]:
-            c.update(verdict(requirements, c["name"]))
-        print(json.dumps(d, indent=2))
-    else:
-        from holeshape.output.text import check_summary
+        print(json.dumps(res.to_dict(), indent=2))
+        return 0
+    from holeshape.output.text import check_summary
 
-        if not args.quiet:
-            beam = {lc.name: (lc.shear_force or 0.0, lc.bending_moment or 0.0, study.panel.shear_distribution)
-                    for lc in study.load_cases if lc.is_beam}
-            note = EDGE_NOTES["beam" if beam else study.panel.edges]
-            print(check_summary(study.title, cutout.family, cutout.parameters(), ev, note, requirements, beam))
-            for p in plots:
-                print(f"  plot          {p}")
-        else:
-            line = f"{ev.peak_stress_mpa:.3f} MPa (Kt {ev.kt:.4f}, error estimate {ev.error_estimate_pct:.3f} %)"
-            if ev.stability is not None:
-                f = ev.stability.load_factor
-                line += ("; does not buckle" if f is None else
-                         f"; buckling factor {f:.3f} (error estimate {ev.stability.error_estimate_pct:.2g} %)")
-            print(line)
+    ev = res.evaluation
+    if not args.quiet:
+        note = EDGE_NOTES["beam" if any(lc.is_beam for lc in res.study.load_cases) else res.study.panel.edges]
+        print(check_summary(res, note))
+        for p in res.plots:
+            print(f"  plot          {p}")
+    else:
+        line = f"{ev.peak_stress_mpa:.3f} MPa (Kt {ev.kt:.4f}, error estimate {ev.error_estimate_pct:.3f} %)"
+        st = res.result("stability")
+        if st is not None:
+            f = st.stability.load_factor
+            line += ("; does not buckle" if f is None else
+                     f"; buckling factor {f:.3f} (error estimate {st.stability.error_estimate_pct:.2g} %)")
+        print(line)
+    for w in res.study.warnings:
+        print(f"holeshape: warning: {w}", file=sys.stderr)
     return 0
 
 
@@ -211,22 +171,13 @@ def _sweep(args) -> int:
     from holeshape.sweep import run_sweep
 
     out = _run_folder(args, "-sweep")
-    res = run_sweep(args.study, out, args.vary)
+    res = run_sweep(args.study, out, args.vary, progress=not args.quiet)
     if args.json:
         print(json.dumps(res, indent=2))
         return 0
-    print(f"holeshape sweep: {res['study']} ({res['accuracy']} level, {res['elapsed_s']:.1f} s)")
-    for p in res["points"]:
-        where = ", ".join(f"{k} = {v:.4g}" for k, v in p["coords"].items())
-        if p.get("solved"):
-            flag = "" if p["feasible"] else f"  [breaks: {p.get('reason', '')}]"
-            buck = "" if "buckling_load_factor" not in p else (
-                ", does not buckle" if p["buckling_load_factor"] is None else
-                f", buckling factor {p['buckling_load_factor']:.3f}")
-            print(f"  {where:<28} peak {p['peak_stress_mpa']:8.2f} MPa, Kt {p['kt']:.3f},"
-                  f" area {p['area_mm2']:.0f} mm^2{buck}{flag}")
-        else:
-            print(f"  {where:<28} not solved: {p.get('reason', '')}")
+    from holeshape.output.text import sweep_lines
+
+    print("\n".join(sweep_lines(res)))
     print(f"  report        {res['report']}")
     print("\n  CAUTION: " + cautions("required_buckling_factor" in res))
     return 0
@@ -244,8 +195,7 @@ def _compare(args) -> int:
     print(f"holeshape compare: {top['study']}")
     for r in top["comparison"]:
         if r["feasible"]:
-            imp = r["improvement_over_circle_pct"]
-            vs = "" if imp is None else f", {imp:+.1f} % against the circle"
+            vs = "" if r.get("against_circle") is None else f"; {r['against_circle']}"
             buck = "" if r.get("buckling_load_factor") is None else f", buckling factor {r['buckling_load_factor']:.3f}"
             print(f"  {r['rank']}. {r['shape']:<18} {r['peak_stress_mpa']:8.2f} MPa, Kt {r['kt']:.3f},"
                   f" area {r['area_mm2']:.0f} mm^2{buck}{vs}")
@@ -268,14 +218,21 @@ def _optimise(args) -> int:
 
     _quiet_optuna(args)
     out = _run_folder(args, "")
-    summary = run_optimise(args.study, out, workers=args.workers, storage_url=args.storage,
-                           trade_off=args.trade_off, progress=not args.quiet)
-    if args.json:
-        print(json.dumps(summary, indent=2))
-        return 0
+    from holeshape.errors import NoDesignError
     from holeshape.output.text import optimise_summary
     from holeshape.record import RunRecord
 
+    try:
+        summary = run_optimise(args.study, out, workers=args.workers, storage_url=args.storage,
+                               trade_off=args.trade_off, progress=not args.quiet)
+    except NoDesignError as err:  # the run's own account of why, then the one-line error and exit code 5
+        if err.summary:
+            print(json.dumps(err.summary, indent=2) if args.json else optimise_summary(RunRecord.from_summary(
+                err.summary)))
+        raise
+    if args.json:
+        print(json.dumps(summary, indent=2))
+        return 0
     print(optimise_summary(RunRecord.from_summary(summary)))
     return 0
 

@@ -13,7 +13,8 @@ import shutil
 from dataclasses import replace
 from pathlib import Path
 
-from holeshape.errors import HoleshapeError, SearchError, StudyError
+from holeshape.errors import HoleshapeError, NoDesignError, SearchError, StudyError
+from holeshape.goals import GOALS
 from holeshape.record import REINFORCED_SUFFIX, RunInputs, RunRecord, folder_name
 from holeshape.study import Range
 from holeshape.studyfile import dump_toml, load_study
@@ -51,7 +52,7 @@ def _r(lo: float, hi: float) -> dict:
 def family_ranges(study, raw_cutout: dict) -> dict[str, dict]:
     """[cutout] tables for every family, on the study's centre and rotation, sized to the panel and envelope."""
     panel, cons = study.panel, study.constraints
-    center = study.cutout.values["center"]
+    center = study.cutout.openings[0].center
     cx = center[0].max if isinstance(center[0], Range) else center[0]
     cy = center[1].max if isinstance(center[1], Range) else center[1]
     lig = cons.min_ligament or 0.0
@@ -66,7 +67,7 @@ def family_ranges(study, raw_cutout: dict) -> dict[str, dict]:
     common = {"center": raw_cutout.get("center", [panel.width / 2, panel.height / 2])}
     if "count" in raw_cutout:  # a row: every family as the same row, each opening no wider than the pitch allows
         common.update({k: raw_cutout[k] for k in ("count", "pitch", "direction") if k in raw_cutout})
-        pitch = study.cutout.values["pitch"]
+        pitch = study.cutout.row.pitch
         half = 0.5 * (pitch.min if isinstance(pitch, Range) else pitch) * 0.999
         pmax, qmax = min(pmax, half), min(qmax, half)
         p, q = min(p, 0.5 * pmax), min(q, 0.5 * qmax)
@@ -112,11 +113,12 @@ def run_compare(study_path: str, out: str, workers: int = 1, progress: bool = Tr
         from holeshape.finish import FINAL_ACCURACY
         from holeshape.validation import run_validation
 
-        files.write_json(out_dir / "validation.json", run_validation(FINAL_ACCURACY))
+        files.write_json(out_dir / "validation.json", run_validation(FINAL_ACCURACY,
+                                                                      stability=study.stability is not None))
     tables = {f: (bare_document(doc), t) for f, t in family_ranges(study, doc["cutout"]).items()}
     if "reinforcement" in doc:  # the study's own family and ranges, with its reinforcement
         tables[study.cutout.shape + REINFORCED_SUFFIX] = (doc, doc["cutout"])
-    for family, (base, table) in tables.items():
+    for number, (family, (base, table)) in enumerate(tables.items(), 1):
         fam_doc = dict(base)
         fam_doc["cutout"] = table
         fam_doc["title"] = f"{study.title} ({family.replace('_', ' ')})"
@@ -128,18 +130,28 @@ def run_compare(study_path: str, out: str, workers: int = 1, progress: bool = Tr
         text = dump_toml(fam_doc)
         if not fam_study.exists() or fam_study.read_text() != text:
             files.atomic_write(fam_study, text)
+        label = f"{family.replace('_', ' ')} ({number}/{len(tables)})"
         try:
-            s = run_optimise(str(fam_study), str(fam_dir), workers=workers, progress=progress, cache=shared)
+            s = run_optimise(str(fam_study), str(fam_dir), workers=workers, progress=progress, cache=shared,
+                             label=label)
+        except NoDesignError as err:
+            fb = (err.summary or {}).get("family_best") or {}
+            why = "; ".join(fb.get("verdict_reasons", [])) or "nothing met every requirement"
+            rows.append({"shape": family, "feasible": False, "reason": f"no design of this family meets every"
+                         f" requirement at the fine level ({why})"})
+            continue
         except (HoleshapeError, StudyError) as err:
             rows.append({"shape": family, "feasible": False, "reason": " ".join(str(err).split())})
             continue
         summaries[family] = s
         fb = s.get("family_best")
-        if fb is None:
+        if fb is None or not fb.get("meets_every_requirement", True):
             refused = s.get("trials_refused_after_solve", {})
             why = [f"{n} solved designs refused for {k}" for k, n in refused.items() if n]
-            rows.append({"shape": family, "feasible": False, "reason": "no feasible design of this family"
-                         + (f" ({', '.join(why)})" if why else "")})
+            if fb is not None:
+                why.insert(0, "; ".join(fb.get("verdict_reasons", [])))
+            rows.append({"shape": family, "feasible": False, "reason": "no design of this family meets every"
+                         " requirement at the fine level" + (f" ({', '.join(why)})" if why else "")})
             continue
         rows.append({"shape": family, "feasible": True, **{k: fb.get(k) for k in (
             "peak_stress_mpa", "kt", "area_mm2", "governing_load_case", "params", "dxf", "error_estimate_pct",
@@ -153,6 +165,7 @@ def run_compare(study_path: str, out: str, workers: int = 1, progress: bool = Tr
         raise SearchError("no shape family found a design that meets the constraints: " +
                              "; ".join(f"{r['shape']}: {r['reason']}" for r in rows))
     circle = next((r for r in rows if r["shape"] == "circle" and r["feasible"]), None)
+    goal = GOALS[study.search.goal]
     for rank, r in enumerate(ok, 1):
         r["rank"] = rank
         if circle is None:
@@ -161,9 +174,10 @@ def run_compare(study_path: str, out: str, workers: int = 1, progress: bool = Tr
             r["improvement_over_circle_pct"] = 100 * (r["area_mm2"] / circle["area_mm2"] - 1)
         else:  # lower peak than the best circle
             r["improvement_over_circle_pct"] = 100 * (1 - r["peak_stress_mpa"] / circle["peak_stress_mpa"])
+        r["against_circle"] = None if circle is None or r is circle else f"{goal.better(r, circle)} the best circle"
     winner = ok[0]["shape"]
     src = out_dir / folder_name(winner)
-    if summaries[winner]["best"]["shape"] != winner:  # a standard shape beat even the best family: say so
+    if (summaries[winner]["best"] or {}).get("shape") not in (None, winner):  # a standard shape is better still
         ok[0]["note"] = f"a standard {summaries[winner]['best']['shape']} is better still (see its search)"
     for name in ("best.dxf", "best.csv", "best_shape.png", "best_stress_field.png", "best_boundary_stress.png",
                  "search_history.png", "best_stress_field.vtu", "inputs.json", "best_buckling_mode.png"):

@@ -34,3 +34,13 @@ class StorageError(HoleshapeError, RuntimeError):
 
 class SearchError(HoleshapeError, RuntimeError):
     """The search ran but cannot give an answer (no feasible design, a worker process stopped)."""
+
+
+class NoDesignError(SearchError):
+    """The search ran to its budget and nothing it found, nor any standard shape, meets every requirement at the
+    final level. ``summary`` is the run's summary (written to the run folder before this is raised): the reasons by
+    count, the nearest misses and what to change."""
+
+    def __init__(self, message: str, summary: dict | None = None):
+        super().__init__(message)
+        self.summary = summary or {}

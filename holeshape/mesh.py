@@ -93,12 +93,13 @@ class PanelMesh:
     cutout_t: np.ndarray = field(repr=False)
     region: Region
     closed: bool
-    # with a ring reinforcement: the ring's elements, the facets of its outer edge in order along the arc, the
-    # web element outside each of those facets, and the arc length of their ends (mm)
-    ring_elements: np.ndarray | None = field(default=None, repr=False)
-    ring_facets: np.ndarray | None = field(default=None, repr=False)
-    ring_outside: np.ndarray | None = field(default=None, repr=False)
-    ring_s: np.ndarray | None = field(default=None, repr=False)
+    # with a reinforcement that has an interior outline (a ring's outer edge): the reinforced region's elements,
+    # the facets of that outline in order along the arc, the web element outside each of those facets, and the arc
+    # length of their ends (mm)
+    region_elements: np.ndarray | None = field(default=None, repr=False)
+    interior_facets: np.ndarray | None = field(default=None, repr=False)
+    interior_outside: np.ndarray | None = field(default=None, repr=False)
+    interior_s: np.ndarray | None = field(default=None, repr=False)
     # every opening of a row as (facets, flip, s, t) like cutout_* above (the first is cutout_*); one for one opening
     members: tuple = field(default=(), repr=False)
 
@@ -226,8 +227,9 @@ def _arc_points(cutout: Cutout, region: Region, spec: MeshSpec, h_max: float, wi
 def mesh_panel(width: float, height: float, cutout: Cutout, region: Region, spec: MeshSpec) -> PanelMesh:
     """Mesh the modelled region of a ``width`` x ``height`` panel (origin at its lower-left corner) minus ``cutout``.
 
-    With a ring reinforcement (``cutout.reinforcement.kind == "ring"``) the ring's outer edge is an interior line
-    of the mesh and the ring's elements are listed (``PanelMesh.ring_elements``). The caller has checked that the
+    With a reinforcement that has an interior outline (``Reinforcement.interior_outline``: a ring's outer edge)
+    that outline is an interior line of the mesh and the reinforced region's elements are listed
+    (``PanelMesh.region_elements``). The caller has checked that the
     cutout lies inside the panel and that ``region`` matches its symmetry.
     """
 
@@ -237,11 +239,8 @@ def mesh_panel(width: float, height: float, cutout: Cutout, region: Region, spec
         return _mesh_row(width, height, cutout, region, spec, h_max)
     t_ring, xy_ring, node_h = _arc_points(cutout, region, spec, h_max, width, height)
     r = cutout.reinforcement
-    outer = None
-    if r is not None and r.kind == "ring":
-        from holeshape.geometry.reinforcement import ring_outline
-
-        outer = ring_outline(cutout, r.width)
+    outer = None if r is None else r.interior_outline(cutout)
+    if outer is not None:
         t_off, xy_off, h_off = _arc_points(outer, region, spec, h_max, width, height)
 
     gmsh = gmsh_session()
@@ -316,8 +315,8 @@ def mesh_panel(width: float, height: float, cutout: Cutout, region: Region, spec
     pm = _curve_cutout(linear, [cutout], [xy_ring], [t_ring], closed, region, width, height, spec.curved)
     if outer is None:
         return pm
-    ring_elements = np.arange(t.shape[1] - n_ring, t.shape[1])
-    return _with_ring(pm, outer, xy_off, t_off, ring_elements, spec.curved)
+    region_elements = np.arange(t.shape[1] - n_ring, t.shape[1])
+    return _with_interior(pm, outer, xy_off, t_off, region_elements, spec.curved)
 
 
 def _generate(gmsh, h_max: float) -> None:
@@ -427,8 +426,10 @@ def _curved_midpoints(cutout: Cutout, s_nodes: np.ndarray) -> np.ndarray:
     return cutout.xy(smp.t_at_arclength(0.5 * (s_nodes[:-1] + s_nodes[1:])))
 
 
-def _with_ring(pm: PanelMesh, outer: Cutout, xy_off, t_off, ring_elements: np.ndarray, curved: bool) -> PanelMesh:
-    """Add the ring's outer edge (an interior line: mid-side nodes moved onto the offset curve) to a panel mesh."""
+def _with_interior(pm: PanelMesh, outer: Cutout, xy_off, t_off, region_elements: np.ndarray, curved: bool
+                   ) -> PanelMesh:
+    """Add the reinforced region's outer edge (an interior line: mid-side nodes moved onto its exact curve) to a
+    panel mesh."""
     from dataclasses import replace
 
     mesh = pm.mesh
@@ -439,13 +440,13 @@ def _with_ring(pm: PanelMesh, outer: Cutout, xy_off, t_off, ring_elements: np.nd
     if curved:
         doflocs[:, mesh.dofs.facet_dofs[0, facets]] = _curved_midpoints(outer, s_nodes)
     in_ring = np.zeros(mesh.t.shape[1], dtype=bool)
-    in_ring[ring_elements] = True
+    in_ring[region_elements] = True
     both = mesh.f2t[:, facets]  # (2, k): the two elements of each interior facet
     outside = np.where(in_ring[both[0]], both[1], both[0])
     if np.any(in_ring[outside]) or np.any(outside < 0):
         raise MeshError("the ring's outer edge does not separate the ring from the web")
-    return replace(pm, mesh=replace(mesh, doflocs=doflocs), ring_elements=ring_elements, ring_facets=facets,
-                   ring_outside=outside, ring_s=s_nodes - s_nodes[0])
+    return replace(pm, mesh=replace(mesh, doflocs=doflocs), region_elements=region_elements, interior_facets=facets,
+                   interior_outside=outside, interior_s=s_nodes - s_nodes[0])
 
 
 def _size_field(gmsh, points: list[int], node_h: np.ndarray, growth: float, h_max: float) -> None:

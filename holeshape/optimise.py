@@ -9,16 +9,15 @@ from __future__ import annotations
 
 import fcntl
 import logging
-import math
 import multiprocessing
 import time
 from pathlib import Path
 
-import numpy as np
-
-from holeshape.errors import SearchError, StorageError, StudyError
+from holeshape.errors import NoDesignError, SearchError, StorageError, StudyError
 from holeshape.finish import finish_run
-from holeshape.search.baselines import standard_shapes
+from holeshape.progress import Progress
+from holeshape.search.baselines import family_point, standard_shapes
+from holeshape.search.gradient import chosen_method
 from holeshape.search.runner import (
     WORKER_BUG_EXIT,
     Objective,
@@ -33,7 +32,6 @@ from holeshape.search.runner import (
     worker_process,
 )
 from holeshape.search.space import DesignSpace
-from holeshape.study import flat_name, split_flat_name
 from holeshape.studyfile import load_study
 
 log = logging.getLogger("holeshape.optimise")
@@ -61,76 +59,18 @@ class RunLock:
         self.fh.close()
 
 
-def _family_params(study_family: str, base_family: str, cut, space: DesignSpace) -> dict | None:
-    """The search parameters that reproduce a standard shape in the study's family, or None if it cannot."""
-    sh = cut.shape
-    vals: dict[str, float] = {}
-    if study_family == base_family:
-        vals = {k: v for k, v in sh.parameters().items() if not isinstance(v, (tuple, list, str))}
-    elif study_family == "superellipse" and base_family in ("circle", "ellipse"):
-        a = sh.radius if base_family == "circle" else sh.a
-        b = sh.radius if base_family == "circle" else sh.b
-        vals = {"a": a, "b": b, "exponent": 2.0}
-    elif study_family == "ellipse" and base_family == "circle":
-        vals = {"a": sh.radius, "b": sh.radius}
-    elif study_family == "spline":
-        vals = _spline_radii(cut, space)
-    else:
-        return None
-    vals.update({"center[0]": cut.center[0], "center[1]": cut.center[1], "rotation": cut.rotation})
-    if study_family == "spline" and base_family != "circle":
-        vals["rotation"] = _spline_rotation(cut, space)
-    dims = space.dimensions
-    out = {}
-    for k, r in dims.items():
-        if k not in vals:
-            return None
-        v = vals[k]
-        if space.constraints.area is None and not (r.min <= v <= r.max):
-            return None
-        out[k] = min(max(v, r.min), r.max)
-    # fixed (non-searched) values must agree with the standard shape
-    for k, v in vals.items():
-        if k in dims:
-            continue
-        base, idx = split_flat_name(k)
-        fixed = space.values({}).get(base)
-        if isinstance(fixed, list) and idx is not None:
-            fixed = fixed[idx]
-        if fixed is not None and not isinstance(fixed, (list, str)) and abs(float(fixed) - v) > 1e-9 * max(1, abs(v)):
-            if space.constraints.area is None or k in ("center[0]", "center[1]", "rotation", "exponent"):
-                return None
-    return out
-
-
-def _spline_rotation(cut, space: DesignSpace) -> float:
-    """The rotation a spline start takes: the standard shape's where the study searches it, else the study's."""
-    fixed = space.values({}).get("rotation", 0.0)
-    return cut.rotation if "rotation" in space.dimensions or isinstance(fixed, (list, str)) else float(fixed)
-
-
-def _spline_radii(cut, space: DesignSpace) -> dict[str, float]:
-    """The spline radii through a standard shape's outline (its polar radius about its centre at the spline's
-    angles, in the spline's own frame): the same shape for a circle, a close one otherwise (a start)."""
-    spec_radii = space.spec.values["radii"]
-    n = len(spec_radii)
-    sym = space.values({}).get("symmetry", "none")
-    span = {"none": 2 * math.pi * (n - 1) / n, "x": math.pi, "xy": math.pi / 2}[sym]
-    theta = np.linspace(0.0, span, n) + math.radians(_spline_rotation(cut, space))
-    p = cut.sampling.points
-    phi = np.arctan2(p[1] - cut.center[1], p[0] - cut.center[0])
-    rho = np.hypot(p[0] - cut.center[0], p[1] - cut.center[1])
-    order = np.argsort(phi)
-    r = np.interp(np.mod(theta + math.pi, 2 * math.pi) - math.pi, phi[order], rho[order], period=2 * math.pi)
-    return {flat_name("radii", i): float(v) for i, v in enumerate(r)}
-
-
 def run_optimise(study_path: str, out: str, workers: int = 1, storage_url: str | None = None,
-                 trade_off: bool = False, progress: bool = True, cache: dict | None = None) -> dict:
-    """Run or resume the search of one study file and write its outputs to ``out``; returns the summary.
-    ``cache``: a dict for results shared between runs on one panel (``compare`` passes one for all families)."""
+                 trade_off: bool = False, progress: bool | Progress = True, cache: dict | None = None,
+                 label: str = "search") -> dict:
+    """Run or resume the search of one study file and write its outputs to ``out``; returns the summary, or raises
+    :class:`~holeshape.errors.NoDesignError` (its summary written) when nothing meets every requirement. A run
+    whose budget is spent and whose summary is on disk for the same study file is not finished again: the stored
+    summary is returned at once. ``cache``: a dict for results shared between runs on one panel (``compare`` passes
+    one for all families); ``label`` names the search bar."""
     import optuna
 
+    if not isinstance(progress, Progress):
+        progress = Progress(bool(progress))
     t0 = time.perf_counter()
     cache = {} if cache is None else cache
     study_def = load_study(study_path)
@@ -167,26 +107,52 @@ def run_optimise(study_path: str, out: str, workers: int = 1, storage_url: str |
                              " (or restore the original study file) to keep results consistent")
         if storage_url is None:
             fail_stale(study, storage, name)
-        baselines = standard_shapes(study_def.cutout.values, study_def.panel, study_def.constraints,
-                                    study_def.material.density)
+        done = stored_summary(out_dir, study, fp, study_def.search.trials)
+        if done is not None:
+            return done
+        baselines = standard_shapes(study_def)
         if created:  # only the process that created the study seeds it: machines starting together add nothing twice
             objective = Objective(study_def, space, trade_off, cache)
             own = {k: r.value for k, r in space.dimensions.items()}
             if all(v is not None for v in own.values()):  # the study's current design first
-                rec = objective(own)
-                rec["user_attrs"]["standard_shape"] = "study design"
+                rec = objective(own).with_attrs(standard_shape="study design")
                 add_record(study, space, rec, trade_off)
             for family, cut, _ in baselines:
                 if cut is None:
                     continue
-                params = _family_params(study_def.cutout.shape, family, cut, space)
+                params = family_point(family, cut, space)
                 if params is not None:
-                    rec = objective(params)
-                    rec["user_attrs"]["standard_shape"] = family
+                    rec = objective(params).with_attrs(standard_shape=family)
                     add_record(study, space, rec, trade_off)
-        _run_workers(study_path, storage_url, out_dir, name, workers, trade_off, study_def.search.trials, progress,
-                     study_def.search.goal)
-        return finish_run(study_def, study, space, baselines, out_dir, storage_name, trade_off, t0, cache, workers)
+        _run_workers(study_path, storage_url, out_dir, name, workers, trade_off, study_def.search.trials,
+                     progress.enabled, study_def.search.goal, label)
+        method = "sampler_simplex" if trade_off else chosen_method(study_def)
+        return finish_run(study_def, study, space, baselines, out_dir, storage_name, trade_off, t0, cache, workers,
+                          progress, fp, method)
+
+
+def stored_summary(out_dir: Path, study, fingerprint: str, trials: int) -> dict | None:
+    """The summary of a run that is already finished (budget spent, nothing added since, same study file and
+    version), or None; a stored run with no answer raises its NoDesignError again."""
+    import json
+
+    from holeshape import __version__
+
+    path = out_dir / "summary.json"
+    if not path.exists() or len(finished(study)) < trials:
+        return None
+    try:
+        d = json.loads(path.read_text())
+    except (OSError, ValueError):
+        return None
+    if d.get("study_fingerprint") != fingerprint or d.get("trials_finished") != len(finished(study)) \
+            or d.get("holeshape_version") != __version__ or not (out_dir / "report.html").exists():
+        return None
+    d["report"] = str(out_dir / "report.html")
+    if d.get("outcome") == "no_design":
+        raise NoDesignError(f"no design meets every requirement (a finished run: {path} and"
+                            f" {out_dir / 'summary.txt'} say why and name the nearest misses)", d)
+    return d
 
 
 def _create_or_load(optuna, name: str, storage, directions: list[str]):
@@ -238,10 +204,10 @@ def fail_stale(study, storage, name: str) -> None:
         storage.set_trial_state_values(trial_id, TrialState.FAIL)
 
 
-def _progress_bar(total: int, enabled: bool):
+def _progress_bar(total: int, enabled: bool, label: str = "search"):
     from tqdm import tqdm
 
-    return tqdm(total=total, disable=not enabled, unit="trial", desc="search", dynamic_ncols=True, leave=True,
+    return tqdm(total=total, disable=not enabled, unit="trial", desc=label, dynamic_ncols=True, leave=True,
                 mininterval=0.5)
 
 
@@ -260,10 +226,10 @@ def _update(bar, study, goal: str = "lowest_peak") -> None:
 
 
 def _run_workers(study_path, storage_url, out_dir, name, workers, trade_off, total, progress,
-                 goal: str = "lowest_peak") -> None:
+                 goal: str = "lowest_peak", label: str = "search") -> None:
     import optuna
 
-    bar = _progress_bar(total, progress)
+    bar = _progress_bar(total, progress, label)
     try:
         if workers == 1:
             run_worker(study_path, storage_url, str(out_dir), name, 0, trade_off,

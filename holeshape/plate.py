@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from holeshape.elastic import Elastic
 from holeshape.errors import SolveError
 from holeshape.study import EDGE_SUPPORTS
 
@@ -24,18 +25,16 @@ def _per_element(basis, values) -> np.ndarray:
     return np.ascontiguousarray(np.broadcast_to(v[:, None] if v.ndim == 1 else v, shape))
 
 
-def bending_stiffness(basis, youngs_modulus: float, poisson_ratio: float, thickness: float, scale=1.0):
-    """Kirchhoff plate bending stiffness matrix, N mm (w in mm); ``scale`` (a number or per element) multiplies
-    D = E t^3 / (12 (1 - nu^2)) (a doubler ring's elements)."""
+def bending_stiffness(basis, elastic: Elastic, thickness: float, scale=1.0):
+    """Kirchhoff plate bending stiffness matrix, N mm (w in mm), of the material's bending law for a plate of
+    ``thickness`` (D = E t^3 / (12 (1 - nu^2)) for an isotropic web); ``scale`` (a number or per element)
+    multiplies it (a doubler ring's elements)."""
     from skfem import BilinearForm
-    from skfem.helpers import dd, ddot, trace
-
-    d = youngs_modulus * thickness ** 3 / (12.0 * (1.0 - poisson_ratio ** 2))
-    nu = poisson_ratio
+    from skfem.helpers import dd
 
     @BilinearForm
     def form(u, v, w):
-        return d * w["scale"] * ((1.0 - nu) * ddot(dd(u), dd(v)) + nu * trace(dd(u)) * trace(dd(v)))
+        return w["scale"] * elastic.bending_work(thickness, dd(u), dd(v))
 
     return form.assemble(basis, scale=_per_element(basis, scale if np.ndim(scale) else [scale] * basis.nelems))
 
@@ -95,24 +94,6 @@ def edge_beam_matrices(pb, chain: np.ndarray, closed: bool, bending: float,
     K = P @ (C.T @ diags(bending * ell) @ C) @ P.T
     KG = [P @ (G.T @ diags(np.asarray(f, dtype=float) * h) @ G) @ P.T for f in (axial_force or [])]
     return K.tocsr(), [k.tocsr() for k in KG]
-
-
-def stack_bending_ratio(youngs_modulus: float, thickness: float, reinforcement) -> float:
-    """Bending stiffness of web plus a doubler on one face over the web's alone, about the stack's own neutral
-    plane (the membrane-bending coupling of the eccentric doubler is neglected)."""
-    e_r = reinforcement.modulus(youngs_modulus)
-    t_r = reinforcement.member_thickness(thickness)
-    layers = [(youngs_modulus, thickness, 0.5 * thickness), (e_r, t_r, thickness + 0.5 * t_r)]
-    z0 = sum(e * t * z for e, t, z in layers) / sum(e * t for e, t, _ in layers)
-    d = sum(e * (t ** 3 / 12.0 + t * (z - z0) ** 2) for e, t, z in layers)
-    return d / (youngs_modulus * thickness ** 3 / 12.0)
-
-
-def flange_bending_stiffness(youngs_modulus: float, thickness: float, reinforcement) -> float:
-    """EI (N mm^2) of a flange of height h and thickness t_f bending in its own plane (the plane normal to the web
-    along the edge): E t_f h^3 / 12 about its own centroid (the web's share is ignored, which errs low)."""
-    return reinforcement.modulus(youngs_modulus) * reinforcement.member_thickness(thickness) \
-        * reinforcement.height ** 3 / 12.0
 
 
 def plate_basis(p: np.ndarray, t: np.ndarray):

@@ -6,9 +6,10 @@ summaries read it back without solving. Units as in the study: mm, N, MPa.
 
 from __future__ import annotations
 
-from dataclasses import asdict, dataclass
+from dataclasses import asdict, dataclass, field
 from datetime import datetime, timezone
 
+from holeshape.checks.base import Requirement, verdict
 from holeshape.stability import CASE_KEYS, DESIGN_KEYS
 from holeshape.study import Study
 
@@ -28,16 +29,23 @@ class RunInputs:
     stability: dict | None
     finished: str
     reinforcement: dict | None = None  # the [reinforcement] table: kind and sizes (ranges as min/max/value)
+    cutout: tuple[dict, ...] = ()  # every design parameter: fixed value or range (CutoutSpec.describe)
+    shape: str = ""  # the study's family (the first opening's)
+    warnings: tuple[str, ...] = ()  # the study's plausibility warnings
 
     @classmethod
-    def from_study(cls, study: Study, finished: datetime | None = None) -> RunInputs:
+    def from_study(cls, study: Study, finished: datetime | None = None, method: str | None = None) -> RunInputs:
+        """``method``: the search method the run used (search.method "auto" resolved)."""
         when = (finished or datetime.now(timezone.utc)).strftime("%Y-%m-%d %H:%M UTC")
+        search = asdict(study.search)
+        if method is not None:
+            search["method_used"] = method
         return cls(title=study.title, source=study.source, panel=asdict(study.panel),
-                   material=asdict(study.material), load_cases=tuple(asdict(c) for c in study.load_cases),
-                   constraints=asdict(study.constraints), search=asdict(study.search),
-                   measure=asdict(study.measure),
+                   material=study.material.to_dict(), load_cases=tuple(asdict(c) for c in study.load_cases),
+                   constraints=asdict(study.constraints), search=search, measure=asdict(study.measure),
                    stability=None if study.stability is None else asdict(study.stability), finished=when,
-                   reinforcement=reinforcement_table(study))
+                   reinforcement=reinforcement_table(study), cutout=tuple(study.cutout.describe()),
+                   shape=study.cutout.shape, warnings=study.warnings)
 
     @classmethod
     def from_dict(cls, d: dict) -> RunInputs:
@@ -45,11 +53,14 @@ class RunInputs:
         return cls(title=d["title"], source=d.get("source", ""), panel=d["panel"], material=d["material"],
                    load_cases=tuple(d["load_cases"]), constraints=d.get("constraints", {}),
                    search=d.get("search", {}), measure=d.get("measure", {}), stability=d.get("stability"),
-                   finished=d.get("finished", ""), reinforcement=d.get("reinforcement"))
+                   finished=d.get("finished", ""), reinforcement=d.get("reinforcement"),
+                   cutout=tuple(d.get("cutout", ())), shape=d.get("shape", ""), warnings=tuple(d.get("warnings", ())))
 
     def to_dict(self) -> dict:
         d = asdict(self)
         d["load_cases"] = list(self.load_cases)
+        d["cutout"] = list(self.cutout)
+        d["warnings"] = list(self.warnings)
         if d["reinforcement"] is None:
             d.pop("reinforcement")
         return d
@@ -57,13 +68,14 @@ class RunInputs:
 
 def reinforcement_table(study: Study) -> dict | None:
     """The study's [reinforcement] as plain data (None without one)."""
-    from holeshape.study import REINFORCEMENT_PREFIX, Range
+    from holeshape.study import Range
 
-    out = {}
-    for k, v in study.cutout.values.items():
-        if k.startswith(REINFORCEMENT_PREFIX):
-            out[k[len(REINFORCEMENT_PREFIX):]] = asdict(v) if isinstance(v, Range) else v
-    return out or None
+    r = study.cutout.reinforcement
+    if r is None:
+        return None
+    out: dict = {"kind": r.kind}
+    out.update({k: asdict(v) if isinstance(v, Range) else v for k, v in r.sizes})
+    return out
 
 
 REINFORCED_SUFFIX = ", reinforced"  # compare's row of the study's own family with its [reinforcement]
@@ -78,18 +90,6 @@ def folder_name(row_name: str) -> str:
 def _drop_none(d: dict, keys: tuple[str, ...]) -> dict:
     """``d`` without those of ``keys`` that are None (optional blocks a study without them does not store)."""
     return {k: v for k, v in d.items() if not (k in keys and v is None)}
-
-
-@dataclass(frozen=True)
-class Requirement:
-    """One requirement of the study checked on a design: what it achieves, the limit, met or not."""
-
-    requirement: str
-    value: float | None
-    limit: str
-    met: bool
-    kind: str = "geometry"  # geometry, margin, buckling or accuracy
-    load_case: str | None = None
 
 
 @dataclass(frozen=True)
@@ -114,10 +114,13 @@ class CaseCheck:
     # several openings: each opening's peak (LocationPeak as a dict: location, peak_stress_mpa, x_mm, y_mm,
     # error_estimate_pct); empty for one opening
     locations: tuple[dict, ...] = ()
+    # what the other checks add to this load case (net section, tee sections, ...), by key
+    extra: dict = field(default_factory=dict)
 
     def to_dict(self) -> dict:
         d = asdict(self)
         d.pop("with_stability")
+        d.update(d.pop("extra"))
         d["locations"] = list(self.locations)
         if not self.locations:
             d.pop("locations")
@@ -129,8 +132,12 @@ class CaseCheck:
 
     @classmethod
     def from_dict(cls, d: dict) -> CaseCheck:
-        return cls(**{k: (tuple(v) if k in ("verdict_reasons", "advice", "locations") else v) for k, v in d.items()},
-                   with_stability="buckling_load_factor" in d)
+        own = {f for f in cls.__dataclass_fields__}
+        kw = {k: (tuple(v) if k in ("verdict_reasons", "advice", "locations") else v) for k, v in d.items()
+              if k in own}
+        kw.pop("extra", None)
+        return cls(**kw, with_stability="buckling_load_factor" in d,
+                   extra={k: v for k, v in d.items() if k not in own})
 
 
 @dataclass(frozen=True)
@@ -176,10 +183,18 @@ class DesignCheck:
     # ReinforcementResult.to_dict() of the final check with "bare_opening": the same outline without it (None for a
     # bare opening)
     reinforcement: dict | None = None
+    # every check's own block (by check name) and what the text and the report show of them (Section dicts, the
+    # sections of checks that do not apply included where a reader looks for them)
+    assessments: dict = field(default_factory=dict)
+    sections: tuple[dict, ...] = ()
+    # when the design was moved back along the goal to pass at the final level: how far, from which trial
+    moved: dict | None = None
 
     @property
     def meets_every_requirement(self) -> bool:
-        return all(r.met for r in self.requirements)
+        from holeshape.checks.base import meets_every_requirement
+
+        return meets_every_requirement(self.requirements)
 
     @property
     def failed_requirements(self) -> tuple[Requirement, ...]:
@@ -190,21 +205,23 @@ class DesignCheck:
         return None if self.stability is None else self.stability["buckling_load_factor"]
 
     def verdict(self, load_case: str | None = None) -> dict:
-        from holeshape.search.constraints import verdict
-
-        return verdict([asdict(r) for r in self.requirements], load_case)
+        return verdict(self.requirements, load_case).to_dict()
 
     def to_dict(self) -> dict:
         d = {f: getattr(self, f) for f in self.__dataclass_fields__}
         d.update(load_cases=[c.to_dict() for c in self.load_cases], levels=[asdict(x) for x in self.levels],
-                 requirements=[asdict(r) for r in self.requirements], warnings=list(self.warnings),
-                 min_radius_at_mm=list(self.min_radius_at_mm), bounds_mm=list(self.bounds_mm))
+                 requirements=[r.to_dict() for r in self.requirements], warnings=list(self.warnings),
+                 min_radius_at_mm=list(self.min_radius_at_mm), bounds_mm=list(self.bounds_mm),
+                 sections=list(self.sections))
         stab = d.pop("stability")
         if stab is not None:
             d.update({k: stab[k] for k in DESIGN_KEYS}, stability=stab)
         if d["reinforcement"] is None:
             d.pop("reinforcement")
+        if d["moved"] is None:
+            d.pop("moved")
         d["meets_every_requirement"] = self.meets_every_requirement
+        d["feasible"] = self.meets_every_requirement  # the recommendation is feasible exactly when it passes
         d.update(self.verdict())
         return d
 
@@ -214,11 +231,11 @@ class DesignCheck:
         kw = {k: v for k, v in d.items() if k in names}
         kw.update(load_cases=tuple(CaseCheck.from_dict(c) for c in d["load_cases"]),
                   levels=tuple(LevelCheck(**x) for x in d.get("levels", [])),
-                  requirements=tuple(Requirement(**r) for r in d.get("requirements", [])),
+                  requirements=tuple(Requirement.from_dict(r) for r in d.get("requirements", [])),
                   warnings=tuple(d.get("warnings", [])), min_radius_at_mm=tuple(d.get("min_radius_at_mm") or (0, 0)),
                   bounds_mm=tuple(d["bounds_mm"]), stability=d.get("stability"),
-                  reinforcement=d.get("reinforcement"))
-        kw.setdefault("requirements", ())
+                  reinforcement=d.get("reinforcement"), sections=tuple(d.get("sections", ())),
+                  assessments=d.get("assessments", {}), moved=d.get("moved"))
         return cls(**kw)
 
 
@@ -236,10 +253,14 @@ class Baseline:
     error_estimate_pct: float | None = None
     params: dict | None = None
     buckling_load_factor: float | None = None
+    margin_of_safety: float | None = None
+    added_mass_kg: float | None = None  # the reinforcement the standard shape carries (a reinforced study)
+    added_volume_mm3: float | None = None
 
     def to_dict(self) -> dict:
         return _drop_none(asdict(self), ("reason", "peak_stress_mpa", "area_mm2", "kt", "error_estimate_pct",
-                                         "params", "buckling_load_factor"))
+                                         "params", "buckling_load_factor", "margin_of_safety", "added_mass_kg",
+                                         "added_volume_mm3"))
 
     @classmethod
     def from_dict(cls, d: dict) -> Baseline:
@@ -262,12 +283,20 @@ class TrialCounts:
         return f", {self.probes} of them gradient probes" if self.probes else ""
 
 
+OUTCOMES = ("recommended", "no_design")
+
+
 @dataclass(frozen=True)
 class RunRecord:
     """Everything a search run leaves for its reader; ``summary.json`` is :meth:`to_summary` (its keys are a
-    contract), and the report and the text summary are built from :meth:`from_summary`."""
+    contract), and the report and the text summary are built from :meth:`from_summary`.
 
-    best: DesignCheck
+    ``outcome`` "recommended": ``best`` meets every requirement at the final level; "no_design": nothing the run
+    found or the standard shapes meets them, ``best`` is None and ``nearest_misses``, ``trial_reasons`` and
+    ``advice`` say why and what to change. ``family_best`` is the searched family's best at the final level (passing
+    or its nearest miss), ``choice`` one sentence on why the recommendation is the one it is."""
+
+    best: DesignCheck | None
     family_best: dict | None
     baselines: tuple[Baseline, ...]
     improvement_over_baselines_pct: dict
@@ -282,17 +311,29 @@ class RunRecord:
     cautions: str
     front: tuple[dict, ...] | None = None
     comparison: tuple[dict, ...] | None = None
+    outcome: str = "recommended"
+    choice: str = ""
+    nearest_misses: tuple[dict, ...] = ()
+    trial_reasons: tuple[dict, ...] = ()
+    advice: tuple[str, ...] = ()
+    study_fingerprint: str = ""
+    trials_finished: int = 0
+    warnings: tuple[str, ...] = ()
 
     def to_summary(self) -> dict:
         t = self.trials
-        d = {"best": self.best.to_dict(), "goal": self.goal, "trials_refused_after_solve": t.refused_after_solve,
+        d = {"outcome": self.outcome, "best": None if self.best is None else self.best.to_dict(), "goal": self.goal,
+             "choice": self.choice, "trials_refused_after_solve": t.refused_after_solve,
              "family_best": self.family_best, "baselines": [b.to_dict() for b in self.baselines],
              "improvement_over_baselines_pct": self.improvement_over_baselines_pct,
              "trials_completed": t.completed, "trials_infeasible": t.infeasible, "trials_failed": t.failed,
              "trials_interrupted": t.interrupted, "trials_probes": t.probes, "failures": list(t.failures),
              "storage": self.storage,
              "study": self.study, "search_accuracy": self.search_accuracy, "elapsed_s": self.elapsed_s,
-             "plots": list(self.plots), "holeshape_version": self.holeshape_version, "cautions": self.cautions}
+             "plots": list(self.plots), "holeshape_version": self.holeshape_version, "cautions": self.cautions,
+             "nearest_misses": list(self.nearest_misses), "trial_reasons": list(self.trial_reasons),
+             "advice": list(self.advice), "study_fingerprint": self.study_fingerprint,
+             "trials_finished": self.trials_finished, "warnings": list(self.warnings)}
         if self.front is not None:
             d["front"] = list(self.front)
         if self.comparison is not None:
@@ -304,7 +345,8 @@ class RunRecord:
         trials = TrialCounts(d["trials_completed"], d["trials_infeasible"], d["trials_failed"],
                              d.get("trials_interrupted", 0), d.get("trials_refused_after_solve", {}),
                              tuple(d.get("failures", [])), d.get("trials_probes", 0))
-        return cls(best=DesignCheck.from_dict(d["best"]), family_best=d.get("family_best"),
+        return cls(best=None if d.get("best") is None else DesignCheck.from_dict(d["best"]),
+                   family_best=d.get("family_best"),
                    baselines=tuple(Baseline.from_dict(b) for b in d.get("baselines", [])),
                    improvement_over_baselines_pct=d.get("improvement_over_baselines_pct", {}),
                    goal=d.get("goal", "lowest_peak"), trials=trials, storage=d.get("storage", ""),
@@ -312,7 +354,11 @@ class RunRecord:
                    elapsed_s=d.get("elapsed_s", 0.0), plots=tuple(d.get("plots", [])),
                    holeshape_version=d.get("holeshape_version", ""), cautions=d.get("cautions", ""),
                    front=None if d.get("front") is None else tuple(d["front"]),
-                   comparison=None if d.get("comparison") is None else tuple(d["comparison"]))
+                   comparison=None if d.get("comparison") is None else tuple(d["comparison"]),
+                   outcome=d.get("outcome", "recommended"), choice=d.get("choice", ""),
+                   nearest_misses=tuple(d.get("nearest_misses", ())), trial_reasons=tuple(d.get("trial_reasons", ())),
+                   advice=tuple(d.get("advice", ())), study_fingerprint=d.get("study_fingerprint", ""),
+                   trials_finished=d.get("trials_finished", 0), warnings=tuple(d.get("warnings", ())))
 
 
 @dataclass(frozen=True)

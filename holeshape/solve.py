@@ -11,6 +11,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from holeshape.elastic import Elastic
 from holeshape.errors import SolveError
 
 # Sampling of each boundary facet for stress recovery, in the facet's reference coordinate [0, 1]. The ends are
@@ -28,17 +29,6 @@ def principal_stresses(sxx, syy, sxy):
     """(larger, smaller) in-plane principal stress, MPa."""
     c, r = 0.5 * (sxx + syy), np.hypot(0.5 * (sxx - syy), sxy)
     return c + r, c - r
-
-
-def plane_stress_constants(youngs_modulus: float, poisson_ratio: float) -> tuple[float, float]:
-    """Plane-stress Lame constants (lambda*, mu) in MPa.
-
-    Written out here on purpose: scikit-fem 12.0.2 changed ``plane_stress()`` to return these directly, so the
-    older idiom ``lame_parameters(*plane_stress(E, nu))`` silently gives wrong stresses (a Kt regression test
-    guards this).
-    """
-    e, nu = youngs_modulus, poisson_ratio
-    return e * nu / (1.0 - nu * nu), e / (2.0 * (1.0 + nu))
 
 
 def vector_basis(mesh):
@@ -96,16 +86,14 @@ def edge_member_stiffness(basis, facets: np.ndarray, axial_stiffness: float):
     return coo_matrix((np.concatenate(vals), (np.concatenate(rows), np.concatenate(cols))), shape=(n, n)).tocsr()
 
 
-def stiffness(basis, youngs_modulus: float, poisson_ratio: float):
+def stiffness(basis, elastic: Elastic):
+    """Plane-stress membrane stiffness per mm of thickness (N/mm per mm of displacement)."""
     from skfem import BilinearForm
-    from skfem.helpers import ddot, eye, sym_grad, trace
-
-    lam, mu = plane_stress_constants(youngs_modulus, poisson_ratio)
+    from skfem.helpers import ddot, sym_grad
 
     @BilinearForm
     def form(u, v, w):
-        e = sym_grad(u)
-        return ddot(2.0 * mu * e + lam * eye(trace(e), 2), sym_grad(v))
+        return ddot(elastic.stress_tensor(sym_grad(u)), sym_grad(v))
 
     return form.assemble(basis)
 
@@ -219,20 +207,16 @@ class BoundaryStress:
         return principal_stresses(*self.sigma)[1]
 
 
-def stress_from_gradient(grad: np.ndarray, youngs_modulus: float, poisson_ratio: float) -> np.ndarray:
+def stress_from_gradient(grad: np.ndarray, elastic: Elastic) -> np.ndarray:
     """(sxx, syy, sxy) from displacement gradients grad[i, j] = du_i/dx_j (any trailing shape)."""
-    lam, mu = plane_stress_constants(youngs_modulus, poisson_ratio)
-    exx, eyy, exy = grad[0, 0], grad[1, 1], 0.5 * (grad[0, 1] + grad[1, 0])
-    tr = exx + eyy
-    return np.array([2 * mu * exx + lam * tr, 2 * mu * eyy + lam * tr, 2 * mu * exy])
+    return np.array(elastic.stress(grad[0, 0], grad[1, 1], 0.5 * (grad[0, 1] + grad[1, 0])))
 
 
 _REF_VERTICES = np.array([[0.0, 0.0], [1.0, 0.0], [0.0, 1.0]])  # scikit-fem's reference triangle
 
 
-def boundary_stress(mesh, u: np.ndarray, facets: np.ndarray, youngs_modulus: float, poisson_ratio: float,
-                    closed: bool, s_nodes: np.ndarray | None = None, elements: np.ndarray | None = None
-                    ) -> BoundaryStress:
+def boundary_stress(mesh, u: np.ndarray, facets: np.ndarray, elastic: Elastic, closed: bool,
+                    s_nodes: np.ndarray | None = None, elements: np.ndarray | None = None) -> BoundaryStress:
     """Recover the stress along a chain of boundary facets without smoothing the peak.
 
     The displacement gradient is evaluated inside each boundary element, at points of its boundary edge given
@@ -273,7 +257,7 @@ def boundary_stress(mesh, u: np.ndarray, facets: np.ndarray, youngs_modulus: flo
             tangent[:, sel] = J[:, 0] * d[0] + J[:, 1] * d[1]
             for c in range(m):
                 grad = np.asarray(cb.interpolate(u[:, c]).grad)  # (2, 2, len(sel), q)
-                sig[..., c][:, sel] = stress_from_gradient(grad, youngs_modulus, poisson_ratio)
+                sig[..., c][:, sel] = stress_from_gradient(grad, elastic)
     tangent /= np.linalg.norm(tangent, axis=0)
     # chain: node i is the start of facet i; average the one-sided values at shared nodes
     n_nodes = k if closed else k + 1
@@ -344,10 +328,12 @@ class PanelSolution:
     basis: object = field(repr=False)
     u: np.ndarray = field(repr=False)
     cutout: BoundaryStress = field(repr=False)
-    youngs_modulus: float
-    poisson_ratio: float
-    ring_edge: BoundaryStress | None = field(default=None, repr=False)  # the web just outside a ring's outer edge
+    elastic: Elastic
+    # the web just outside the reinforced region's interior outline (a ring's outer edge)
+    interior_edge: BoundaryStress | None = field(default=None, repr=False)
     members: tuple = field(default=(), repr=False)  # BoundaryStress of every opening of a row (the first is cutout)
+    system: FactorisedSystem | None = field(default=None, repr=False)  # the factorised stiffness (more load cases)
+    loads: np.ndarray | None = field(default=None, repr=False)  # the load vectors (n_dofs, m) that were solved
 
     @property
     def dofs(self) -> int:
@@ -357,19 +343,16 @@ class PanelSolution:
 EDGE_CONDITIONS = ("traction", "displacement")
 
 
-def reinforcement_terms(reinforcement, youngs_modulus: float, thickness: float) -> tuple[float, float]:
+def reinforcement_terms(reinforcement, elastic: Elastic, thickness: float) -> tuple[float, float]:
     """(membrane stiffness of a ring's region over the web's, edge member EA over the web thickness in N/mm) for a
     reinforcement (None: (1, 0)). The web's own stiffness in this module is per mm of its thickness."""
     if reinforcement is None:
         return 1.0, 0.0
-    e_r = reinforcement.modulus(youngs_modulus)
-    t_r = reinforcement.member_thickness(thickness)
-    if reinforcement.kind == "ring":
-        return 1.0 + e_r * t_r / (youngs_modulus * thickness), 0.0
-    return 1.0, e_r * reinforcement.cross_section_mm2(thickness) / thickness
+    e = elastic.reference_modulus
+    return reinforcement.region_stiffness_ratio(e, thickness), reinforcement.edge_axial_stiffness(e, thickness)
 
 
-def solve_panel(pm, youngs_modulus: float, poisson_ratio: float, remote: np.ndarray, edges: str,
+def solve_panel(pm, elastic: Elastic, remote: np.ndarray, edges: str,
                 width: float, height: float, recover: bool = True, reinforcement=None,
                 thickness: float = 1.0, fields: list | None = None) -> PanelSolution:
     """Solve a panel mesh (``holeshape.mesh.PanelMesh``) for m uniform remote stress states.
@@ -387,13 +370,13 @@ def solve_panel(pm, youngs_modulus: float, poisson_ratio: float, remote: np.ndar
     remote = np.atleast_2d(np.asarray(remote, dtype=float))
     mesh = pm.mesh
     basis = vector_basis(mesh)
-    K = stiffness(basis, youngs_modulus, poisson_ratio)
-    ring_factor, edge_axial = reinforcement_terms(reinforcement, youngs_modulus, thickness)
-    if ring_factor != 1.0:
+    K = stiffness(basis, elastic)
+    region_factor, edge_axial = reinforcement_terms(reinforcement, elastic, thickness)
+    if region_factor != 1.0:
         from skfem import Basis
 
-        ring_basis = Basis(mesh, basis.elem, elements=pm.ring_elements, intorder=QUAD_ORDER)
-        K = K + (ring_factor - 1.0) * stiffness(ring_basis, youngs_modulus, poisson_ratio)
+        region_basis = Basis(mesh, basis.elem, elements=pm.region_elements, intorder=QUAD_ORDER)
+        K = K + (region_factor - 1.0) * stiffness(region_basis, elastic)
     if edge_axial > 0.0:
         K = K + edge_member_stiffness(basis, pm.cutout_facets, edge_axial)
     bnd = pm.boundaries
@@ -410,10 +393,8 @@ def solve_panel(pm, youngs_modulus: float, poisson_ratio: float, remote: np.ndar
     if edges == "displacement":
         ux_dofs = basis.get_dofs(edge_facets).all("u^1")
         uy_dofs = basis.get_dofs(edge_facets).all("u^2")
-        lam, mu = plane_stress_constants(youngs_modulus, poisson_ratio)
-        e, nu = youngs_modulus, poisson_ratio
-        sx, sy, txy = remote.T
-        ex, ey, gxy = (sx - nu * sy) / e, (sy - nu * sx) / e, txy / mu
+        ex, ey, exy = elastic.strain(*remote.T)
+        gxy = 2.0 * exy
         X = basis.doflocs
         vx = ex[None, :] * (X[0, ux_dofs] - cx)[:, None] + 0.5 * gxy[None, :] * (X[1, ux_dofs] - cy)[:, None]
         vy = 0.5 * gxy[None, :] * (X[0, uy_dofs] - cx)[:, None] + ey[None, :] * (X[1, uy_dofs] - cy)[:, None]
@@ -425,31 +406,32 @@ def solve_panel(pm, youngs_modulus: float, poisson_ratio: float, remote: np.ndar
         loads = np.zeros((K.shape[0], m))
     elif edges == "traction":
         loads = panel_edge_loads(basis, mesh, bnd, remote, fields)
-        fixed_parts += _rigid_body_constraints(basis, pm, width, height)
+        fixed_parts += rigid_body_constraints(basis, pm, width, height)
         fixed = np.unique(np.concatenate(fixed_parts)) if fixed_parts else np.array([], dtype=np.int64)
         values = None
     else:
         raise ValueError(f"edges must be one of {EDGE_CONDITIONS}, got {edges!r}")
     system = FactorisedSystem(K, fixed)
     u = system.solve(loads, values)
-    cut = boundary_stress(mesh, u, pm.cutout_facets, youngs_modulus, poisson_ratio, closed=pm.closed,
+    cut = boundary_stress(mesh, u, pm.cutout_facets, elastic, closed=pm.closed,
                           s_nodes=pm.cutout_s) if recover else None
-    ring_edge = boundary_stress(mesh, u, pm.ring_facets, youngs_modulus, poisson_ratio, closed=pm.closed,
-                                s_nodes=pm.ring_s, elements=pm.ring_outside) \
-        if recover and pm.ring_facets is not None else None
+    interior = boundary_stress(mesh, u, pm.interior_facets, elastic, closed=pm.closed,
+                               s_nodes=pm.interior_s, elements=pm.interior_outside) \
+        if recover and pm.interior_facets is not None else None
     members = ()
     if recover and len(pm.members) > 1:
-        members = (cut,) + tuple(boundary_stress(mesh, u, f, youngs_modulus, poisson_ratio, closed=True, s_nodes=s_m)
+        members = (cut,) + tuple(boundary_stress(mesh, u, f, elastic, closed=True, s_nodes=s_m)
                                  for f, _, s_m, _ in pm.members[1:])
-    return PanelSolution(basis=basis, u=u, cutout=cut, youngs_modulus=youngs_modulus, poisson_ratio=poisson_ratio,
-                         ring_edge=ring_edge, members=members)
+    return PanelSolution(basis=basis, u=u, cutout=cut, elastic=elastic, interior_edge=interior, members=members,
+                         system=system, loads=loads)
 
 
-def member_stress(bs: BoundaryStress, youngs_modulus: float, poisson_ratio: float, member_modulus: float
-                  ) -> np.ndarray:
-    """Axial stress (n, m) MPa of an edge member bonded along ``bs``: its strain is the web's strain along the edge
-    (sigma_tt - nu sigma_nn) / E."""
-    return member_modulus * (bs.hoop - poisson_ratio * bs.normal) / youngs_modulus
+def member_stress(bs: BoundaryStress, elastic: Elastic, member_modulus: float) -> np.ndarray:
+    """Axial stress (n, m) MPa of an edge member bonded along ``bs``: its strain is the web's strain along the edge,
+    t . eps . t with eps the web's compliance times its stress ((sigma_tt - nu sigma_nn) / E for an isotropic web)."""
+    exx, eyy, exy = elastic.strain(*bs.sigma)
+    tx, ty = bs.tangent[0][:, None], bs.tangent[1][:, None]
+    return member_modulus * (exx * tx * tx + eyy * ty * ty + 2.0 * exy * tx * ty)
 
 
 @dataclass(frozen=True)
@@ -540,7 +522,7 @@ def panel_edge_loads(basis, mesh, boundaries: dict, remote: np.ndarray, fields: 
     return loads
 
 
-def _rigid_body_constraints(basis, pm, width: float, height: float) -> list[np.ndarray]:
+def rigid_body_constraints(basis, pm, width: float, height: float) -> list[np.ndarray]:
     """DOFs that remove exactly the rigid-body modes a traction-loaded (reduced) panel still has."""
     p = pm.mesh.p[:, :pm.mesh.nvertices]
     region = pm.region

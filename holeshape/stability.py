@@ -26,7 +26,7 @@ from __future__ import annotations
 
 import math
 import time
-from dataclasses import asdict, dataclass, field
+from dataclasses import asdict, dataclass, field, replace
 
 import numpy as np
 
@@ -35,12 +35,10 @@ from holeshape.mesh import MeshSpec, Region, mesh_panel
 from holeshape.plate import (
     bending_stiffness,
     edge_beam_matrices,
-    flange_bending_stiffness,
     geometric_stiffness,
     has_compression,
     lowest_factors,
     plate_basis,
-    stack_bending_ratio,
     supported_dofs,
 )
 from holeshape.study import ACCURACIES, StabilitySettings
@@ -57,9 +55,6 @@ CASE_KEYS = ("buckling_load_factor", "buckling_error_estimate_pct", "buckling_re
              "buckling_load_factor_unperforated")
 DESIGN_KEYS = ("buckling_load_factor", "buckling_governing_load_case", "buckling_load_factor_unperforated",
                "buckling_error_estimate_pct", "buckling_reserve")
-CUTOUT_EDGE_NOTES = {None: "free", "flange": "free with its flange (a beam: the flange's own bending stiffness and"
-                                             " axial force)",
-                     "ring": "free, the doubler ring a thicker plate"}
 
 
 @dataclass(frozen=True)
@@ -122,7 +117,9 @@ class StabilityResult:
     refinements: int
     elapsed_s: float
     warnings: tuple[str, ...] = ()
-    cutout_edge: str = "free"  # how the cutout edge is modelled out of plane (CUTOUT_EDGE_NOTES)
+    cutout_edge: str = "free"  # how the cutout edge is modelled out of plane (Reinforcement.edge_note)
+    # the finest plate mesh and the mode shapes, for the plots (asked for with keep_fields; not part of the value)
+    fields: StabilityFields | None = field(default=None, compare=False, repr=False)
 
     @property
     def governing(self) -> BucklingCase | None:
@@ -154,7 +151,8 @@ class StabilityResult:
         return self.reserve is None or self.reserve >= 1.0
 
     def to_dict(self) -> dict:
-        d = asdict(self)
+        d = asdict(replace(self, fields=None))
+        d.pop("fields")
         d["cases"] = [asdict(c) | {"buckles": c.buckles} for c in self.cases]
         g = self.governing
         d.update(buckling_load_factor=self.load_factor, buckling_governing_load_case=None if g is None else g.name,
@@ -218,25 +216,29 @@ def plate_buckling(pm, u: np.ndarray, material, thickness: float, edge_support: 
     pb = plate_basis(mesh.p[:, :mesh.nvertices], mesh.t)
     # the prestress at the plate's quadrature points: same reference points on the same elements of the curved mesh
     sb = Basis(mesh, ElementVector(ElementTriP2()), quadrature=pb.quadrature)
-    prestresses = [stress_from_gradient(np.asarray(sb.interpolate(u[:, c]).grad), material.youngs_modulus,
-                                        material.poisson_ratio) for c in range(u.shape[1])]
+    prestresses = [stress_from_gradient(np.asarray(sb.interpolate(u[:, c]).grad), material.elastic)
+                   for c in range(u.shape[1])]
     edges = np.concatenate([pm.boundaries[k] for k in ("left", "right", "bottom", "top")])
     scale, force = 1.0, thickness
     extra = None
-    if reinforcement is not None and reinforcement.kind == "ring":
-        ring_factor, _ = reinforcement_terms(reinforcement, material.youngs_modulus, thickness)
+    e = material.elastic.reference_modulus
+    if reinforcement is not None and pm.region_elements is not None:  # a reinforced region (a doubler ring)
+        region_factor, _ = reinforcement_terms(reinforcement, material.elastic, thickness)
         scale = np.ones(mesh.t.shape[1])
-        scale[pm.ring_elements] = stack_bending_ratio(material.youngs_modulus, thickness, reinforcement)
+        scale[pm.region_elements] = reinforcement.region_bending_ratio(e, thickness)
         force = np.full(mesh.t.shape[1], thickness)
-        force[pm.ring_elements] = thickness * ring_factor  # membrane force = web stress x equivalent thickness
-    elif reinforcement is not None and reinforcement.kind == "flange":
-        extra = _flange_terms(pm, pb, u, material, thickness, reinforcement)
+        force[pm.region_elements] = thickness * region_factor  # membrane force = web stress x equivalent thickness
+    beam = None if reinforcement is None else reinforcement.edge_beam(e, thickness)
+    if beam is not None:  # a beam along the cutout edge (a flange)
+        extra = _edge_beam_terms(pm, pb, u, *beam)
     return _plate_factors(pb, prestresses, material, thickness, edges, edge_support, n_modes, scale, force,
                           extra), pb
 
 
-def _flange_terms(pm, pb, u: np.ndarray, material, thickness: float, reinforcement):
-    """The flange's bending stiffness and geometric stiffness per load case along the cutout (plate matrices)."""
+def _edge_beam_terms(pm, pb, u: np.ndarray, bending: float, axial: float):
+    """The bending stiffness and the geometric stiffness per load case (plate matrices) of a beam along the cutout
+    edge of bending stiffness ``bending`` (E I, N mm^2) and axial stiffness ``axial`` (E A, N), strained with the
+    web's edge."""
     from skfem import Basis, ElementTriP2, ElementVector
 
     from holeshape.solve import edge_points
@@ -246,8 +248,6 @@ def _flange_terms(pm, pb, u: np.ndarray, material, thickness: float, reinforceme
         raise SolveError("the plate mesh numbers its facets differently from the panel mesh")
     g, _ = np.polynomial.legendre.leggauss(EDGE_GAUSS)
     lam = 0.5 * (g + 1.0)
-    e_f = reinforcement.modulus(material.youngs_modulus)
-    area = reinforcement.cross_section_mm2(thickness)
     force = np.empty((u.shape[1], len(pm.cutout_facets), EDGE_GAUSS))
     velem = ElementVector(ElementTriP2())
     for sel, elem, start, d in edge_points(mesh, pm.cutout_facets):
@@ -258,12 +258,10 @@ def _flange_terms(pm, pb, u: np.ndarray, material, thickness: float, reinforceme
         tan = tan / np.linalg.norm(tan, axis=0)
         for c in range(u.shape[1]):
             grad = np.asarray(cb.interpolate(u[:, c]).grad)  # (2, 2, k, q)
-            force[c][sel] = e_f * area * np.einsum("ikq,ijkq,jkq->kq", tan, grad, tan)
+            force[c][sel] = axial * np.einsum("ikq,ijkq,jkq->kq", tan, grad, tan)
     fv = mesh.facets[:, pm.cutout_facets]
     chain = np.where(pm.cutout_flip, fv[1], fv[0])  # the start vertex of each facet along the arc
-    return edge_beam_matrices(pb, chain, pm.closed, flange_bending_stiffness(material.youngs_modulus, thickness,
-                                                                             reinforcement),
-                              [f.mean(axis=1) for f in force])
+    return edge_beam_matrices(pb, chain, pm.closed, bending, [f.mean(axis=1) for f in force])
 
 
 def _plate_factors(pb, prestresses: list[np.ndarray], material, thickness: float, edge_facets: np.ndarray,
@@ -273,7 +271,7 @@ def _plate_factors(pb, prestresses: list[np.ndarray], material, thickness: float
     with ``edge_facets`` supported. ``scale``/``force``: per-element bending stiffness ratio and membrane thickness
     (a ring); ``extra``: (K, [K_G per case]) of an edge beam (a flange)."""
     force = thickness if force is None else force
-    K = bending_stiffness(pb, material.youngs_modulus, material.poisson_ratio, thickness, scale)
+    K = bending_stiffness(pb, material.elastic, thickness, scale)
     KGs = [geometric_stiffness(pb, S, force) for S in prestresses]
     compression = [has_compression(S) for S in prestresses]
     if extra is not None:
@@ -291,7 +289,7 @@ def _holed_level(panel, material, remote: np.ndarray, cutout, spec: MeshSpec, su
 
     region = Region(panel.width, panel.height)  # the whole panel: modes need not be symmetric
     pm = mesh_panel(panel.width, panel.height, cutout, region, spec)
-    sol = solve_panel(pm, material.youngs_modulus, material.poisson_ratio, remote, panel.edges, panel.width,
+    sol = solve_panel(pm, material.elastic, remote, panel.edges, panel.width,
                       panel.height, recover=False, reinforcement=cutout.reinforcement, thickness=panel.thickness,
                       fields=fields)
     facs, pb = plate_buckling(pm, sol.u, material, panel.thickness, support, n_modes, cutout.reinforcement)
@@ -381,11 +379,12 @@ def _combine(runs: list[_LevelRun], ratios: list[float], j: int, floor_pct: floa
 
 
 def buckling(panel, material, load_cases, cutout, settings: StabilitySettings, accuracy: str = "standard",
-             time_limit_s: float | None = None, keep_fields: bool = False, cache: dict | None = None):
+             time_limit_s: float | None = None, keep_fields: bool = False, cache: dict | None = None
+             ) -> StabilityResult:
     """Buckling load factor of every load case for the panel with ``cutout`` (or without one: ``cutout=None``), and
-    of the same panel without the cutout. Returns a :class:`StabilityResult`, or ``(result, StabilityFields)``
-    with ``keep_fields``. ``cache``: a dict owned by the caller (a search run) in which the unperforated panel,
-    the same for every design of a study, is kept between calls."""
+    of the same panel without the cutout. With ``keep_fields`` the result carries the finest plate mesh and the
+    mode shapes (``StabilityResult.fields``). ``cache``: a dict owned by the caller (a search run) in which the
+    unperforated panel, the same for every design of a study, is kept between calls."""
     t0 = time.perf_counter()
     level = STABILITY_LEVELS[accuracy]
     from holeshape.solve import load_fields
@@ -439,11 +438,10 @@ def buckling(panel, material, load_cases, cutout, settings: StabilitySettings, a
         required_factor=settings.required_factor, accuracy=level.name, accuracy_target_pct=level.target_pct,
         dofs=runs[-1].dofs, level_dofs=tuple(r.dofs for r in runs), refinements=refinements_holed,
         elapsed_s=time.perf_counter() - t0, warnings=tuple(warnings),
-        cutout_edge=CUTOUT_EDGE_NOTES[None if cutout is None or cutout.reinforcement is None
-                                      else cutout.reinforcement.kind])
+        cutout_edge="free" if cutout is None or cutout.reinforcement is None else cutout.reinforcement.edge_note)
     if keep_fields:
         last = runs[-1]
-        return result, StabilityFields(p=last.p, t=last.t, modes=last.factors)
+        return replace(result, fields=StabilityFields(p=last.p, t=last.t, modes=last.factors))
     return result
 
 

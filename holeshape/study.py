@@ -6,60 +6,30 @@ a :class:`Study` (or its parts), never a dictionary from the file.
 
 from __future__ import annotations
 
-import math
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from typing import Any
 
-from holeshape.errors import GeometryError, StudyError
+from holeshape.elastic import Elastic
+from holeshape.parameters import (  # noqa: F401 - the study's parts, re-exported
+    LENGTH_PARAMETERS,
+    ROW_PARAMETERS,
+    SHAPE_PARAMETERS,
+    CutoutSpec,
+    Param,
+    Range,
+)
 
 EDGES = ("traction", "displacement")
 SHEAR_DISTRIBUTIONS = ("uniform", "parabolic")
 MEASURES = ("von_mises", "max_principal", "hoop")
 ACCURACIES = ("draft", "standard", "fine")
 EDGE_SUPPORTS = ("simply_supported", "clamped")
-GOALS = ("lowest_peak", "largest_opening", "lightest_reinforcement")
+GOALS = ("lowest_peak", "largest_opening", "lightest_reinforcement")  # holeshape.goals.GOALS, in this order
 # "auto": the gradient refinement for a free-form outline of many radii searched for the lowest peak, else the
 # sampler then simplex; "sampler_simplex": Optuna's TPE then Nelder-Mead; "gradient": standard shapes, then
 # sequential linear programming on finite differences over a moved mesh (holeshape.search.gradient)
 METHODS = ("auto", "sampler_simplex", "gradient")
-SHAPE_PARAMETERS: dict[str, tuple[str, ...]] = {
-    "circle": ("radius",),
-    "ellipse": ("a", "b"),
-    "superellipse": ("a", "b", "exponent"),
-    "slot": ("length", "width"),
-    "rounded_rectangle": ("a", "b", "corner_radius"),
-    "spline": ("radii", "symmetry"),
-}
 COMMON_CUTOUT_KEYS = ("shape", "center", "rotation")
-ROW_KEYS = ("count", "pitch", "direction")  # a row of copies of one opening
-REINFORCEMENT_KEYS = ("kind", "height", "width", "thickness", "youngs_modulus")
-REINFORCEMENT_PREFIX = "reinforcement."  # cutout values of the [reinforcement] table: "reinforcement.height", ...
-
-
-def flat_name(base: str, index: int | None = None) -> str:
-    """The flat name of a cutout parameter: ``a``, or ``radii[2]`` for an entry of a list parameter."""
-    return base if index is None else f"{base}[{index}]"
-
-
-def split_flat_name(name: str) -> tuple[str, int | None]:
-    """``"radii[2]"`` -> ``("radii", 2)``; ``"a"`` -> ``("a", None)``; ``"cutout[1].radii[2]"`` ->
-    ``("cutout[1].radii", 2)`` (the inverse of :func:`flat_name`)."""
-    if name.endswith("]") and "[" in name:
-        base, idx = name[:-1].rsplit("[", 1)
-        return base, int(idx)
-    return name, None
-
-
-OTHER_PREFIX = "cutout[{}]."  # values of the i-th further [[cutout]] table (i from 1): "cutout[1].a", ...
-
-
-def set_flat(values: dict, name: str, value) -> None:
-    """Set the parameter ``name`` (flat, as :func:`flat_name` gives it) in a dict of cutout values."""
-    base, idx = split_flat_name(name)
-    if idx is None:
-        values[base] = value
-    else:
-        values[base][idx] = value
 
 
 @dataclass(frozen=True)
@@ -84,13 +54,20 @@ class Panel:
 
 @dataclass(frozen=True)
 class Material:
-    """Isotropic linear-elastic material. Moduli and stresses MPa; density (optional) kg/m^3."""
+    """The web's material: its constitutive law (``elastic``, an :class:`~holeshape.elastic.Elastic` of a
+    registered kind), the allowable stress and the net-section allowable (MPa, optional), density (kg/m^3,
+    optional)."""
 
     name: str
-    youngs_modulus: float
-    poisson_ratio: float
+    elastic: Elastic
     allowable_stress: float | None = None
     density: float | None = None
+    net_section_allowable: float | None = None
+
+    def to_dict(self) -> dict[str, Any]:
+        """Flat, as the study file gives it (the elastic kind's own keys beside the name and allowables)."""
+        return {"name": self.name, **self.elastic.to_dict(), "allowable_stress": self.allowable_stress,
+                "density": self.density, "net_section_allowable": self.net_section_allowable}
 
 
 @dataclass(frozen=True)
@@ -112,125 +89,6 @@ class LoadCase:
     @property
     def components(self) -> tuple[float, float, float]:
         return (self.sigma_x, self.sigma_y, self.tau_xy)
-
-
-@dataclass(frozen=True)
-class Range:
-    """A search range for a cutout parameter. ``value`` (optional) is the current design: ``check`` evaluates it
-    and the search tries it first."""
-
-    min: float
-    max: float
-    log: bool = False
-    value: float | None = None
-
-
-@dataclass(frozen=True)
-class CutoutSpec:
-    """The ``[cutout]`` table: a family name and its parameter values (numbers, lists, strings or Ranges)."""
-
-    shape: str
-    values: dict[str, Any] = field(default_factory=dict)
-
-    @property
-    def ranges(self) -> dict[str, Range]:
-        out: dict[str, Range] = {}
-        for k, v in self.values.items():
-            if isinstance(v, Range):
-                out[k] = v
-            elif isinstance(v, (list, tuple)):
-                out.update({flat_name(k, i): r for i, r in enumerate(v) if isinstance(r, Range)})
-        return out
-
-    def build(self, overrides: dict[str, Any] | None = None):
-        """The placed :class:`~holeshape.geometry.Cutout` (all values must be numbers)."""
-        from holeshape.geometry import FAMILIES, Cutout
-
-        vals = {k: (list(v) if isinstance(v, (list, tuple)) else v) for k, v in self.values.items()}
-        vals.update(overrides or {})
-
-        def number(k, v):
-            if isinstance(v, Range):
-                if v.value is None:
-                    raise StudyError(f"cutout.{k} is a range (min = {v.min:g}, max = {v.max:g}) without a value;"
-                                     " give value = ... for the design to check, or run holeshape optimise")
-                return v.value
-            return v
-
-        for k, v in vals.items():
-            vals[k] = [number(f"{k}[{i}]", x) for i, x in enumerate(v)] if isinstance(v, list) else number(k, v)
-        others = []
-        i = 1
-        while OTHER_PREFIX.format(i) + "shape" in vals:  # further [[cutout]] tables, each built on its own
-            pre = OTHER_PREFIX.format(i)
-            own = {k[len(pre):]: v for k, v in vals.items() if k.startswith(pre)}
-            others.append(CutoutSpec(own.pop("shape"), own).build())
-            i += 1
-        vals = {k: v for k, v in vals.items() if not k.startswith("cutout[")}
-        cls = FAMILIES[self.shape]
-        kwargs = {k: vals[k] for k in SHAPE_PARAMETERS[self.shape] if k in vals}
-        if "radii" in kwargs:
-            kwargs["radii"] = tuple(float(r) for r in kwargs["radii"])
-        shape = cls(**kwargs)
-        shape.check()
-        center = vals["center"]
-        cutout = Cutout(shape=shape, center=(float(center[0]), float(center[1])), rotation=float(vals["rotation"]),
-                        reinforcement=build_reinforcement(vals), row=build_row(vals), others=tuple(others))
-        if cutout.reinforcement is not None:
-            from holeshape.geometry.reinforcement import check_formable
-
-            check_formable(cutout)
-        return cutout
-
-    @property
-    def reinforced(self) -> bool:
-        return REINFORCEMENT_PREFIX + "kind" in self.values
-
-    def without_reinforcement(self) -> CutoutSpec:
-        return CutoutSpec(self.shape, {k: v for k, v in self.values.items() if not k.startswith(REINFORCEMENT_PREFIX)})
-
-
-def build_row(values: dict):
-    """The :class:`~holeshape.geometry.base.Row` of a cutout's numeric values (None for one opening)."""
-    from holeshape.geometry.base import Row
-
-    count = int(values.get("count", 1))
-    if count == 1:
-        return None
-    pitch = float(values["pitch"])
-    if not (math.isfinite(pitch) and pitch > 0):
-        raise GeometryError(f"cutout.pitch must be a finite number > 0 mm, got {pitch!r}")
-    return Row(count=count, pitch=pitch, direction=float(values.get("direction", 0.0)))
-
-
-def nominal_row(values: dict):
-    """The row of a cutout's values with a searched pitch at its ``value`` (else mid-range): for the standard
-    shapes. None for one opening."""
-    vals = {k: (v.value if v.value is not None else 0.5 * (v.min + v.max)) if isinstance(v, Range) else v
-            for k, v in values.items() if k in ROW_KEYS}
-    return build_row(vals)
-
-
-def nominal_reinforcement(values: dict):
-    """The reinforcement of a cutout's values with each searched size at its ``value`` (else the middle of its
-    range): the one the standard shapes are checked with. None without a [reinforcement] table."""
-    vals = {k: (v if not isinstance(v, Range) else (v.value if v.value is not None else 0.5 * (v.min + v.max)))
-            for k, v in values.items() if k.startswith(REINFORCEMENT_PREFIX)}
-    return build_reinforcement(vals)
-
-
-def build_reinforcement(values: dict):
-    """The :class:`~holeshape.geometry.Reinforcement` of a cutout's numeric values (None without one)."""
-    from holeshape.geometry import Reinforcement
-
-    kind = values.get(REINFORCEMENT_PREFIX + "kind")
-    if kind is None:
-        return None
-    sizes = {k: float(values[REINFORCEMENT_PREFIX + k]) for k in REINFORCEMENT_KEYS[1:]
-             if REINFORCEMENT_PREFIX + k in values}
-    r = Reinforcement(kind=kind, **sizes)
-    r.check()
-    return r
 
 
 @dataclass(frozen=True)
@@ -324,4 +182,19 @@ class Study:
     search: SearchSettings = SearchSettings()
     source: str = ""
     stability: StabilitySettings | None = None
+    warnings: tuple[str, ...] = ()  # values that are valid but look like a unit slip (one line each, every output)
+    tables: tuple[tuple[str, Any], ...] = ()  # the parsed tables of registered checks that read one (by check name)
+
+    @classmethod
+    def of(cls, panel: Panel, material: Material, load_cases: tuple[LoadCase, ...], cutout, *,
+           title: str = "study", measure: Measure = Measure(), constraints: Constraints = Constraints(),
+           stability: StabilitySettings | None = None) -> Study:
+        """A study built in code around a placed :class:`~holeshape.geometry.Cutout` (the Python API)."""
+        return cls(title=title, panel=panel, material=material, load_cases=tuple(load_cases),
+                   cutout=CutoutSpec.from_cutout(cutout), measure=measure, constraints=constraints,
+                   stability=stability)
+
+    def table(self, name: str) -> Any:
+        """The settings a check read from its own study-file table (None without the table)."""
+        return dict(self.tables).get(name)
 

@@ -9,21 +9,22 @@ from __future__ import annotations
 
 import difflib
 import math
+from collections.abc import Callable
 from pathlib import Path
 from typing import Any
 
+from holeshape.elastic import ELASTIC_KINDS, Isotropic
 from holeshape.errors import GeometryError, StudyError
+from holeshape.goals import GOALS
+from holeshape.parameters import OpeningSpec, ReinforcementSpec, RowSpec
 from holeshape.study import (
     ACCURACIES,
     COMMON_CUTOUT_KEYS,
     EDGE_SUPPORTS,
     EDGES,
-    GOALS,
     MEASURES,
     METHODS,
-    OTHER_PREFIX,
-    REINFORCEMENT_KEYS,
-    ROW_KEYS,
+    ROW_PARAMETERS,
     SHAPE_PARAMETERS,
     SHEAR_DISTRIBUTIONS,
     Access,
@@ -106,17 +107,21 @@ def _table(doc: dict, key: str, required: bool = True) -> dict:
         return {}
     v = doc[key]
     if not isinstance(v, dict):
-        raise StudyError(f"{key} must be a table ([{key}]), got {v!r}")
+        raise StudyError(f"{key} must be a table ([{key}]), got {_shown(v)}")
     return v
 
 
 TOP_KEYS = ("title", "panel", "material", "load_case", "cutout", "measure", "constraints", "search", "stability",
             "reinforcement")
+# the tables of registered checks that read one of their own (holeshape.checks): table name -> (the check's name,
+# the function that reads the table into the check's frozen settings, raising StudyError naming the field; it also
+# gets the parsed panel, material and load cases by name)
+CHECK_TABLES: dict[str, tuple[str, Callable[[dict, dict], Any]]] = {}
 
 
 def parse_study(doc: dict, source: str = "") -> Study:
     """Validate a decoded TOML document and build the :class:`Study`."""
-    _unknown(doc, TOP_KEYS, "")
+    _unknown(doc, TOP_KEYS + tuple(CHECK_TABLES), "")
     title = doc.get("title", Path(source).stem if source else "untitled study")
     if not isinstance(title, str):
         raise StudyError(f"title must be a string, got {title!r}")
@@ -135,17 +140,7 @@ def parse_study(doc: dict, source: str = "") -> Study:
     )
 
     m = _table(doc, "material")
-    _unknown(m, ("name", "youngs_modulus", "poisson_ratio", "allowable_stress", "density"), "material.")
-    nu = _number(m, "poisson_ratio", "material.")
-    if not -1.0 < nu < 0.5:
-        raise StudyError(f"material.poisson_ratio must lie strictly between -1 and 0.5, got {nu!r}")
-    material = Material(
-        name=_string(m, "name", "material.", default="unnamed material"),
-        youngs_modulus=_number(m, "youngs_modulus", "material.", positive=True),
-        poisson_ratio=nu,
-        allowable_stress=_number(m, "allowable_stress", "material.", default=None, positive=True),
-        density=_number(m, "density", "material.", default=None, positive=True),
-    )
+    material = _parse_material(m)
 
     cases = doc.get("load_case")
     if cases is None:
@@ -177,12 +172,7 @@ def parse_study(doc: dict, source: str = "") -> Study:
     if dup:
         raise StudyError(f"load_case names must be unique, got {dup[0]!r} more than once")
 
-    reinforcement = _parse_reinforcement(_table(doc, "reinforcement"), panel) if "reinforcement" in doc else {}
-    tables = doc.get("cutout")
-    if isinstance(tables, list):
-        cutout = _parse_cutouts(tables, panel, reinforcement)
-    else:
-        cutout = _parse_cutout(_table(doc, "cutout"), panel, reinforcement)
+    cutout = _parse_cutouts(doc, panel)
 
     ms = _table(doc, "measure", required=False)
     _unknown(ms, ("stress", "accuracy"), "measure.")
@@ -200,39 +190,72 @@ def parse_study(doc: dict, source: str = "") -> Study:
     if constraints.min_margin is not None and material.allowable_stress is None:
         raise StudyError(f"constraints.min_margin = {constraints.min_margin!r} needs material.allowable_stress (MPa)"
                          " to measure the margin of safety against")
-    if constraints.area is not None and OTHER_PREFIX.format(1) + "shape" in cutout.values:
+    if constraints.area is not None and len(cutout.openings) > 1:
         raise StudyError(f"constraints.area = {constraints.area!r} mm^2 fixes the area of one design scaled to it;"
                          " with several [[cutout]] tables use min_area / max_area (the total)")
-    if constraints.access is not None and OTHER_PREFIX.format(1) + "shape" in cutout.values:
+    if constraints.access is not None and len(cutout.openings) > 1:
         raise StudyError("constraints.access with several [[cutout]] tables: an access envelope belongs to one"
                          " opening; give it with a single [cutout]")
-    if constraints.access is not None and "count" in cutout.values:
-        raise StudyError(f"constraints.access with a row of {cutout.values['count']} openings (cutout.count): an access"
+    if constraints.access is not None and cutout.row is not None:
+        raise StudyError(f"constraints.access with a row of {cutout.row.count} openings (cutout.count): an access"
                          " envelope belongs to one opening; give the row without it, or a single opening")
     for name in ("max_added_mass", "max_reinforcement_area"):
-        if getattr(constraints, name) is not None and not reinforcement:
+        if getattr(constraints, name) is not None and cutout.reinforcement is None:
             raise StudyError(f"constraints.{name} = {getattr(constraints, name)!r} needs a [reinforcement] table"
                              ' (kind = "flange" or "ring") to limit')
     if constraints.max_added_mass is not None and material.density is None:
         raise StudyError(f"constraints.max_added_mass = {constraints.max_added_mass!r} kg needs material.density"
                          " (kg/m^3) to weigh the reinforcement")
-    if search.goal == "lightest_reinforcement":
-        if not reinforcement or not any(isinstance(v, Range) for v in reinforcement.values()):
-            raise StudyError('search.goal = "lightest_reinforcement" needs a [reinforcement] table with at least one'
-                             " size given as a range ({min = ..., max = ...}) to search")
-        if constraints.min_margin is None and constraints.min_buckling_factor is None:
-            raise StudyError('search.goal = "lightest_reinforcement" needs a requirement the reinforcement must'
-                             " meet: give constraints.min_margin and/or constraints.min_buckling_factor")
-    if search.goal == "largest_opening":
-        if constraints.area is not None:
-            raise StudyError(f'search.goal = "largest_opening" cannot be combined with constraints.area ='
-                             f" {constraints.area!r} (a fixed area leaves nothing to enlarge); use min_area / max_area")
-        if constraints.min_margin is None and constraints.min_buckling_factor is None:
-            raise StudyError('search.goal = "largest_opening" needs a structural limit that bounds the opening:'
-                             " give constraints.min_margin (against material.allowable_stress) and/or"
-                             " constraints.min_buckling_factor (with [stability])")
-    return Study(title=title, panel=panel, material=material, load_cases=tuple(load_cases), cutout=cutout,
-                 measure=measure, constraints=constraints, search=search, source=source, stability=stability)
+    parts = {"panel": panel, "material": material, "load_cases": tuple(load_cases), "cutout": cutout}
+    tables = tuple((check, read(_table(doc, name), parts)) for name, (check, read) in CHECK_TABLES.items()
+                   if name in doc)
+    study = Study(title=title, panel=panel, material=material, load_cases=tuple(load_cases), cutout=cutout,
+                  measure=measure, constraints=constraints, search=search, source=source, stability=stability,
+                  warnings=tuple(plausibility(panel, material)), tables=tables)
+    why = GOALS[search.goal].requires(study)
+    if why is not None:
+        raise StudyError(why)
+    return study
+
+
+def plausibility(panel: Panel, material: Material) -> list[str]:
+    """One-line warnings for values that are valid but look like a unit slip (the study's units are mm, N, MPa)."""
+    out = material.elastic.plausibility()
+    t = panel.thickness
+    if not PLAUSIBLE_THICKNESS_MM[0] <= t <= PLAUSIBLE_THICKNESS_MM[1]:
+        out.append(f"panel.thickness = {t:g} mm is outside {PLAUSIBLE_THICKNESS_MM[0]:g} to"
+                   f" {PLAUSIBLE_THICKNESS_MM[1]:g} mm, where webs and plates lie: holeshape works in mm; check the"
+                   " unit (a thickness in metres or micrometres?)")
+    return out
+
+
+PLAUSIBLE_THICKNESS_MM = (0.1, 100.0)  # foil to heavy plate (common practice, no source)
+
+
+def _parse_material(m: dict) -> Material:
+    """[material]: the elastic kind's constants (``kind``, default "isotropic") and the allowables."""
+    kind = _string(m, "kind", "material.", tuple(ELASTIC_KINDS), default="isotropic")
+    common = ("name", "kind", "allowable_stress", "net_section_allowable", "density")
+    own = ELASTIC_PARSERS[kind]
+    _unknown(m, common + own[0], "material.")
+    return Material(
+        name=_string(m, "name", "material.", default="unnamed material"),
+        elastic=own[1](m),
+        allowable_stress=_number(m, "allowable_stress", "material.", default=None, positive=True),
+        density=_number(m, "density", "material.", default=None, positive=True),
+        net_section_allowable=_number(m, "net_section_allowable", "material.", default=None, positive=True),
+    )
+
+
+def _isotropic(m: dict) -> Isotropic:
+    nu = _number(m, "poisson_ratio", "material.")
+    if not -1.0 < nu < 0.5:
+        raise StudyError(f"material.poisson_ratio must lie strictly between -1 and 0.5, got {nu!r}")
+    return Isotropic(youngs_modulus=_number(m, "youngs_modulus", "material.", positive=True), poisson_ratio=nu)
+
+
+# per elastic kind: its own keys in [material] and the function that reads them
+ELASTIC_PARSERS = {"isotropic": (("youngs_modulus", "poisson_ratio"), _isotropic)}
 
 
 def _beam_case(c: dict, i: int, where: str, panel: Panel) -> LoadCase:
@@ -367,84 +390,91 @@ def _parse_search(c: dict) -> SearchSettings:
     frac = _number(c, "global_fraction", "search.", default=0.25)
     if not 0.0 < frac <= 1.0:
         raise StudyError(f"search.global_fraction must be in (0, 1], got {frac!r}")
-    goal = _string(c, "goal", "search.", GOALS, default="lowest_peak")
+    goal = _string(c, "goal", "search.", tuple(GOALS), default="lowest_peak")
     method = _string(c, "method", "search.", METHODS, default="auto")
     return SearchSettings(trials=trials, seed=seed, global_fraction=frac, goal=goal, method=method)
 
 
-def _parse_reinforcement(c: dict, panel: Panel) -> dict[str, Any]:
-    """The [reinforcement] table as cutout values named ``reinforcement.<key>`` (sizes may be ranges)."""
+def _parse_reinforcement(c: dict) -> ReinforcementSpec:
+    """The [reinforcement] table: its kind and sizes (sizes may be ranges)."""
     w = "reinforcement."
-    _unknown(c, REINFORCEMENT_KEYS, w)
-    from holeshape.geometry.reinforcement import KINDS
+    from holeshape.geometry.reinforcement import REINFORCEMENTS
 
-    kind = _string(c, "kind", w, KINDS)
-    need = {"flange": ("height",), "ring": ("width", "thickness")}[kind]
-    wrong = {"flange": "width", "ring": "height"}[kind]
-    if wrong in c:
-        takes = {"flange": "height (and thickness, default the web's)", "ring": "width and thickness"}[kind]
-        raise StudyError(f"reinforcement.{wrong} does not apply to kind = {kind!r}; a {kind} takes {takes}")
-    out: dict[str, Any] = {w + "kind": kind}
-    for key in need + tuple(k for k in ("thickness",) if k not in need and k in c):
-        out[w + key] = _number(c, key, w, positive=True, allow_range=True)
-    if "youngs_modulus" in c:
-        out[w + "youngs_modulus"] = _number(c, "youngs_modulus", w, positive=True, allow_range=True)
-    return out
+    kind = _string(c, "kind", w, tuple(REINFORCEMENTS))
+    cls = REINFORCEMENTS[kind]
+    every = sorted({k for other in REINFORCEMENTS.values() for k in other.keys()})
+    for key in c:
+        if key != "kind" and key in every and key not in cls.keys():
+            takes = " and ".join(cls.required) + ("" if "thickness" in cls.required else
+                                                  " (and thickness, default the web's)")
+            raise StudyError(f"reinforcement.{key} does not apply to kind = {kind!r}; a {kind} takes {takes}")
+    _unknown(c, ("kind", *cls.keys()), w)
+    sizes = tuple((key, _number(c, key, w, positive=True, allow_range=True)) for key in cls.keys()
+                  if key in cls.required or key in c)
+    return ReinforcementSpec(kind=kind, sizes=sizes)
 
 
-def _parse_cutouts(tables: list, panel: Panel, reinforcement: dict | None) -> CutoutSpec:
-    """Several [[cutout]] tables: the first is the spec, the others ride in its values as ``cutout[i].<key>``."""
-    if not tables or not all(isinstance(t, dict) for t in tables):
-        raise StudyError(f"cutout must be a [cutout] table or [[cutout]] tables, got {tables!r}")
-    if len(tables) == 1:
-        return _parse_cutout(tables[0], panel, reinforcement)
-    if reinforcement:
+def _parse_cutouts(doc: dict, panel: Panel) -> CutoutSpec:
+    """[cutout] (one table, perhaps a row) or [[cutout]] (several tables, each its own opening), with the
+    [reinforcement]."""
+    reinforcement = _parse_reinforcement(_table(doc, "reinforcement")) if "reinforcement" in doc else None
+    tables = doc.get("cutout")
+    if tables is None:
+        raise StudyError("[cutout] table is missing")
+    if isinstance(tables, dict):
+        tables = [tables]
+    if not isinstance(tables, list) or not tables or not all(isinstance(t, dict) for t in tables):
+        raise StudyError(f"cutout must be a [cutout] table or [[cutout]] tables, got {_shown(tables)}")
+    several = len(tables) > 1
+    if several and reinforcement is not None:
         raise StudyError(f"[[cutout]] is given {len(tables)} times with a [reinforcement]: reinforcing several"
                          " openings is not supported yet; reinforce a single opening")
+    openings, row = [], None
     for i, t in enumerate(tables):
-        if "count" in t:
+        where = f"cutout[{i}]." if several else "cutout."
+        if several and "count" in t:
             raise StudyError(f"cutout[{i}].count: a row inside one of several [[cutout]] tables is not supported;"
                              " give either one [cutout] with count and pitch or separate [[cutout]] tables")
-    specs = [_parse_cutout(t, panel, None, check=False, where=f"cutout[{i}]." if i else "cutout.")
-             for i, t in enumerate(tables)]
-    values = dict(specs[0].values)
-    for i, sp in enumerate(specs[1:], 1):
-        values[OTHER_PREFIX.format(i) + "shape"] = sp.shape
-        values.update({OTHER_PREFIX.format(i) + k: v for k, v in sp.values.items()})
-    spec = CutoutSpec(shape=specs[0].shape, values=values)
+        openings.append(_parse_opening(t, panel, where))
+        if not several:
+            row = _parse_row(t, reinforcement is not None)
+    spec = CutoutSpec(openings=tuple(openings), row=row, reinforcement=reinforcement)
     if all(r.value is not None for r in spec.ranges.values()):
         check_cutout_in_panel(spec.build(), panel)
     return spec
 
 
-def _parse_row(c: dict, reinforcement: dict | None) -> dict[str, Any]:
-    """count / pitch / direction of a row of copies of the opening ({} for one opening)."""
-    if not any(k in c for k in ROW_KEYS):
-        return {}
+def _parse_row(c: dict, reinforced: bool) -> RowSpec | None:
+    """count / pitch / direction of a row of copies of the opening (None for one opening)."""
+    given = [k for k in ROW_PARAMETERS if k in c]
+    if not given:
+        return None
+    if "count" not in c:
+        raise StudyError(f"cutout.{given[0]} is given without cutout.count: a row needs count (the number of"
+                         " openings, an integer from 2 to 50), pitch (mm, centre to centre) and optionally direction"
+                         " (degrees)")
     count = c.get("count")
     if isinstance(count, bool) or not isinstance(count, int) or not 1 <= count <= 50:
-        raise StudyError(f"cutout.count must be an integer from 1 to 50 (openings in the row), got {count!r}")
+        raise StudyError(f"cutout.count must be an integer from 1 to 50 (openings in the row), got {_shown(count)}")
     if count == 1:
-        return {}
+        return None
     if "pitch" not in c:
         raise StudyError(f"cutout.count = {count} needs cutout.pitch (mm, centre to centre along the row)")
-    if reinforcement:
+    if reinforced:
         raise StudyError(f"cutout.count = {count} with a [reinforcement]: reinforced rows are not supported yet;"
                          " reinforce a single opening, or leave the row bare")
-    out = {"count": count, "pitch": _number(c, "pitch", "cutout.", positive=True, allow_range=True),
-           "direction": _number(c, "direction", "cutout.", default=0.0)}
-    return out
+    return RowSpec(count=count, pitch=_number(c, "pitch", "cutout.", positive=True, allow_range=True),
+                   direction=_number(c, "direction", "cutout.", default=0.0))
 
 
-def _parse_cutout(c: dict, panel: Panel, reinforcement: dict | None = None, check: bool = True,
-                  where: str = "cutout.") -> CutoutSpec:
+def _parse_opening(c: dict, panel: Panel, where: str) -> OpeningSpec:
     shape = _string(c, "shape", where, tuple(SHAPE_PARAMETERS))
     params = SHAPE_PARAMETERS[shape]
-    _unknown(c, COMMON_CUTOUT_KEYS + ROW_KEYS + params, where)
-    values: dict[str, Any] = {}
+    _unknown(c, COMMON_CUTOUT_KEYS + (ROW_PARAMETERS if where == "cutout." else ()) + params, where)
+    values: list[tuple[str, Any]] = []
     for key in params:
         if key == "symmetry":
-            values[key] = _string(c, key, where, ("none", "x", "xy"), default="none")
+            values.append((key, _string(c, key, where, ("none", "x", "xy"), default="none")))
         elif key == "radii":
             radii = c.get("radii")
             if radii is None:
@@ -453,80 +483,109 @@ def _parse_cutout(c: dict, panel: Panel, reinforcement: dict | None = None, chec
                 count = radii.get("count")
                 rest = {k: v for k, v in radii.items() if k != "count"}
                 if not isinstance(count, int) or isinstance(count, bool) or count < 2:
-                    raise StudyError(f"{where}radii.count must be an integer >= 2 when radii is a range, got {count!r}")
+                    raise StudyError(f"{where}radii.count must be an integer >= 2 when radii is a range, got"
+                                     f" {_shown(count)}")
                 rng = _range(rest, f"{where}radii", True)
-                values[key] = [rng] * count
+                values.append((key, (rng,) * count))
             elif isinstance(radii, list):
-                values[key] = [_number({"r": r}, "r", f"{where}radii[{i}]", positive=True, allow_range=True)
-                               if not isinstance(r, dict) else _range(r, f"{where}radii[{i}]", True)
-                               for i, r in enumerate(radii)]
+                values.append((key, tuple(
+                    _number({"r": r}, "r", f"{where}radii[{i}]", positive=True, allow_range=True)
+                    if not isinstance(r, dict) else _range(r, f"{where}radii[{i}]", True)
+                    for i, r in enumerate(radii))))
             else:
-                raise StudyError(f"{where}radii must be a list of numbers (mm), got {radii!r}")
+                raise StudyError(f"{where}radii must be a list of numbers (mm), got {_shown(radii)}")
         else:
-            values[key] = _number(c, key, where, positive=True, allow_range=True)
+            values.append((key, _number(c, key, where, positive=True, allow_range=True)))
     center = c.get("center", [panel.width / 2, panel.height / 2])
     if isinstance(center, dict):
         raise StudyError(f"{where}center ranges are given per coordinate: center = [{{min=..., max=...}}, 100.0]")
     if not isinstance(center, list) or len(center) != 2:
-        raise StudyError(f"{where}center must be [x, y] in mm, got {center!r}")
-    values["center"] = [_number({"v": v}, "v", f"{where}center[{i}]", allow_range=True) if not isinstance(v, dict)
-                        else _range(v, f"{where}center[{i}]", False) for i, v in enumerate(center)]
-    values["rotation"] = _number(c, "rotation", where, default=0.0, allow_range=True)
-    values.update(_parse_row(c, reinforcement))
-    values.update(reinforcement or {})
-    spec = CutoutSpec(shape=shape, values=values)
-    if check and all(r.value is not None for r in spec.ranges.values()):
-        check_cutout_in_panel(spec.build(), panel)
-    return spec
+        raise StudyError(f"{where}center must be [x, y] in mm, got {_shown(center)}")
+    xy = tuple(_number({"v": v}, "v", f"{where}center[{i}]", allow_range=True) if not isinstance(v, dict)
+               else _range(v, f"{where}center[{i}]", False) for i, v in enumerate(center))
+    return OpeningSpec(shape=shape, values=tuple(values), center=(xy[0], xy[1]),
+                       rotation=_number(c, "rotation", where, default=0.0, allow_range=True))
+
+
+def _shown(v: Any) -> str:
+    """A value from the file as a person wrote it: TOML tables and arrays, not Python's dicts and lists."""
+    if isinstance(v, dict):
+        return "{" + ", ".join(f"{k} = {_shown(x)}" for k, x in v.items()) + "}"
+    if isinstance(v, list):
+        if v and all(isinstance(x, dict) for x in v):
+            return f"an array of {len(v)} tables"
+        return "[" + ", ".join(_shown(x) for x in v) + "]"
+    if isinstance(v, str):
+        return f'"{v}"'
+    if isinstance(v, bool):
+        return "true" if v else "false"
+    return repr(v)
 
 
 def check_cutout_in_panel(cutout, panel: Panel) -> None:
-    """Raise :class:`GeometryError` unless the cutout is a simple closed curve strictly inside the panel."""
+    """Raise :class:`GeometryError` unless every opening is a simple closed curve strictly inside the panel, with web
+    between openings; the message names the table and the value that put it there."""
     from shapely.geometry import Polygon
 
-    poly = Polygon(cutout.polygon(720))
-    if not poly.is_valid:
-        raise GeometryError(f"cutout ({cutout.family}, {cutout.parameters()}) crosses itself; "
-                            "the outline must be a simple closed curve")
-    if cutout.others:
-        polys = [Polygon(p) for p in cutout.outlines(720)]
+    members = cutout.members
+    separate = bool(cutout.others)
+
+    def table(k: int) -> str:
+        return f"cutout[{k}]" if separate else "cutout"
+
+    polys = [Polygon(p) for p in cutout.outlines(720)]
+    for k, (m, a) in enumerate(zip(members, polys)):
+        if not a.is_valid:
+            raise GeometryError(f"{table(k)} ({m.family}, {m.shape.parameters()}) crosses itself; the outline must be"
+                                " a simple closed curve")
+    if separate:
         for i, a in enumerate(polys):
-            if not a.is_valid:
-                raise GeometryError(f"cutout[{i}] crosses itself; the outline must be a simple closed curve")
             for j in range(i):
                 gap = a.distance(polys[j])
                 if gap < 1e-3 * math.sqrt(min(a.area, polys[j].area)):
                     raise GeometryError(f"cutout[{i}] overlaps or touches cutout[{j}] (web between them {gap:.3g} mm);"
                                         " separate openings need web between them")
     elif cutout.count > 1:
-        polys = [Polygon(p) for p in cutout.outlines(720)]
         gap = min(a.distance(b) for a, b in zip(polys, polys[1:]))
-        size = max(poly.bounds[2] - poly.bounds[0], poly.bounds[3] - poly.bounds[1])
+        b = polys[0].bounds
+        size = max(b[2] - b[0], b[3] - b[1])
         if gap < 1e-3 * size:
             raise GeometryError(
                 f"cutout.pitch = {cutout.row.pitch:g} mm makes neighbouring openings of the row overlap or touch"
                 f" (web between them {gap:.3g} mm); the pitch must exceed the opening's size along the row")
-    edge, gap = min(cutout.edge_gaps(panel.width, panel.height).items(), key=lambda kv: kv[1])
-    if gap <= 0:
-        raise GeometryError(
-            f"cutout.center {list(cutout.center)} puts the {cutout.family} outside or across the {edge} panel edge"
-            f" (ligament {gap:.3g} mm); it must lie inside the {panel.width:g} x {panel.height:g} mm panel")
-    if gap < 1e-3 * min(panel.width, panel.height):
-        raise GeometryError(
-            f"cutout.center {list(cutout.center)} leaves a ligament of only {gap:.3g} mm to the {edge} edge;"
-            f" at least {1e-3 * min(panel.width, panel.height):.3g} mm (0.1 % of the panel) is needed to mesh it")
-    r = cutout.reinforcement
-    if r is not None and r.kind == "ring":
-        from holeshape.geometry.reinforcement import ring_outline
-
-        outer = ring_outline(cutout, r.width)
-        if not Polygon(outer.polygon(720)).is_valid:
-            raise GeometryError(f"reinforcement.width = {r.width:g} mm makes the ring's outer edge cross itself")
-        ring_edge, ring_gap = min(outer.edge_gaps(panel.width, panel.height).items(), key=lambda kv: kv[1])
-        if ring_gap < 1e-3 * min(panel.width, panel.height):
+    least = 1e-3 * min(panel.width, panel.height)
+    for k, m in enumerate(members):
+        edge, gap = min(m.edge_gaps(panel.width, panel.height).items(), key=lambda kv: kv[1])
+        if gap >= least:
+            continue
+        if cutout.row is not None:
+            r = cutout.row
+            span = (r.count - 1) * r.pitch
             raise GeometryError(
-                f"reinforcement.width = {r.width:g} mm runs the ring past the {ring_edge} panel edge (gap"
-                f" {ring_gap:.3g} mm); the ring must lie inside the panel with a ligament of web beyond it")
+                f"cutout.count = {r.count} at cutout.pitch = {r.pitch:g} mm (a row {span:g} mm long between its end"
+                f" centres, direction {r.direction:g} deg) runs opening {k + 1} "
+                + ("across" if gap <= 0 else "to within {gap:.3g} mm of") + f" the {edge} panel edge (ligament"
+                f" {gap:.3g} mm) of the {panel.width:g} x {panel.height:g} mm panel: fewer openings, a smaller pitch"
+                " or a centre further from that edge")
+        where = f"{table(k)}.center {[round(c, 6) for c in m.center]}"
+        if gap <= 0:
+            raise GeometryError(
+                f"{where} puts the {m.family} outside or across the {edge} panel edge (ligament {gap:.3g} mm); it must"
+                f" lie inside the {panel.width:g} x {panel.height:g} mm panel")
+        raise GeometryError(
+            f"{where} leaves a ligament of only {gap:.3g} mm to the {edge} edge; at least {least:.3g} mm (0.1 % of"
+            " the panel) is needed to mesh it")
+    r = cutout.reinforcement
+    outer = None if r is None else r.interior_outline(cutout)
+    if outer is not None:
+        size = f"reinforcement.{r.keys()[0]} = {r.size:g} mm"
+        if not Polygon(outer.polygon(720)).is_valid:
+            raise GeometryError(f"{size} makes the {r.kind}'s outer edge cross itself")
+        ring_edge, ring_gap = min(outer.edge_gaps(panel.width, panel.height).items(), key=lambda kv: kv[1])
+        if ring_gap < least:
+            raise GeometryError(
+                f"{size} runs the {r.kind} past the {ring_edge} panel edge (gap {ring_gap:.3g} mm); the {r.kind}"
+                " must lie inside the panel with a ligament of web beyond it")
 
 
 def dump_toml(doc: dict) -> str:
@@ -579,6 +638,9 @@ def load_study(path: str | Path) -> Study:
         text = path.read_text(encoding="utf-8")
     except FileNotFoundError as err:
         raise StudyError(f"study file {str(path)!r} does not exist") from err
+    except IsADirectoryError as err:
+        raise StudyError(f"study file {str(path)!r} is a folder, not a study file (give the path of a .toml"
+                         " file)") from err
     except (OSError, UnicodeDecodeError) as err:
         raise StudyError(f"study file {str(path)!r} cannot be read: {err}") from err
     try:

@@ -8,11 +8,12 @@ import time
 
 import numpy as np
 
+from holeshape.elastic import Isotropic
 from holeshape.evaluate import evaluate
-from holeshape.geometry import Circle, Cutout, Ellipse, Reinforcement
+from holeshape.geometry import Circle, Cutout, Ellipse, Flange, Ring
 from holeshape.study import LoadCase, Material, Measure, Panel
 
-REFERENCE_MATERIAL = Material(name="reference", youngs_modulus=71000.0, poisson_ratio=0.33)
+REFERENCE_MATERIAL = Material(name="reference", elastic=Isotropic(71000.0, 0.33))
 BIG = 4000.0  # 400 hole sizes across: finite-panel effect ~0.005 % on the peak
 
 
@@ -53,11 +54,12 @@ def le1_sigma_yy_at_d(size_mm: float = 60.0) -> float:
     basis = vector_basis(mesh)
     fixed = np.concatenate([basis.get_dofs(bf[np.abs(mid[1]) < 1e-6]).all("u^2"),
                             basis.get_dofs(bf[np.abs(mid[0]) < 1e-6]).all("u^1")])
-    u = FactorisedSystem(stiffness(basis, 210000.0, 0.3), fixed).solve(
+    steel = Isotropic(210000.0, 0.3)
+    u = FactorisedSystem(stiffness(basis, steel), fixed).solve(
         traction_load(mesh, outer, lambda x, y: (10.0, 10.0, 0.0))[:, None])
     c = mesh.facets[:, inner]
     ang = np.arctan2(mesh.p[1, c].mean(axis=0), mesh.p[0, c].mean(axis=0))
-    return float(boundary_stress(mesh, u, inner[np.argsort(ang)], 210000.0, 0.3, closed=False).sigma[1, 0, 0])
+    return float(boundary_stress(mesh, u, inner[np.argsort(ang)], steel, closed=False).sigma[1, 0, 0])
 
 
 def lame_ring_hoop(ratio: float, b_over_a: float, nu: float) -> float:
@@ -83,14 +85,14 @@ def reference_cases(full: bool = True):
     for r in ((2, 4, 8) if full else (4,)):
         rows.append((f"ellipse a/b = {r}, load across", "Inglis (1913): 1 + 2a/b",
                      Cutout(Ellipse(10.0, 10.0 / r), mid), big, (0, 100, 0), 100.0 * (1 + 2 * r), 0.1))
-    nu = REFERENCE_MATERIAL.poisson_ratio
+    nu = REFERENCE_MATERIAL.elastic.poisson_ratio
     rows.append(("flanged circle, neutral member, equibiaxial",
                  "Mansfield (1953): A = a t / (1 - nu) leaves the sheet uniform",
-                 Cutout(Circle(10.0), mid, 0.0, Reinforcement("flange", height=10.0 / (1 - nu))), big,
+                 Cutout(Circle(10.0), mid, 0.0, Flange(height=10.0 / (1 - nu))), big,
                  (100, 100, 0), 100.0, 0.1))
     if full:
         rows.append(("doubler ring, t_ring = t, b = 2a, equibiaxial", "Lame (closed form, derived)",
-                     Cutout(Circle(10.0), mid, 0.0, Reinforcement("ring", width=10.0, thickness=1.0)), big,
+                     Cutout(Circle(10.0), mid, 0.0, Ring(width=10.0, thickness=1.0)), big,
                      (100, 100, 0), 100.0 * lame_ring_hoop(2.0, 2.0, nu), 0.1))
     strip = Panel(1000.0, 100.0, 1.0)
     for dw, kt in (((0.2, 3.14), (0.3, 3.36), (0.4, 3.74), (0.5, 4.32)) if full else ((0.4, 3.74),)):
@@ -99,8 +101,20 @@ def reference_cases(full: bool = True):
     return rows
 
 
-def run_validation(accuracy: str, full: bool = False) -> list[dict]:
-    """Solve the reference cases at ``accuracy``; rows ready for JSON."""
+_MEMO: dict[tuple, list[dict]] = {}
+
+
+def run_validation(accuracy: str, full: bool = False, stability: bool = False) -> list[dict]:
+    """Solve the reference cases at ``accuracy``; rows ready for JSON. ``stability``: also the plate buckling
+    cases (for a study that uses [stability]). The rows of one process are computed once (every run of a
+    ``compare`` and a test session reuses them)."""
+    key = (accuracy, full, stability)
+    if key not in _MEMO:
+        _MEMO[key] = _validation(accuracy, full, stability)
+    return [dict(r) for r in _MEMO[key]]
+
+
+def _validation(accuracy: str, full: bool, stability: bool) -> list[dict]:
     out = []
     for name, source, cut, panel, load, published, tol in reference_cases(full):
         t0 = time.perf_counter()
@@ -115,4 +129,41 @@ def run_validation(accuracy: str, full: bool = False) -> list[dict]:
                 "published": 92.7, "holeshape": v, "error_pct": 100 * (v / 92.7 - 1), "tolerance_pct": 1.0,
                 "error_estimate_pct": None, "within": abs(v / 92.7 - 1) <= 0.01, "dofs": None,
                 "seconds": time.perf_counter() - t0})
+    if stability:
+        out += buckling_cases(accuracy)
     return out
+
+
+# plate buckling references: sigma_cr = k pi^2 E / (12 (1 - nu^2)) (t / b)^2, simply supported square of side b
+BUCKLING_CASES = (
+    ("square plate, simply supported, uniaxial compression (buckling factor)",
+     "Bryan (1891): k = 4 (exact), as in Timoshenko & Gere (1961)", (-10.0, 0.0, 0.0), 4.0, 0.5),
+    ("square plate, simply supported, pure shear (buckling factor)",
+     "Stein & Neff (1947), NACA TN 1222: k = 9.34 (tabulated, about 0.17 % above the converged 9.3245)",
+     (0.0, 0.0, 10.0), 9.34, 1.0),
+)
+
+
+def buckling_cases(accuracy: str) -> list[dict]:
+    """The unperforated simply supported square plate in compression and in shear through the stability layer
+    (the same plate elements, levels and extrapolation as a design's check): load factor against k."""
+    import math
+
+    from holeshape.stability import buckling
+    from holeshape.study import StabilitySettings
+
+    side, t = 200.0, 1.0
+    e, nu = REFERENCE_MATERIAL.elastic.youngs_modulus, REFERENCE_MATERIAL.elastic.poisson_ratio
+    unit = math.pi ** 2 * e / (12.0 * (1.0 - nu ** 2)) * (t / side) ** 2  # sigma_cr for k = 1, MPa
+    rows = []
+    for name, source, load, k, tol in BUCKLING_CASES:
+        t0 = time.perf_counter()
+        st = buckling(Panel(side, side, t), REFERENCE_MATERIAL, (LoadCase("c", *load),), None,
+                      StabilitySettings("simply_supported"), accuracy)
+        published = k * unit / 10.0  # the load factor on 10 MPa
+        f = st.load_factor
+        err = 100 * (f / published - 1)
+        rows.append({"case": name, "source": source, "published": published, "holeshape": f, "error_pct": err,
+                     "tolerance_pct": tol, "error_estimate_pct": st.error_estimate_pct, "within": abs(err) <= tol,
+                     "dofs": st.dofs, "seconds": time.perf_counter() - t0})
+    return rows

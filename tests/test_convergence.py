@@ -22,7 +22,7 @@ def test_observed_rate_of_the_boundary_stress_error():
     for k in range(3):
         spec = base.coarsened(0.5**k)
         pm = mesh_panel(BIG, BIG, c, region, spec)
-        sol = solve_panel(pm, ALUMINIUM.youngs_modulus, ALUMINIUM.poisson_ratio, np.array([[100.0, 0, 0]]),
+        sol = solve_panel(pm, ALUMINIUM.elastic, np.array([[100.0, 0, 0]]),
                           "traction", BIG, BIG)
         bs = sol.cutout
         theta = np.arctan2(bs.xy[1] - BIG / 2, bs.xy[0] - BIG / 2)

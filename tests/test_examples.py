@@ -19,7 +19,11 @@ def test_strip_with_hole_example(capsys):
     out = load("strip_with_hole").main()
     # Howland (1930), d/W = 0.4, gross section: 3.74; 1 % (3-figure table)
     assert out["kt"] == pytest.approx(3.74, rel=0.01)
-    assert out["margin"] == pytest.approx(300.0 / (100.0 * out["kt"]) - 1, rel=1e-9)
+    # the margin against the 300 MPa allowable at Howland's peak, 374 MPa: 300 / 374 - 1 = -0.198 (the table's 1 %
+    # on Kt moves it by 0.01)
+    assert out["margin"] == pytest.approx(300.0 / 374.0 - 1, abs=0.01)
+    # net section across the 60 mm of web beside the 40 mm hole in the 100 mm bar: 100 x 100 / 60 (statics), 0.5 %
+    assert out["net_section_mpa"] == pytest.approx(100.0 * 100.0 / 60.0, rel=5e-3)
     assert "Howland" in capsys.readouterr().out
 
 
@@ -28,5 +32,4 @@ def test_web_buckling_example(capsys):
     # Stein & Neff (1947) as tabulated by Timoshenko & Gere: simply supported square in shear, k = 9.34; 1 %
     assert out["k_plain"] == pytest.approx(9.34, rel=0.01)
     assert out["factor"] < out["unperforated"]  # with traction edges the hole lowers the shear buckling load
-    assert out["reserve"] == pytest.approx(out["factor"] / 1.5, rel=1e-12)
     assert "Stein & Neff" in capsys.readouterr().out

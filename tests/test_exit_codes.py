@@ -78,10 +78,30 @@ def test_exit_4_when_the_storage_cannot_be_opened(tmp_path, capsys):
 
 
 def test_exit_5_when_no_design_meets_the_requirements(tmp_path, capsys):
-    # a margin no ellipse of these sizes reaches: the search runs its budget and says it has no answer
+    # a margin no ellipse of these sizes reaches: the search runs its budget and says it has no answer, in one line
+    # on stderr and in full in the run folder (summary.json, summary.txt, report.html), and a rerun says it again at
+    # once, from the stored summary
+    import json
+    import time
+
     path = _write(tmp_path, SMALL.replace("[search]", "[constraints]\nmin_margin = 5.0\n\n[search]"))
-    assert main(["optimise", str(path), "--out", str(tmp_path / "run"), "-q"]) == 5
-    assert "no feasible design" in _one_line(capsys)
+    out = tmp_path / "run"
+    assert main(["optimise", str(path), "--out", str(out), "-q"]) == 5
+    cap = capsys.readouterr()
+    err = cap.err.strip().splitlines()
+    assert len(err) == 1 and "no design meets every requirement" in err[0] and "summary.txt" in err[0]
+    assert "NO DESIGN" in cap.out and "nearest misses" in cap.out  # the account on stdout
+    d = json.loads((out / "summary.json").read_text())
+    assert d["outcome"] == "no_design" and d["best"] is None
+    assert d["trial_reasons"][0]["name"] == "margin" and d["trial_reasons"][0]["trials"] > 0
+    miss = d["nearest_misses"][0]["missed"][0]
+    assert miss["label"].startswith("margin of safety") and miss["value"] < 5.0 == miss["limit"]
+    for name in ("summary.txt", "report.html"):
+        assert (out / name).stat().st_size > 0
+    t0 = time.perf_counter()
+    assert main(["optimise", str(path), "--out", str(out), "-q"]) == 5
+    assert time.perf_counter() - t0 < 5.0  # nothing solved again
+    assert "no design meets every requirement" in _one_line(capsys)
 
 
 def _journal_trials(out):

@@ -12,18 +12,19 @@ PACKAGE = Path(__file__).resolve().parents[1] / "holeshape"
 
 # lowest first, as in the DEVELOPERS.md layer table
 LAYERS = [
-    ("holeshape", "holeshape.errors"),
-    ("holeshape.geometry",),
-    ("holeshape.study", "holeshape.studyfile"),
+    ("holeshape", "holeshape.errors", "holeshape.progress"),
+    ("holeshape.geometry", "holeshape.elastic"),
+    ("holeshape.study", "holeshape.parameters", "holeshape.goals", "holeshape.studyfile"),
     ("holeshape.mesh",),
-    ("holeshape.solve",),
+    ("holeshape.solve", "holeshape.homogenise"),
     ("holeshape.plate",),
     ("holeshape.stability",),
     ("holeshape.evaluate",),
+    ("holeshape.checks",),
     ("holeshape.search", "holeshape.validation"),
     ("holeshape.record",),
     ("holeshape.output",),
-    ("holeshape.optimise", "holeshape.finish"),
+    ("holeshape.optimise", "holeshape.finish", "holeshape.final", "holeshape.checkrun"),
     ("holeshape.compare", "holeshape.sweep"),
     ("holeshape.cli",),
 ]

@@ -26,12 +26,14 @@ import math
 
 import numpy as np
 import pytest
+from conftest import checked
 
-from holeshape.evaluate import CUTOUT_EDGE, FLANGE, RING_EDGE, evaluate
-from holeshape.geometry import Circle, Cutout, Reinforcement
+from holeshape.elastic import Isotropic
+from holeshape.evaluate import CUTOUT_EDGE, FLANGE, RING_EDGE
+from holeshape.geometry import Circle, Cutout, Flange, Ring
 from holeshape.mesh import MeshSpec, Region, mesh_panel
 from holeshape.solve import member_stress, solve_panel
-from holeshape.study import LoadCase, Material, Measure, Panel
+from holeshape.study import LoadCase, Material, Panel
 
 E, NU, T, A, W = 70000.0, 0.3, 2.0, 10.0, 2000.0
 STANDARD = MeshSpec(boundary_ratio=32.0, growth=0.3, max_fraction=0.1, min_segments=96)
@@ -42,8 +44,8 @@ def solve(reinforcement, remote, region=None):
     region = region or Region(W, W, True, True)
     cut = Cutout(Circle(A), (W / 2, W / 2), 0.0, reinforcement)
     pm = mesh_panel(W, W, cut, region, STANDARD)
-    return solve_panel(pm, E, NU, np.array([remote], dtype=float), "traction", W, W, reinforcement=reinforcement,
-                       thickness=T)
+    return solve_panel(pm, Isotropic(E, NU), np.array([remote], dtype=float), "traction", W, W,
+                       reinforcement=reinforcement, thickness=T)
 
 
 # ----- exact solutions --------------------------------------------------------------------------------------------
@@ -110,11 +112,11 @@ def test_exact_member_solution_reduces_to_kirsch():
 def test_ring_equibiaxial_matches_lame(ring_thickness):
     # exact: ring_equibiaxial (Lame, derived above); ring thickness ratio 1 (a vanishing doubler) is Kirsch's 2.0
     s = 100.0
-    sol = solve(Reinforcement("ring", width=A, thickness=ring_thickness), [s, s, 0.0])
+    sol = solve(Ring(width=A, thickness=ring_thickness), [s, s, 0.0])
     hoop_a, hoop_b, radial_b = ring_equibiaxial(1 + ring_thickness / T, 2 * A, s)
     assert sol.cutout.hoop[:, 0] == pytest.approx(np.full(len(sol.cutout.s), hoop_a), rel=TOL)
-    assert sol.ring_edge.hoop[:, 0] == pytest.approx(np.full(len(sol.ring_edge.s), hoop_b), rel=TOL)
-    assert sol.ring_edge.normal[:, 0] == pytest.approx(np.full(len(sol.ring_edge.s), radial_b), rel=TOL)
+    assert sol.interior_edge.hoop[:, 0] == pytest.approx(np.full(len(sol.interior_edge.s), hoop_b), rel=TOL)
+    assert sol.interior_edge.normal[:, 0] == pytest.approx(np.full(len(sol.interior_edge.s), radial_b), rel=TOL)
     if ring_thickness < 1e-3:
         assert hoop_a == pytest.approx(2 * s, rel=1e-5)  # Kirsch, equibiaxial
 
@@ -123,17 +125,18 @@ def test_ring_evaluation_reports_both_edges_and_the_governing_one():
     # the evaluation's peaks at the two locations equal the Lame values (von Mises = |hoop| at the free edge; at
     # the outer edge von Mises of (radial, hoop)); the governing peak is the larger
     s = 100.0
-    ev = evaluate(Panel(W, W, T), Material("al", E, NU), (LoadCase("eq", s, s, 0.0),),
-                  Cutout(Circle(A), (W / 2, W / 2), 0.0, Reinforcement("ring", width=A, thickness=2.0)))
+    res = checked(Cutout(Circle(A), (W / 2, W / 2), 0.0, Ring(width=A, thickness=2.0)), [LoadCase("eq", s, s, 0.0)],
+                  panel=Panel(W, W, T), material=Material("al", Isotropic(E, NU)))
+    ev, rf = res.evaluation, res.result("reinforcement")
     hoop_a, hoop_b, radial_b = ring_equibiaxial(2.0, 2 * A, s)
     vm_b = math.sqrt(hoop_b ** 2 - hoop_b * radial_b + radial_b ** 2)
-    peaks = ev.reinforcement.peak_stress_mpa
+    peaks = rf.peak_stress_mpa
     assert peaks[CUTOUT_EDGE] == pytest.approx(hoop_a, rel=TOL)
     assert peaks[RING_EDGE] == pytest.approx(vm_b, rel=TOL)
     assert ev.peak_stress_mpa == pytest.approx(max(hoop_a, vm_b), rel=TOL)
     assert ev.load_cases[0].peak_location == (CUTOUT_EDGE if hoop_a > vm_b else RING_EDGE)
     assert ev.within_target
-    assert ev.reinforcement.ring_area_mm2 == pytest.approx(math.pi * (4 - 1) * A * A, rel=1e-4)
+    assert rf.ring_area_mm2 == pytest.approx(math.pi * (4 - 1) * A * A, rel=1e-4)
 
 
 # ----- flange as an edge member -----------------------------------------------------------------------------------
@@ -141,12 +144,12 @@ def test_ring_evaluation_reports_both_edges_and_the_governing_one():
 def test_flange_equibiaxial_matches_lame_and_the_neutral_hole(area):
     # exact: member_equibiaxial; area a t / (1 - nu) is Mansfield's neutral hole (sheet stress uniform, Kt = 1)
     s = 100.0
-    sol = solve(Reinforcement("flange", height=area / T), [s, s, 0.0])
+    sol = solve(Flange(height=area / T), [s, s, 0.0])
     hoop, radial, member = member_equibiaxial(area, s)
     n = len(sol.cutout.s)
     assert sol.cutout.hoop[:, 0] == pytest.approx(np.full(n, hoop), rel=TOL)
     assert sol.cutout.normal[:, 0] == pytest.approx(np.full(n, radial), rel=TOL)
-    assert member_stress(sol.cutout, E, NU, E)[:, 0] == pytest.approx(np.full(n, member), rel=TOL)
+    assert member_stress(sol.cutout, Isotropic(E, NU), E)[:, 0] == pytest.approx(np.full(n, member), rel=TOL)
     if area == pytest.approx(A * T / (1 - NU)):
         vm = sol.cutout.von_mises[:, 0]
         assert vm.max() / s == pytest.approx(1.0, abs=TOL)  # Kt -> 1 (Mansfield 1953)
@@ -157,52 +160,53 @@ def test_flange_uniaxial_matches_the_airy_solution(area):
     # exact: member_uniaxial (Airy stress function, derived above), pointwise round the edge of the modelled
     # quarter; tolerance TOL of the remote stress
     s = 100.0
-    sol = solve(Reinforcement("flange", height=area / T), [s, 0.0, 0.0])
+    sol = solve(Flange(height=area / T), [s, 0.0, 0.0])
     bs = sol.cutout
     theta = np.arctan2(bs.xy[1] - W / 2, bs.xy[0] - W / 2)
     th, sr, st, tau, member = member_uniaxial(area, s)
     assert bs.hoop[:, 0] == pytest.approx(np.interp(theta, th, st), abs=TOL * s)
     assert bs.normal[:, 0] == pytest.approx(np.interp(theta, th, sr), abs=TOL * s)
-    assert member_stress(bs, E, NU, E)[:, 0] == pytest.approx(np.interp(theta, th, member), abs=TOL * s)
+    assert member_stress(bs, Isotropic(E, NU), E)[:, 0] == pytest.approx(np.interp(theta, th, member), abs=TOL * s)
     vm_exact = np.sqrt(sr ** 2 - sr * st + st ** 2 + 3 * tau ** 2).max()
-    ev = evaluate(Panel(W, W, T), Material("al", E, NU), (LoadCase("x", s, 0.0, 0.0),),
-                  Cutout(Circle(A), (W / 2, W / 2), 0.0, Reinforcement("flange", height=area / T)))
-    assert ev.reinforcement.peak_stress_mpa[CUTOUT_EDGE] == pytest.approx(vm_exact, rel=TOL)
-    assert ev.reinforcement.peak_stress_mpa[FLANGE] == pytest.approx(np.abs(member).max(), rel=TOL)
+    res = checked(Cutout(Circle(A), (W / 2, W / 2), 0.0, Flange(height=area / T)), [LoadCase("x", s, 0.0, 0.0)],
+                  panel=Panel(W, W, T), material=Material("al", Isotropic(E, NU)))
+    peaks = res.result("reinforcement").peak_stress_mpa
+    assert peaks[CUTOUT_EDGE] == pytest.approx(vm_exact, rel=TOL)
+    assert peaks[FLANGE] == pytest.approx(np.abs(member).max(), rel=TOL)
 
 
 def test_vanishing_reinforcement_gives_the_bare_hole_and_a_stiff_member_the_rigid_inclusion():
     # Kirsch 3.0 (uniaxial) with a flange of 1e-6 mm and with a ring of 1e-6 mm thickness; an inextensible member
     # under equibiaxial stress: sigma_r = 2 s / (1 + nu), sigma_t = nu sigma_r at the edge (rigid inclusion)
     s = 100.0
-    for r in (Reinforcement("flange", height=1e-6), Reinforcement("ring", width=A, thickness=1e-6)):
+    for r in (Flange(height=1e-6), Ring(width=A, thickness=1e-6)):
         assert solve(r, [s, 0.0, 0.0]).cutout.hoop[:, 0].max() == pytest.approx(3.0 * s, rel=TOL)
-    sol = solve(Reinforcement("flange", height=1e6), [s, s, 0.0])
+    sol = solve(Flange(height=1e6), [s, s, 0.0])
     assert sol.cutout.normal[:, 0].mean() == pytest.approx(2 * s / (1 + NU), rel=TOL)
     assert sol.cutout.hoop[:, 0].mean() == pytest.approx(NU * 2 * s / (1 + NU), rel=TOL)
 
 
 def test_reduced_and_full_models_agree_with_a_ring():
     # the quarter model's mirror conditions are exact for the ring too: full and quarter within the mesh scatter
-    r = Reinforcement("ring", width=6.0, thickness=1.5)
+    r = Ring(width=6.0, thickness=1.5)
     quarter = solve(r, [100.0, 30.0, 0.0])
     full = solve(r, [100.0, 30.0, 0.0], Region(W, W))
-    for a, b in ((quarter.cutout, full.cutout), (quarter.ring_edge, full.ring_edge)):
+    for a, b in ((quarter.cutout, full.cutout), (quarter.interior_edge, full.interior_edge)):
         assert a.von_mises.max() == pytest.approx(b.von_mises.max(), rel=1e-3)
 
 
 def test_reinforcement_keys_and_mass_in_the_json():
-    ev = evaluate(Panel(400, 300, 1.6), Material("al", E, NU, 250.0, 2780.0), (LoadCase("s", 0, 0, 40.0),),
-                  Cutout(Circle(40.0), (200.0, 150.0), 0.0, Reinforcement("flange", height=8.0)), Measure())
-    d = ev.to_dict()
+    mat = Material("al", Isotropic(E, NU), 250.0, 2780.0)
+    d = checked(Cutout(Circle(40.0), (200.0, 150.0), 0.0, Flange(height=8.0)), [LoadCase("s", 0, 0, 40.0)],
+                panel=Panel(400, 300, 1.6), material=mat).to_dict()
     block = d["reinforcement"]
     assert block["kind"] == "flange" and block["sizes"] == {"height": 8.0, "thickness": 1.6}
     # mass = perimeter x height x thickness x density
     assert block["added_mass_kg"] == pytest.approx(2 * math.pi * 40.0 * 8.0 * 1.6 * 2780e-9, rel=1e-4)
     assert set(block["peak_stress_mpa"]) == {CUTOUT_EDGE, FLANGE}
     assert {c["location"] for c in d["load_cases"][0]["locations"]} == {CUTOUT_EDGE, FLANGE}
-    bare = evaluate(Panel(400, 300, 1.6), Material("al", E, NU, 250.0, 2780.0), (LoadCase("s", 0, 0, 40.0),),
-                    Cutout(Circle(40.0), (200.0, 150.0)), Measure()).to_dict()
+    bare = checked(Cutout(Circle(40.0), (200.0, 150.0)), [LoadCase("s", 0, 0, 40.0)], panel=Panel(400, 300, 1.6),
+                   material=mat).to_dict()
     assert "reinforcement" not in bare and "locations" not in bare["load_cases"][0]
 
 
@@ -224,8 +228,8 @@ def _free_top_edge_plate(n: int):
 def _k(pb, supported, thickness, extra, prestress=(-1.0, 0.0, 0.0)):
     from holeshape.stability import _plate_factors, critical_stress_coefficient
 
-    f = _plate_factors(pb, [np.array(prestress)], Material("al", E, NU), thickness, supported, "simply_supported", 1,
-                       extra=extra)
+    f = _plate_factors(pb, [np.array(prestress)], Material("al", Isotropic(E, NU)), thickness, supported,
+                       "simply_supported", 1, extra=extra)
     return f[0][0][0], critical_stress_coefficient(f[0][0][0], 300.0, thickness, E, NU)
 
 
@@ -258,7 +262,7 @@ def web_factors():
     from holeshape.stability import buckling
     from holeshape.study import StabilitySettings
 
-    panel, mat = Panel(300.0, 200.0, 1.6), Material("al", E, 0.33)
+    panel, mat = Panel(300.0, 200.0, 1.6), Material("al", Isotropic(E, 0.33))
     cases = (LoadCase("shear", 0.0, 0.0, 20.0), LoadCase("compression", -15.0, 0.0, 0.0))
 
     def run(r):
@@ -266,10 +270,10 @@ def web_factors():
         return [c.load_factor for c in st.cases]
 
     return {name: run(r) for name, r in {
-        "bare": None, "tiny flange": Reinforcement("flange", height=1e-4),
-        "tiny ring": Reinforcement("ring", width=15.0, thickness=1e-5),
-        "flange 6": Reinforcement("flange", height=6.0), "flange 12": Reinforcement("flange", height=12.0),
-        "ring": Reinforcement("ring", width=15.0, thickness=1.6)}.items()}
+        "bare": None, "tiny flange": Flange(height=1e-4),
+        "tiny ring": Ring(width=15.0, thickness=1e-5),
+        "flange 6": Flange(height=6.0), "flange 12": Flange(height=12.0),
+        "ring": Ring(width=15.0, thickness=1.6)}.items()}
 
 
 def test_vanishing_reinforcement_leaves_the_buckling_factor(web_factors):

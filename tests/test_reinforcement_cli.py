@@ -86,11 +86,11 @@ def test_check_json_plots_and_dxf_of_a_ring(tmp_path, capsys):
     assert d["stability"]["cutout_edge"].startswith("free, the doubler ring")
     import ezdxf
 
-    from holeshape.geometry import Circle, Cutout, Reinforcement
+    from holeshape.geometry import Circle, Cutout, Ring
     from holeshape.output.files import CUTOUT_LAYER, RING_LAYER, write_dxf
 
     path = tmp_path / "ring.dxf"
-    write_dxf(path, Cutout(Circle(60.0), (180.0, 120.0), 0.0, Reinforcement("ring", width=20.0, thickness=1.6)),
+    write_dxf(path, Cutout(Circle(60.0), (180.0, 120.0), 0.0, Ring(width=20.0, thickness=1.6)),
               (360.0, 240.0), "t", 1.6)
     doc = ezdxf.readfile(path)
     polys = {e.dxf.layer: e for e in doc.modelspace().query("LWPOLYLINE")}
@@ -147,19 +147,26 @@ def test_compare_adds_the_reinforced_row(tmp_path, capsys):
 
 def test_mass_and_cross_section_limits_are_geometric_constraints():
     # checked before any solve, with their reasons; mass = perimeter x height x thickness x density
-    from holeshape.geometry import Circle, Cutout, Reinforcement
-    from holeshape.search.constraints import constraint_values
-    from holeshape.study import Constraints, Panel
+    from holeshape.checks import assess
+    from holeshape.elastic import Isotropic
+    from holeshape.geometry import Circle, Cutout, Flange
+    from holeshape.study import Constraints, LoadCase, Material, Panel, Study
 
-    cut = Cutout(Circle(60.0), (180.0, 120.0), 0.0, Reinforcement("flange", height=10.0))
+    cut = Cutout(Circle(60.0), (180.0, 120.0), 0.0, Flange(height=10.0))
     mass = 2 * 3.141592653589793 * 60.0 * 10.0 * 1.6 * 2780e-9
     panel = Panel(360.0, 240.0, 1.6)
-    ok, why = constraint_values(cut, panel, Constraints(max_added_mass=1.01 * mass, max_reinforcement_area=16.0),
-                                2780.0)
-    assert not why and ok["added_mass"] < 0 and ok["reinforcement_area"] == pytest.approx(0.0, abs=1e-12)
-    bad, why = constraint_values(cut, panel, Constraints(max_added_mass=0.99 * mass, max_reinforcement_area=15.0),
-                                 2780.0)
-    assert bad["added_mass"] > 0 and bad["reinforcement_area"] > 0
+    mat = Material("al", Isotropic(71000.0, 0.33), density=2780.0)
+
+    def geometry(cons):
+        return assess(Study.of(panel, mat, (LoadCase("s", tau_xy=10.0),), cut, constraints=cons), cut)
+
+    ok = geometry(Constraints(max_added_mass=1.01 * mass, max_reinforcement_area=16.0))
+    c = ok.constraint_values()
+    assert ok.meets_every_requirement and c["added_mass"] < 0
+    assert c["reinforcement_area"] == pytest.approx(0.0, abs=1e-12)
+    bad = geometry(Constraints(max_added_mass=0.99 * mass, max_reinforcement_area=15.0))
+    c, why = bad.constraint_values(), bad.reasons()
+    assert not bad.meets_every_requirement and c["added_mass"] > 0 and c["reinforcement_area"] > 0
     assert any("added mass" in w for w in why) and any("cross-section 16 mm^2 > 15 mm^2" in w for w in why)
 
 

@@ -18,6 +18,7 @@ from hypothesis import strategies as st
 from robust_cases import ANY_BAD, VALID, to_toml
 
 from holeshape.cli import main
+from holeshape.elastic import Isotropic
 
 
 @settings(max_examples=520, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture])
@@ -79,7 +80,7 @@ def test_hard_geometry_solves_within_target_or_says_why(name, family, params, ce
     cut = Cutout(FAMILIES[family](**params), center, rotation)
     t0 = time.perf_counter()
     try:
-        ev = evaluate(Panel(300.0, 200.0, 1.6), Material("alloy", 71000.0, 0.33),
+        ev = evaluate(Panel(300.0, 200.0, 1.6), Material("alloy", Isotropic(71000.0, 0.33)),
                       (LoadCase("t", 60.0, 0.0, 35.0), LoadCase("c", -80.0)), cut, Measure("von_mises", "draft"),
                       time_limit_s=30.0)
     except HoleshapeError as err:

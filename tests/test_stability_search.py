@@ -108,13 +108,16 @@ def test_objective_records_solved_constraints_with_reasons():
     study = parse_study(doc)
     obj = Objective(study, DesignSpace(study.cutout, study.constraints))
     rec = obj({"radius": 70.0})
-    assert rec["state"] == "complete"  # solved, then refused: recorded, never silently dropped
-    assert rec["user_attrs"]["feasible"] is False
-    assert rec["constraints"]["buckling"] > 0 and rec["constraints"]["margin"] > 0
-    assert "buckling load factor" in rec["user_attrs"]["reason"] and "margin of safety" in rec["user_attrs"]["reason"]
+    assert rec.state == "complete"  # solved, then refused: recorded, never silently dropped
+    assert rec.feasible is False and rec.user_attrs()["feasible"] is False
+    assert rec.constraints["buckling"] > 0 and rec.constraints["margin"] > 0
+    assert "buckling load factor" in rec.attrs["reason"] and "margin of safety" in rec.attrs["reason"]
+    # the requirement rows that refused it travel with the trial (the nearest misses of a run read them back)
+    missed = {r["name"] for r in rec.attrs["requirements"] if not r["met"]}
+    assert {"buckling", "margin"} <= missed
     small = obj({"radius": 22.0})  # buckles above the required factor; its margin (Kirsch shear: 4 x 8 MPa) fails
-    assert small["constraints"]["buckling"] <= 0 < small["constraints"]["margin"]
-    assert "buckling" not in small["user_attrs"]["reason"]
+    assert small.constraints["buckling"] <= 0 < small.constraints["margin"]
+    assert "buckling" not in small.attrs["reason"]
 
 
 def test_check_json_and_plots_with_stability(tmp_path, capsys):

@@ -7,7 +7,7 @@ from __future__ import annotations
 
 from holeshape.geometry.base import BoundarySampling, Cutout, Shape
 from holeshape.geometry.families import Circle, Ellipse, RoundedRectangle, Slot, Superellipse
-from holeshape.geometry.reinforcement import Reinforcement
+from holeshape.geometry.reinforcement import REINFORCEMENTS, Flange, Reinforcement, Ring
 from holeshape.geometry.spline import Spline
 
 FAMILIES: dict[str, type[Shape]] = {
@@ -15,6 +15,6 @@ FAMILIES: dict[str, type[Shape]] = {
 }
 
 __all__ = [
-    "FAMILIES", "BoundarySampling", "Circle", "Cutout", "Ellipse", "Reinforcement", "RoundedRectangle", "Shape", "Slot",
-    "Spline", "Superellipse",
+    "FAMILIES", "REINFORCEMENTS", "BoundarySampling", "Circle", "Cutout", "Ellipse", "Flange", "Reinforcement", "Ring",
+    "RoundedRectangle", "Shape", "Slot", "Spline", "Superellipse",
 ]

@@ -47,7 +47,7 @@ class Spline(Shape):
         for i, r in enumerate(self.radii):
             if not (isinstance(r, (int, float)) and math.isfinite(r) and r > 0):
                 raise GeometryError(f"cutout.radii[{i}] must be a finite number > 0 mm, got {r!r}")
-        r = self._radius(np.linspace(0, 2 * math.pi, 4096, endpoint=False))
+        r = self.radius_at(np.linspace(0, 2 * math.pi, 4096, endpoint=False))
         if r.min() <= 1e-3 * max(self.radii):
             raise GeometryError(
                 f"cutout.radii {list(self.radii)} give a self-crossing spline (the curve passes through its centre);"
@@ -66,11 +66,12 @@ class Spline(Shape):
         theta = np.linspace(0.0, 2 * math.pi, len(r) + 1)
         return CubicSpline(theta, np.concatenate([r, r[:1]]), bc_type="periodic")
 
-    def _radius(self, t):
+    def radius_at(self, t):
+        """The polar radius (mm) at angle ``t`` (radians, the shape's own frame): the spline is star-shaped."""
         return self._spline(np.mod(t, 2 * math.pi))
 
     def local_xy(self, t):
-        r = self._radius(t)
+        r = self.radius_at(t)
         return np.array([r * np.cos(t), r * np.sin(t)])
 
     def parameters(self) -> dict[str, object]:

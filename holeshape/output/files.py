@@ -17,7 +17,7 @@ from holeshape.geometry import Cutout
 
 CUTOUT_LAYER = "CUTOUT_PROFILE"
 PANEL_LAYER = "PANEL_OUTLINE"
-RING_LAYER = "DOUBLER_OUTER_EDGE"
+RING_LAYER = "DOUBLER_OUTER_EDGE"  # the ring's (Ring.drawing_layer), named here for readers of the files
 CHORD_TOLERANCE_MM = 0.01
 
 
@@ -108,14 +108,7 @@ def chord_error(cutout: Cutout, pts: np.ndarray) -> float:
 def reinforcement_note(cutout: Cutout, web_thickness: float | None = None) -> str | None:
     """One line saying what reinforces the opening (for the DXF's header comment and properties)."""
     r = cutout.reinforcement
-    if r is None:
-        return None
-    t = r.thickness if r.thickness is not None else web_thickness
-    t_text = "the web's thickness" if t is None else f"{t:g} mm thick"
-    if r.kind == "flange":
-        return (f"formed flange {r.height:g} mm high, {t_text}, standing on the whole cutout edge (not drawn in the"
-                " flat profile; the flat blank must allow for it)")
-    return f"doubler ring {r.width:g} mm wide, {t_text}: outer edge on layer {RING_LAYER}"
+    return None if r is None else r.drawing_note(web_thickness)
 
 
 def write_dxf(path: Path, cutout: Cutout, panel_size: tuple[float, float] | None = None,
@@ -132,13 +125,12 @@ def write_dxf(path: Path, cutout: Cutout, panel_size: tuple[float, float] | None
         raise HoleshapeError(f"profile chord error {err:.4f} mm exceeds {CHORD_TOLERANCE_MM} mm; not written")
     ring_pts = None
     r = cutout.reinforcement
-    if r is not None and r.kind == "ring":
-        from holeshape.geometry.reinforcement import ring_outline
-
-        outer = ring_outline(cutout, r.width)
+    outer = None if r is None else r.interior_outline(cutout)
+    if outer is not None:
         ring_pts = profile_points(outer)
         if chord_error(outer, ring_pts) > CHORD_TOLERANCE_MM:
-            raise HoleshapeError("the ring's outer edge cannot be written within the chord tolerance; not written")
+            raise HoleshapeError(f"the {r.kind}'s outer edge cannot be written within the chord tolerance; not"
+                                 " written")
     doc = ezdxf.new("R2010", setup=False, units=units.MM)
     doc.header["$MEASUREMENT"] = 1  # metric
     doc.layers.add(CUTOUT_LAYER, color=1)
@@ -151,9 +143,9 @@ def write_dxf(path: Path, cutout: Cutout, panel_size: tuple[float, float] | None
         w, h = panel_size
         msp.add_lwpolyline([(0.0, 0.0), (w, 0.0), (w, h), (0.0, h)], close=True, dxfattribs={"layer": PANEL_LAYER})
     if ring_pts is not None:
-        doc.layers.add(RING_LAYER, color=5)
+        doc.layers.add(r.drawing_layer, color=5)
         msp.add_lwpolyline([tuple(map(float, p)) for p in ring_pts], format="xy", close=True,
-                           dxfattribs={"layer": RING_LAYER})
+                           dxfattribs={"layer": r.drawing_layer})
     note = reinforcement_note(cutout, web_thickness)
     if note is not None:
         doc.header.custom_vars.append("HOLESHAPE_REINFORCEMENT", note)

@@ -52,8 +52,7 @@ def vertex_stress(fields: EvaluationFields) -> np.ndarray:
     out = np.zeros((3, nv, sol.u.shape[1]))
     count = np.bincount(mesh.t.ravel(), minlength=nv).astype(float)
     for c in range(sol.u.shape[1]):
-        s = stress_from_gradient(np.asarray(cb.interpolate(sol.u[:, c]).grad), sol.youngs_modulus,
-                                 sol.poisson_ratio)  # (3, nt, 3)
+        s = stress_from_gradient(np.asarray(cb.interpolate(sol.u[:, c]).grad), sol.elastic)  # (3, nt, 3)
         for k in range(3):
             np.add.at(out[k, :, c], mesh.t.T.ravel(), s[k].ravel())
     return out / count[None, :, None]
@@ -105,8 +104,8 @@ def plot_stress_field(path: Path, ev: Evaluation, fields: EvaluationFields, cuto
     tpc = ax.tripcolor(p[0], p[1], t.T, v, shading="gouraud", cmap="viridis", vmin=0, vmax=top)
     for xy in outline_list(cutout_xy):
         ax.plot(*np.concatenate([xy, xy[:, :1]], axis=1), color="white", lw=1.2)
-    if fields.ring_boundary is not None:
-        ax.plot(*fields.ring_boundary.xy, color="white", lw=1.0, ls="--", label="doubler ring's outer edge")
+    if fields.interior_boundary is not None:
+        ax.plot(*fields.interior_boundary.xy, color="white", lw=1.0, ls="--", label="reinforcement's outer edge")
         ax.legend(loc="upper right", fontsize=8)
     r = ev.load_cases[case_index]
     ax.plot([r.x_mm], [r.y_mm], marker="x", color="red", ms=10, mew=2)
@@ -129,20 +128,18 @@ def plot_boundary_stress(path: Path, ev: Evaluation, fields: EvaluationFields, a
                          title: str) -> Path:
     """The measure along the cutout edge per load case; with a reinforcement a second panel: the web along the
     ring's outer edge, or the flange's own axial stress (signed: compression below zero)."""
-    from holeshape.evaluate import FLANGE, RING_EDGE
-
     plt = pyplot()
     bs = fields.boundary
     vals = measure_values(bs, ev.stress_measure)
     second = None
-    if fields.ring_boundary is not None:
-        rb = fields.ring_boundary
-        second = (rb.s, measure_values(rb, ev.stress_measure), RING_EDGE,
-                  "arc length round the ring's outer edge, counter-clockwise (mm)",
+    if fields.interior_boundary is not None:
+        rb = fields.interior_boundary
+        second = (rb.s, measure_values(rb, ev.stress_measure), fields.interior_name,
+                  "arc length round the reinforcement's outer edge, counter-clockwise (mm)",
                   f"{STRESS_LABELS[ev.stress_measure]} (MPa)")
-    elif fields.flange_stress is not None:
-        second = (bs.s, fields.flange_stress, FLANGE, "arc length round the cutout, counter-clockwise (mm)",
-                  "axial stress in the flange (MPa)")
+    elif fields.member_stress is not None:
+        second = (bs.s, fields.member_stress, fields.member_name, "arc length round the cutout, counter-clockwise (mm)",
+                  f"axial stress in the {fields.member_name} (MPa)")
     fig, axes = plt.subplots(2 if second else 1, 1, figsize=(9, 8.4 if second else 4.8), squeeze=False)
     styles = ["-", "--", "-.", ":"]
     ax = axes[0, 0]
@@ -160,7 +157,7 @@ def plot_boundary_stress(path: Path, ev: Evaluation, fields: EvaluationFields, a
         for j, r in enumerate(ev.load_cases):
             at = next(loc.peak_stress_mpa for loc in r.locations if loc.location == where)
             ax2.plot(s2, v2[:, j], styles[j % 4], lw=1.6, label=f"{r.name} (peak {at:.1f} MPa)")
-        if where == FLANGE:
+        if fields.member_stress is not None:  # signed: compression below the line
             ax2.axhline(0.0, color="0.5", lw=0.8)
         panels.append((ax2, xlabel, ylabel, f"{where}", s2))
     for a, xlabel, ylabel, head, s in panels:

@@ -1,241 +1,34 @@
 """The reviewer's report: one self-contained HTML file (images embedded, opens offline, prints to PDF), or Markdown
 with the figures beside it. Built only from a run folder's stored results (no solving), so it is fast and
-deterministic."""
+deterministic. Every check's own section is rendered from its stored plain data; a run with no answer gets the
+same report with the reasons, the nearest misses and what to change in place of a recommendation."""
 
 from __future__ import annotations
 
-import base64
 import html
 import json
-from dataclasses import asdict
 from pathlib import Path
 
-from holeshape.output.files import atomic_write
-from holeshape.output.text import factor_text
+from holeshape.goals import GOALS
+from holeshape.output.numbers import limit_value, requirement_value, sig
+from holeshape.output.page import Page, describe_constraints, describe_params, render_table
 from holeshape.record import DesignCheck, RunInputs, RunRecord, SweepRecord
-from holeshape.search.constraints import requirement_value, sig, verdict
-from holeshape.stability import FACTOR_MEANING, SUPPORT_NOTES
 
 SECTIONS = ("The job", "Study inputs", "Recommendation", "Comparison", "Stress", "Stability", "Evidence of accuracy",
             "Validation appendix", "Search history", "Assumptions and cautions")
-
-
-
 JOB = ("This report records how a cutout in a thin loaded panel was chosen: the opening was searched for {aim} over "
        "every load case that still meets the study's requirements (access, area, ligament, radius, margin and "
        "buckling, as set), compared with the standard shapes a handbook would offer, and checked with a "
        "mesh-convergence estimate and against published solutions computed by the same pipeline.")
-AIMS = {"lowest_peak": "the lowest peak stress", "largest_opening": "the largest removed area",
-        "lightest_reinforcement": "the least reinforcement (by volume, hence mass)"}
-GOAL_LABELS = {"lowest_peak": "lowest peak stress within every constraint",
-               "largest_opening": "largest opening within every constraint",
-               "lightest_reinforcement": "least reinforcement that meets every requirement"}
-REINFORCEMENT_SECTION = "Reinforcement"
-REINFORCEMENT_IDEALISATION = {
-    "flange": "A formed flange standing on the whole cutout edge, fully effective, the bend radius not modelled: in "
-              "plane an edge member carrying hoop force (axial stiffness E A along the outline); out of plane a beam "
-              "along the edge with the flange's own bending stiffness E t h^3 / 12 (the web's share ignored, which "
-              "errs low) and its axial force in the geometric stiffness.",
-    "ring": "A doubler ring bonded over the web between the outline and its offset, perfectly bonded and of the web's "
-            "Poisson's ratio: in plane the region's membrane stiffness is the web's plus the doubler's; out of plane "
-            "the stack bends about its own neutral plane (one-sided doubler; the membrane-bending coupling is "
-            "neglected). The peak is looked for at the cutout edge and in the web at the ring's outer edge.",
-}
-
-CSS = """body{font-family:sans-serif;max-width:60em;margin:2em auto;color:#111;line-height:1.4}
-h1{font-size:1.6em}h2{font-size:1.25em;border-bottom:1px solid #888;margin-top:1.6em}
-table{border-collapse:collapse;margin:.6em 0}td,th{border:1px solid #999;padding:.25em .6em;text-align:left}
-th{background:#eee}img{max-width:100%;border:1px solid #ccc;margin:.4em 0}.warn{color:#a00;font-weight:bold}
-.caution{border:2px solid #333;padding:.6em 1em}.summary{border:2px solid #333;padding:.2em 1em;margin:1em 0}
-.pass{color:#060;font-weight:bold}@media print{h2{page-break-after:avoid}img{page-break-inside:avoid}}"""
-
-
-# marks every image once the page has loaded, so a headless browser's DOM dump shows whether each one decoded
-LOAD_CHECK = ("<script>window.addEventListener('load',function(){var n=0;document.querySelectorAll('img')"
-              ".forEach(function(i){var ok=i.complete&&i.naturalWidth>0;i.setAttribute('data-loaded',ok?'yes':'no');"
-              "if(ok){n++;}});document.body.setAttribute('data-images-loaded',String(n));});</script>")
-
-
-def fmt(key: str, v) -> str:
-    """One value for people, by what it is (the key's unit suffix): stresses to 0.1 MPa, percentages to 2
-    significant figures, lengths to 0.1 mm, areas to 1 mm^2, factors and Kt to 3 decimals."""
-    if v is None:
-        return "-"
-    if isinstance(v, bool):
-        return "yes" if v else "NO"
-    if isinstance(v, int):
-        return str(v)
-    if not isinstance(v, float):
-        return str(v)
-    if key.endswith("_pct") or key in ("error_pct", "tolerance_pct"):
-        return sig(v, 2)
-    if key.endswith("_mpa") or key in ("published", "holeshape", "youngs_modulus", "allowable_stress", "sigma_x",
-                                       "sigma_y", "tau_xy"):
-        return f"{v:.1f}"
-    if key.endswith("_mm2"):
-        return f"{v:.0f}"
-    if key.endswith("_mm") or key in ("width", "height", "thickness"):
-        return f"{v:.1f}"
-    if key in ("margin_of_safety",):
-        return f"{v:+.3f}"
-    if key in ("kt",) or "factor" in key or "reserve" in key:
-        return f"{v:.3f}"
-    return f"{v:.4g}"
-
-
-def _table(rows: list[dict], cols: list[tuple[str, str]], md: bool) -> str:
-    def cell_of(r, k):
-        return fmt(k, r.get(k))
-
-    if md:
-        head = "| " + " | ".join(t for _, t in cols) + " |\n|" + "---|" * len(cols) + "\n"
-        return head + "\n".join("| " + " | ".join(cell_of(r, k) for k, _ in cols) + " |" for r in rows) + "\n"
-    out = "<table><tr>" + "".join(f"<th>{html.escape(t)}</th>" for _, t in cols) + "</tr>"
-    for r in rows:
-        out += "<tr>" + "".join(f"<td>{html.escape(cell_of(r, k))}</td>" for k, _ in cols) + "</tr>"
-    return out + "</table>"
-
-
-LENGTH_KEYS = ("radius", "a", "b", "length", "width", "corner_radius", "radii", "center")
-
-
-def describe_params(params: dict) -> str:
-    """Shape parameters for people: lengths to 0.1 mm, angles to 0.1 degree, the exponent to 3 figures."""
-    def one(k, v):
-        if k.startswith("reinforcement."):
-            return f"{v:.1f} mm" if isinstance(v, float) and not k.endswith("youngs_modulus") else f"{v}"
-        if isinstance(v, list):
-            return "(" + ", ".join(one(k, x) for x in v) + ")"
-        if not isinstance(v, (int, float)) or isinstance(v, bool):
-            return str(v)
-        if k in ("rotation", "direction") or k.endswith((".rotation", ".direction")):
-            return f"{v:.1f} deg"
-        if k == "count":
-            return f"{int(v)}"
-        if k == "pitch":
-            return f"{v:.1f} mm"
-        if k == "exponent":
-            return f"{v:.2f}"
-        return f"{v:.1f} mm" if k in LENGTH_KEYS and k != "center" else f"{v:.1f}"
-    kind = params.get("reinforcement.kind")
-
-    def label(k):
-        if k.startswith("reinforcement."):
-            return f"{kind} {k.split('.', 1)[1].replace('_', ' ')}"
-        return k.replace("_", " ")
-    return ", ".join(f"{label(k)} {one(k, v)}" + (" mm" if k == "center" else "")
-                     for k, v in params.items() if k != "reinforcement.kind")
-
-
-def _describe_range(v) -> str:
-    if isinstance(v, dict):
-        out = f"searched from {v['min']:g} to {v['max']:g}"
-        return out + (f" (current design {v['value']:g})" if v.get("value") is not None else "")
-    return f"{v:g}" if isinstance(v, float) else str(v)
-
-
-def describe_constraints(cons: dict) -> list[dict]:
-    """The study's constraints as labelled rows (requirement, value with its unit)."""
-    rows = []
-    labels = {"min_area": ("removed area at least", "mm^2"), "max_area": ("removed area at most", "mm^2"),
-              "area": ("removed area exactly", "mm^2"), "clearance": ("clearance round the access envelope", "mm"),
-              "min_ligament": ("ligament to every panel edge at least", "mm"),
-              "min_radius": ("smallest radius of the outline at least", "mm"),
-              "min_margin": ("margin of safety at least", ""), "min_buckling_factor": ("buckling factor at least", ""),
-              "max_added_mass": ("added mass of the reinforcement at most", "kg"),
-              "max_reinforcement_area": ("reinforcement cross-section at most", "mm^2")}
-    acc = cons.get("access")
-    if acc:
-        where = ("centred on the cutout" if acc.get("center") is None
-                 else f"centred at ({acc['center'][0]:.1f}, {acc['center'][1]:.1f}) mm")
-        size = (f"circle of diameter {acc['diameter']:.1f} mm" if acc.get("diameter") is not None
-                else f"{acc['width']:.1f} x {acc['height']:.1f} mm rectangle")
-        rot = f", turned {acc['rotation']:.1f} deg" if acc.get("rotation") else ""
-        rows.append({"constraint": "access envelope the opening must contain", "value": f"{size}, {where}{rot}"})
-    for k, (label, unit) in labels.items():
-        v = cons.get(k)
-        if v is None or (k == "clearance" and not v):
-            continue
-        shown = f"{v:+.2f}" if k == "min_margin" else (f"{v:.0f}" if unit == "mm^2" else f"{v:g}")
-        rows.append({"constraint": label, "value": f"{shown} {unit}".strip()})
-    return rows
-
-
-def _summary_box(b: DesignCheck, rec: RunRecord, md: bool) -> str:
-    """The one-screen summary at the top: the verdict, the shape, peak, margin and buckling per case, the DXF."""
-    reqs = [asdict(r) for r in b.requirements]
-    failed = [r for r in reqs if not r["met"]]
-    if not reqs:
-        head = "No requirements were set beyond the geometry of the search."
-    elif failed:
-        head = (f"FAILS {len(failed)} of {len(reqs)} requirements: "
-                + "; ".join(verdict(reqs)["verdict_reasons"]))
-    else:
-        head = f"Meets every requirement of the study ({len(reqs)} checked at the {b.accuracy} level)."
-    rows = [{"name": c["name"], "peak_stress_mpa": c["peak_stress_mpa"], "margin_of_safety": c["margin_of_safety"],
-             "buckling_load_factor": c.get("buckling_load_factor"), "verdict": c.get("verdict", "-")}
-            for c in [c.to_dict() for c in b.load_cases]]
-    cols = [("name", "load case"), ("peak_stress_mpa", "peak (MPa)"), ("margin_of_safety", "margin of safety")]
-    if b.stability is not None:
-        cols.append(("buckling_load_factor", "buckling factor"))
-    cols.append(("verdict", "verdict"))
-    shape = f"{b.shape.replace('_', ' ')}: {describe_params(b.params)}"
-    goal = GOAL_LABELS.get(rec.goal, GOAL_LABELS["lowest_peak"])
-    lines = [f"Verdict: {head}", f"Shape ({goal}): {shape}; removed area {b.area_mm2:.0f} mm^2.",
-             f"Profile for CAD: {Path(b.dxf).name}."]
-    r = b.reinforcement
-    if r is not None:
-        mass = "" if r["added_mass_kg"] is None else f", {r['added_mass_kg']:.4f} kg added"
-        lines.insert(2, f"Reinforcement: {r['kind']} ({describe_sizes(r['sizes'])}; cross-section "
-                        f"{r['cross_section_mm2']:.1f} mm^2{mass}).")
-    if md:
-        return "\n" + "\n\n".join(f"**{t}**" if i == 0 else t for i, t in enumerate(lines)) + "\n\n" + \
-            _table(rows, cols, md)
-    cls = "warn" if failed else "pass"
-    return (f'<div class="summary"><p class="{cls}">{html.escape(lines[0])}</p>'
-            + "".join(f"<p>{html.escape(t)}</p>" for t in lines[1:]) + _table(rows, cols, md) + "</div>")
-
-
-class Page:
-    """The report being written: HTML or Markdown blocks in order, images embedded (HTML) or beside it (Markdown)."""
-
-    def __init__(self, run: Path, md: bool):
-        self.run, self.md, self.parts = run, md, []
-
-    def h2(self, t: str) -> None:
-        self.parts.append(f"\n## {t}\n" if self.md else
-                          f'<h2 id="{t.lower().replace(" ", "-")}">{html.escape(t)}</h2>')
-
-    def para(self, t: str, cls: str | None = None) -> None:
-        self.parts.append(f"\n{t}\n" if self.md else
-                          f"<p{f' class={chr(34)}{cls}{chr(34)}' if cls else ''}>{html.escape(t)}</p>")
-
-    def table(self, rows: list[dict], cols: list[tuple[str, str]]) -> None:
-        self.parts.append(_table(rows, cols, self.md))
-
-    def raw(self, block: str) -> None:
-        self.parts.append(block)
-
-    def img(self, name: str, alt: str) -> None:
-        p = self.run / name
-        if not p.exists():
-            return
-        if self.md:
-            self.parts.append(f"\n![{alt}]({name})\n")
-        else:
-            data = base64.b64encode(p.read_bytes()).decode()
-            self.parts.append(f'<img alt="{html.escape(alt)}" src="data:image/png;base64,{data}">')
-
-    def write(self, title: str, stem: str = "report") -> Path:
-        if self.md:
-            return atomic_write(self.run / f"{stem}.md", "\n".join(self.parts))
-        doc = (f"<!DOCTYPE html><html lang=\"en\"><head><meta charset=\"utf-8\"><title>{html.escape(title)}</title>"
-               f"<style>{CSS}</style></head><body>" + "\n".join(self.parts) + LOAD_CHECK + "</body></html>\n")
-        return atomic_write(self.run / f"{stem}.html", doc)
+STRESS_MEASURES = {"von_mises": "von Mises stress on the cutout edge (on a free edge it equals the hoop stress in"
+                                " magnitude)",
+                   "max_principal": "largest principal stress on the cutout edge",
+                   "hoop": "magnitude of the hoop (tangential) stress on the cutout edge"}
 
 
 def build_report(run_dir: str | Path, fmt: str = "html") -> Path:
-    """report.html (or report.md) of a finished run, from its stored record only: the sections of SECTIONS."""
+    """report.html (or report.md) of a finished run, from its stored record only: the sections of SECTIONS, with
+    the checks' own sections between Stress and the evidence."""
     run = Path(run_dir)
     if (run / "sweep.json").exists() and not (run / "summary.json").exists():
         return build_sweep_report(run, fmt)
@@ -250,42 +43,133 @@ def build_report(run_dir: str | Path, fmt: str = "html") -> Path:
     validation = json.loads((run / "validation.json").read_text()) if (run / "validation.json").exists() else []
     page = Page(run, fmt == "markdown")
     title = inputs.title
+    goal = GOALS.get(rec.goal, GOALS["lowest_peak"])
     page.raw(f"# {title}: cutout design report\n" if page.md else
              f"<h1>{html.escape(title)}: cutout design report</h1>")
     page.para(f"holeshape {rec.holeshape_version}; run folder {run}; generated from the stored results of the "
               f"run finished {inputs.finished}.")
-    page.raw(_summary_box(rec.best, rec, page.md))
+    page.raw(_summary_box(rec, page.md))
     page.h2(SECTIONS[0])
-    page.para(JOB.format(aim=AIMS.get(rec.goal, AIMS["lowest_peak"])))
-    section_inputs(page, inputs)
-    section_recommendation(page, rec.best)
-    section_reinforcement(page, rec.best)
+    page.para(JOB.format(aim=goal.aim))
+    section_inputs(page, inputs, rec)
+    b = rec.best
+    if b is None:
+        section_no_design(page, rec)
+    else:
+        section_recommendation(page, b)
     section_comparison(page, rec)
     page.h2(SECTIONS[4])
+    if b is None:
+        page.para("No design is recommended, so no stress field is shown; the nearest misses above give their"
+                  " values against each limit.")
     page.img("best_stress_field.png", "stress field of the recommended design, governing load case")
     page.img("best_boundary_stress.png", "stress along the cutout edge, every load case, allowable drawn in")
-    section_stability(page, rec.best.stability)
-    section_evidence(page, rec.best)
+    if b is not None:
+        section_bare_opening(page, b)
+        for s in b.sections:
+            page.section(s)
+    else:
+        page.h2(SECTIONS[5])
+        page.para("Assessed on every trial of the search that reached the solve; see the reasons above.")
+    section_evidence(page, b)
     section_validation(page, validation)
     page.h2(SECTIONS[8])
     page.img("search_history.png", "search history, best so far against trial")
     page.img("search_outlines.png", "outline of each new best design (free-form search), overlaid about the centre")
     page.img("trade_off_front.png", "trade-off front, removed area against peak stress")
     page.para(f"{rec.trials.completed} trials completed ({rec.trials.infeasible} infeasible"
-              f"{rec.trials.probe_note}), "
-              f"{rec.trials.failed} failed; storage {rec.storage}.")
+              f"{rec.trials.probe_note}), {rec.trials.failed} failed; storage {rec.storage}.")
     section_cautions(page, inputs, rec.cautions)
     return page.write(title)
 
 
-def section_inputs(page: Page, inputs: RunInputs) -> None:
+def _summary_box(rec: RunRecord, md: bool) -> str:
+    """The one-screen summary at the top: the verdict, the shape and why, peak, margin and buckling per case, the
+    DXF; or, for a run with no answer, that there is none and the most frequent reason."""
+    b = rec.best
+    goal = GOALS.get(rec.goal, GOALS["lowest_peak"])
+    if b is None:
+        lines = ["Verdict: NO DESIGN meets every requirement at the fine level: nothing is recommended (exit code 5).",
+                 rec.choice[0].upper() + rec.choice[1:] + "." if rec.choice else ""]
+        if rec.trial_reasons:
+            g = rec.trial_reasons[0]
+            lines.append(f"Most frequent reason: {g['requirement']} ({g['trials']} trials).")
+        if rec.advice:
+            lines.append("What to change: " + "; ".join(rec.advice) + ".")
+        rows, cols = [], []
+    else:
+        reqs = b.requirements
+        failed = [r for r in reqs if not r.met]
+        head = (f"FAILS {len(failed)} of {len(reqs)} requirements: " + "; ".join(r.reason or r.label for r in failed)
+                if failed else f"Meets every requirement of the study ({len(reqs)} checked at the {b.accuracy}"
+                " level).")
+        rows = [{"name": c.name, "peak_stress_mpa": c.peak_stress_mpa, "margin_of_safety": c.margin_of_safety,
+                 "buckling_load_factor": c.buckling_load_factor, "verdict": c.verdict} for c in b.load_cases]
+        cols = [("name", "load case"), ("peak_stress_mpa", "peak (MPa)"), ("margin_of_safety", "margin of safety")]
+        if b.stability is not None:
+            cols.append(("buckling_load_factor", "buckling factor"))
+        cols.append(("verdict", "verdict"))
+        lines = [f"Verdict: {head}", f"Shape ({goal.label}): {b.shape.replace('_', ' ')}: {describe_params(b.params)};"
+                 f" removed area {b.area_mm2:.0f} mm^2."]
+        if rec.choice:
+            lines.append("Why: " + rec.choice + ".")
+        if b.moved is not None:
+            lines.append("Moved to pass: " + b.moved["note"] + ".")
+        r = b.reinforcement
+        if r is not None:
+            mass = "" if r["added_mass_kg"] is None else f", {r['added_mass_kg']:.4f} kg added"
+            lines.append(f"Reinforcement: {r['kind']} ({_sizes(r['sizes'])}; cross-section "
+                         f"{r['cross_section_mm2']:.1f} mm^2{mass}).")
+        lines.append(f"Profile for CAD: {Path(b.dxf).name}.")
+        failed = [r for r in reqs if not r.met]
+    lines = [t for t in lines if t]
+    warn = b is None or bool([r for r in b.requirements if not r.met])
+    if md:
+        return "\n" + "\n\n".join(f"**{t}**" if i == 0 else t for i, t in enumerate(lines)) + "\n\n" + \
+            (render_table(rows, cols, md) if rows else "")
+    return (f'<div class="summary"><p class="{"warn" if warn else "pass"}">{html.escape(lines[0])}</p>'
+            + "".join(f"<p>{html.escape(t)}</p>" for t in lines[1:]) + (render_table(rows, cols, md) if rows else "")
+            + "</div>")
+
+
+def _sizes(sizes: dict) -> str:
+    return ", ".join(f"{k.replace('_', ' ')} {v:g} MPa" if k == "youngs_modulus" else f"{k} {v:.1f} mm"
+                     for k, v in sizes.items())
+
+
+def load_case_rows(cases) -> tuple[list[dict], list[tuple[str, str]]]:
+    """The load-case table: remote stresses for remote-stress cases, beam forces (N, N mm) for beam cases; a value
+    that does not belong to the case's kind is left blank rather than shown as zero."""
+    beam = any(c.get("shear_force") is not None or c.get("bending_moment") is not None for c in cases)
+    rows = []
+    for c in cases:
+        is_beam = c.get("shear_force") is not None or c.get("bending_moment") is not None
+        row = {"name": c["name"]}
+        if is_beam:
+            row.update(shear_force=c.get("shear_force"), bending_moment=c.get("bending_moment"),
+                       kind="beam forces (shear force, bending moment at the panel's x-centre)")
+        else:
+            row.update(sigma_x=c["sigma_x"], sigma_y=c["sigma_y"], tau_xy=c["tau_xy"], kind="remote stresses")
+        rows.append(row)
+    cols = [("name", "load case"), ("kind", "given as"), ("sigma_x", "sigma_x (MPa)"), ("sigma_y", "sigma_y (MPa)"),
+            ("tau_xy", "tau_xy (MPa)")]
+    if beam:
+        cols += [("shear_force", "shear force V (N)"), ("bending_moment", "bending moment M (N mm)")]
+    return rows, cols
+
+
+def section_inputs(page: Page, inputs: RunInputs, rec: RunRecord | None = None) -> None:
+    """Everything the run was given: panel, material, loads, requirements, the searched parameters and how."""
     page.h2(SECTIONS[1])
     page.table([inputs.panel], [("width", "width (mm)"), ("height", "height (mm)"), ("thickness", "thickness (mm)"),
-                                ("edges", "edge condition")])
-    page.table([inputs.material], [("name", "material"), ("youngs_modulus", "E (MPa)"),
-                                   ("poisson_ratio", "Poisson's ratio"), ("allowable_stress", "allowable (MPa)")])
-    page.table(list(inputs.load_cases), load_case_columns(inputs.load_cases))
-    if any(c.get("shear_force") is not None or c.get("bending_moment") is not None for c in inputs.load_cases):
+                                ("edges", "in-plane edge condition")])
+    m = inputs.material
+    page.table([m], [("name", "material"), ("youngs_modulus", "E (MPa)"), ("poisson_ratio", "Poisson's ratio"),
+                     ("allowable_stress", "allowable (MPa)"), ("net_section_allowable", "net-section allowable (MPa)"),
+                     ("density", "density (kg/m^3)")])
+    rows, cols = load_case_rows(inputs.load_cases)
+    page.table(rows, cols)
+    if any(r.get("shear_force") is not None for r in rows):
         p = inputs.panel
         page.para(f"Beam load cases: the web belongs to a beam section of second moment of area "
                   f"{p.get('section_inertia'):.6g} mm^4 about a neutral axis at y = "
@@ -295,18 +179,50 @@ def section_inputs(page: Page, inputs: RunInputs) -> None:
     cons = describe_constraints(inputs.constraints)
     if cons:
         page.table(cons, [("constraint", "requirement"), ("value", "value")])
-    if inputs.search.get("goal") == "largest_opening":
-        page.para("Goal: the largest removed area that meets every constraint (a weight-reduction study).")
-    if inputs.search.get("goal") == "lightest_reinforcement":
-        page.para("Goal: the least reinforcement (by volume, hence mass) that meets every requirement.")
+    section_search(page, inputs, rec)
     if inputs.reinforcement:
-        page.table([{"key": k, "value": _describe_range(v)} for k, v in inputs.reinforcement.items()],
+        from holeshape.output.page import describe_value
+
+        page.table([{"key": k, "value": describe_value(v)} for k, v in inputs.reinforcement.items()],
                    [("key", "reinforcement"), ("value", "value (mm, MPa)")])
     stab_in = inputs.stability
     if stab_in:
         page.table([{**stab_in, "edge_support": stab_in["edge_support"].replace("_", " ")}],
                    [("edge_support", "buckling: panel edge support"), ("required_factor", "required buckling factor"),
                     ("modes", "mode shapes plotted")])
+    for w in inputs.warnings:
+        page.para("WARNING: " + w, "warn")
+
+
+def section_search(page: Page, inputs: RunInputs, rec: RunRecord | None) -> None:
+    """The searched family and every parameter (fixed or its range), the budget, seed, method, stress measure and
+    the Kt definition: what a checker needs to repeat the run."""
+    s = inputs.search
+    goal = GOALS.get(s.get("goal", "lowest_peak"), GOALS["lowest_peak"])
+    fam = (inputs.shape or "").replace("_", " ")
+    method = s.get("method_used", s.get("method", "auto"))
+    share = "" if method == "gradient" else f", global sampler share {s.get('global_fraction', 0.25):g}"
+    page.para(f"Searched family: {fam or 'as given'}; goal: {goal.label}. Budget {s.get('trials')} evaluations"
+              f" (seed {s.get('seed')}; method {method}{share}); trials screened at the"
+              f" {rec.search_accuracy if rec else 'draft'} level, the recommendation and the comparison checked at the"
+              " fine level.")
+    if inputs.cutout:
+        rows = []
+        for r in inputs.cutout:
+            unit = f" {r['unit']}" if r.get("unit") else ""
+            if r.get("searched"):
+                v = f"from {r['min']:g} to {r['max']:g}{unit}" + ("" if r.get("value") is None else
+                                                                   f" (current design {r['value']:g}{unit})")
+            else:
+                v = f"{r['value']:g}{unit}" if isinstance(r["value"], (int, float)) else str(r["value"])
+            rows.append({"parameter": r["parameter"], "how": "searched" if r.get("searched") else "fixed",
+                         "value": v})
+        page.table(rows, [("parameter", "design parameter"), ("how", ""), ("value", "value or range")])
+    measure = inputs.measure.get("stress", "von_mises")
+    kt_ref = (rec.best.kt_reference if rec is not None and rec.best is not None else None)
+    page.para(f"Stress measure: {STRESS_MEASURES.get(measure, measure)}. Kt = the peak of that measure over the"
+              f" cutout edge divided by the reference stress"
+              + (f" ({kt_ref})" if kt_ref else "") + ". Margin of safety = allowable / peak - 1.")
 
 
 def section_recommendation(page: Page, b: DesignCheck) -> None:
@@ -318,145 +234,168 @@ def section_recommendation(page: Page, b: DesignCheck) -> None:
               + f"; removed area {b.area_mm2:.0f} mm^2"
               + (f" ({b.mass_saved_kg:.3f} kg saved)" if b.mass_saved_kg is not None else "")
               + f"; profile {Path(b.dxf).name}.")
-    ligs = [{"edge": k, "ligament_mm": v} for k, v in b.ligaments_mm.items()]
-    if ligs:
-        page.table(ligs, [("edge", "panel edge"), ("ligament_mm", "ligament from the opening (mm)")])
+    if b.moved is not None:
+        page.para("Moved back along the goal to pass at the fine level: " + b.moved["note"] + ".")
     page.table([c.to_dict() for c in b.load_cases], [
         ("name", "load case"), ("peak_stress_mpa", "peak (MPa)"), ("kt", "Kt"), ("x_mm", "x (mm)"),
-        ("y_mm", "y (mm)"), ("margin_of_safety", "margin of safety")])
+        ("y_mm", "y (mm)"), ("margin_of_safety", "margin of safety"),
+        ("net_section_equivalent_mpa", "net section, equivalent (MPa)")])
     per_opening = [{"name": c.name, **loc} for c in b.load_cases for loc in c.locations
                    if loc["location"].startswith("opening")]
     if per_opening:
         page.para("Every opening, every load case (the peak of each opening's edge, with its mesh error estimate):")
         page.table(per_opening, [("name", "load case"), ("location", "opening"), ("peak_stress_mpa", "peak (MPa)"),
                                  ("x_mm", "x (mm)"), ("y_mm", "y (mm)"), ("error_estimate_pct", "error estimate (%)")])
-    reqs = [asdict(r) for r in b.requirements]
-    if reqs:
-        failed = [r for r in reqs if not r["met"]]
-        if failed:
-            v = verdict(reqs)
-            page.para(f"The recommended design FAILS {len(failed)} of {len(reqs)} requirements of the study: "
-                      + "; ".join(v["verdict_reasons"]) + ". It is the best the search found, not a design that"
-                      " passes. What can change: " + "; ".join(v["advice"]) + ".", "warn")
-        else:
-            page.para(f"The recommended design meets every requirement of the study ({len(reqs)} checked at the "
-                      f"{b.accuracy} level).")
-        page.table([{**r, "value": requirement_value(r), "met": "yes" if r["met"] else "NO"} for r in reqs],
-                   [("requirement", "requirement"), ("value", "design"), ("limit", "required"), ("met", "met")])
+    section_requirements(page, b)
     for w in b.warnings:
         page.para("WARNING: " + w, "warn")
     page.img("best_shape.png", "recommended profile in the panel with the access envelope and the standard shapes")
 
 
-def load_case_columns(cases) -> list[tuple[str, str]]:
-    """The load-case table's columns: remote stresses, and beam forces where a case gives them."""
-    cols = [("name", "load case"), ("sigma_x", "sigma_x (MPa)"), ("sigma_y", "sigma_y (MPa)"),
-            ("tau_xy", "tau_xy (MPa)")]
-    if any(c.get("shear_force") is not None or c.get("bending_moment") is not None for c in cases):
-        cols += [("shear_force", "shear force (N)"), ("bending_moment", "bending moment (N mm)")]
-    return cols
-
-
-def describe_sizes(sizes: dict) -> str:
-    return ", ".join(f"{k.replace('_', ' ')} {v:g} MPa" if k == "youngs_modulus" else f"{k} {v:.1f} mm"
-                     for k, v in sizes.items())
-
-
-def section_reinforcement(page: Page, b: DesignCheck) -> None:
-    """What reinforces the opening, what it weighs, where its peaks are, and the same outline without it."""
-    r = b.reinforcement
-    if r is None:
+def section_requirements(page: Page, b: DesignCheck) -> None:
+    reqs = list(b.requirements)
+    if not reqs:
         return
-    page.h2(REINFORCEMENT_SECTION)
-    page.para(REINFORCEMENT_IDEALISATION[r["kind"]])
-    page.table([{"kind": r["kind"], "sizes": describe_sizes(r["sizes"]), "cross_section_mm2": r["cross_section_mm2"],
-                 "ring_area_mm2": r["ring_area_mm2"] if r["kind"] == "ring" else None,
-                 "added_mass_kg": None if r["added_mass_kg"] is None else f"{r['added_mass_kg']:.4f}"}],
-               [("kind", "reinforcement"), ("sizes", "sizes"), ("cross_section_mm2", "cross-section (mm^2)"),
-                ("ring_area_mm2", "ring area over the web (mm^2)"), ("added_mass_kg", "added mass (kg)")])
-    page.table([{"location": k, "peak_stress_mpa": v} for k, v in r["peak_stress_mpa"].items()],
-               [("location", "where"), ("peak_stress_mpa", "largest peak over the load cases (MPa)")])
-    bare = r.get("bare_opening")
-    if bare is not None:
-        rows = [{"design": "with the reinforcement", "peak_stress_mpa": b.peak_stress_mpa,
-                 "margin_of_safety": b.margin_of_safety, "buckling_load_factor": b.buckling_load_factor,
-                 "verdict": "meets every requirement" if b.meets_every_requirement else "FAILS"},
-                {"design": "the same outline bare", "peak_stress_mpa": bare["peak_stress_mpa"],
-                 "margin_of_safety": bare["margin_of_safety"], "buckling_load_factor": bare["buckling_load_factor"],
-                 "verdict": "meets every requirement" if bare["verdict"] == "pass" else
-                 "FAILS: " + "; ".join(bare["verdict_reasons"])}]
-        cols = [("design", "opening"), ("peak_stress_mpa", "peak (MPa)"), ("margin_of_safety", "lowest margin")]
-        if b.stability is not None:
-            cols.append(("buckling_load_factor", "buckling factor"))
-        cols.append(("verdict", "verdict"))
-        page.table(rows, cols)
+    failed = [r for r in reqs if not r.met]
+    if failed:
+        v = b.verdict()
+        page.para(f"The design FAILS {len(failed)} of {len(reqs)} requirements of the study: "
+                  + "; ".join(v["verdict_reasons"]) + ". What can change: " + "; ".join(v["advice"]) + ".", "warn")
+    else:
+        page.para(f"The recommended design meets every requirement of the study ({len(reqs)} checked at the "
+                  f"{b.accuracy} level).")
+    page.table([{"requirement": r.label, "value": requirement_value(r), "limit": limit_value(r),
+                 "met": "yes" if r.met else "NO"} for r in reqs if r.listed or not r.met],
+               [("requirement", "requirement"), ("value", "design"), ("limit", "required"), ("met", "met")])
+
+
+def section_no_design(page: Page, rec: RunRecord) -> None:
+    """In place of a recommendation: why there is none, by count, the nearest misses, what to change."""
+    page.h2(SECTIONS[2])
+    page.para("No design is recommended: nothing the search found, and none of the standard shapes, meets every"
+              " requirement at the fine level. " + (rec.choice[0].upper() + rec.choice[1:] + "." if rec.choice else ""),
+              "warn")
+    if rec.trial_reasons:
+        rows = []
+        for g in rec.trial_reasons:
+            if "failure" in g:
+                rows.append({"reason": f"the numerics gave up ({g['failure']})", "trials": g["trials"]})
+                continue
+            rng = ""
+            if "lowest" in g:
+                lo, hi = _value(g, g["lowest"]), _value(g, g["highest"])
+                rng = lo if lo == hi else f"{lo} to {hi}"
+            rows.append({"reason": g["requirement"], "trials": g["trials"], "values": rng,
+                         "limit": f"{g.get('relation', '')} {_value(g, g.get('limit'))}".strip()})
+        page.para("Designs refused, by the requirement they missed (the search's draft level):")
+        page.table(rows, [("reason", "requirement missed"), ("trials", "trials"), ("values", "values found"),
+                          ("limit", "required")])
+    if rec.nearest_misses:
+        page.para("The nearest misses (least summed shortfall), each with every requirement it misses:")
+        rows = []
+        for m in rec.nearest_misses:
+            who = "standard shape" if m.get("trial") is None else f"trial {m['trial']}"
+            for r in m["missed"]:
+                rows.append({"design": f"{who} ({m.get('level', 'draft')})", "params": describe_params(
+                    {k: v for k, v in m["params"].items() if not isinstance(v, str)}),
+                    "missed": r["label"], "value": _value(r, r.get("value")),
+                    "limit": "" if r.get("limit") is None else f"{r['relation']} {_value(r, r['limit'])}"})
+        page.table(rows, [("design", "design (level)"), ("params", "parameters"), ("missed", "misses"),
+                          ("value", "value"), ("limit", "required")])
+    if rec.advice:
+        page.para("What to change: " + "; ".join(rec.advice) + ".")
+
+
+def _value(r: dict, v) -> str:
+    if v is None:
+        return "-"
+    kind, unit = r.get("kind", ""), r.get("unit", "")
+    if kind == "margin":
+        return f"{v:+.3f}"
+    if kind == "buckling":
+        return f"{v:.3f}"
+    return f"{v:.4g}{(' ' + unit) if unit else ''}"
+
+
+def section_bare_opening(page: Page, b: DesignCheck) -> None:
+    """A reinforced recommendation beside the same outline checked bare: what the reinforcement buys."""
+    r = b.reinforcement
+    bare = None if r is None else r.get("bare_opening")
+    if bare is None:
+        return
+    page.h2("Reinforcement against the bare opening")
+    rows = [{"design": "with the reinforcement", "peak_stress_mpa": b.peak_stress_mpa,
+             "margin_of_safety": b.margin_of_safety, "buckling_load_factor": b.buckling_load_factor,
+             "verdict": "meets every requirement" if b.meets_every_requirement else "FAILS"},
+            {"design": "the same outline bare", "peak_stress_mpa": bare["peak_stress_mpa"],
+             "margin_of_safety": bare["margin_of_safety"], "buckling_load_factor": bare["buckling_load_factor"],
+             "verdict": "meets every requirement" if bare["verdict"] == "pass" else
+             "FAILS: " + "; ".join(bare["verdict_reasons"])}]
+    cols = [("design", "opening"), ("peak_stress_mpa", "peak (MPa)"), ("margin_of_safety", "lowest margin")]
+    if b.stability is not None:
+        cols.append(("buckling_load_factor", "buckling factor"))
+    cols.append(("verdict", "verdict"))
+    page.table(rows, cols)
 
 
 def section_comparison(page: Page, rec: RunRecord) -> None:
-    b = rec.best
+    """The recommendation, the searched family's best and the standard shapes at the fine level, each with its
+    verdict and how the recommendation compares, the direction in words."""
     page.h2(SECTIONS[3])
-    rows = [{"shape": "recommended " + b.shape, "peak_stress_mpa": b.peak_stress_mpa, "kt": b.kt,
-             "area_mm2": b.area_mm2, "buckling_load_factor": b.buckling_load_factor, "note": ""}]
+    goal = GOALS.get(rec.goal, GOALS["lowest_peak"])
+    b = rec.best
+    mine = None if b is None else {"peak_stress_mpa": b.peak_stress_mpa, "area_mm2": b.area_mm2,
+                                   "reinforcement": b.reinforcement}
+    rows = []
+    if b is not None:
+        rows.append({"shape": f"recommended: {b.shape.replace('_', ' ')}", "peak_stress_mpa": b.peak_stress_mpa,
+                     "kt": b.kt, "area_mm2": b.area_mm2, "buckling_load_factor": b.buckling_load_factor,
+                     "added_mass_kg": (b.reinforcement or {}).get("added_mass_kg"), "verdict": "meets every"
+                     " requirement" if b.meets_every_requirement else "FAILS", "note": ""})
+    fam = rec.family_best
+    if fam is not None and not fam.get("recommended"):
+        rows.append({"shape": f"searched {fam['shape'].replace('_', ' ')} best (trial {fam['trial']})",
+                     "peak_stress_mpa": fam["peak_stress_mpa"], "kt": fam["kt"], "area_mm2": fam["area_mm2"],
+                     "buckling_load_factor": fam.get("buckling_load_factor"),
+                     "added_mass_kg": (fam.get("reinforcement") or {}).get("added_mass_kg"),
+                     "verdict": "meets every requirement" if fam["meets_every_requirement"] else
+                     "FAILS: " + "; ".join(fam["verdict_reasons"]),
+                     "note": "" if mine is None else f"the recommended design has {goal.better(mine, fam)} it"})
     for r in rec.baselines:
-        imp = rec.improvement_over_baselines_pct.get(r.shape)
-        rows.append({"shape": r.shape, "peak_stress_mpa": r.peak_stress_mpa, "kt": r.kt, "area_mm2": r.area_mm2,
-                     "buckling_load_factor": r.buckling_load_factor,
-                     "note": f"recommended is {imp:+.1f} % lower" if imp is not None else (r.reason or "")})
-    cols = [("shape", "design"), ("peak_stress_mpa", "peak (MPa)"), ("kt", "Kt"), ("area_mm2", "area (mm^2)"),
-            ("note", "")]
-    if b.stability is not None:
-        cols.insert(4, ("buckling_load_factor", "buckling factor"))
+        other = {"peak_stress_mpa": r.peak_stress_mpa, "area_mm2": r.area_mm2,
+                 "reinforcement": None if r.added_volume_mm3 is None else {"added_volume_mm3": r.added_volume_mm3}}
+        note = "" if mine is None or r.peak_stress_mpa is None else \
+            f"the recommended design has {goal.better(mine, other)} it"
+        rows.append({"shape": f"standard {r.shape.replace('_', ' ')}", "peak_stress_mpa": r.peak_stress_mpa,
+                     "kt": r.kt, "area_mm2": r.area_mm2, "buckling_load_factor": r.buckling_load_factor,
+                     "added_mass_kg": r.added_mass_kg,
+                     "verdict": "meets every requirement" if r.feasible else f"FAILS: {r.reason}", "note": note})
+    cols = [("shape", "design"), ("peak_stress_mpa", "peak (MPa)"), ("kt", "Kt"), ("area_mm2", "area (mm^2)")]
+    if any(r.get("buckling_load_factor") is not None for r in rows):
+        cols.append(("buckling_load_factor", "buckling factor"))
+    if any(r.get("added_mass_kg") is not None for r in rows):
+        cols.append(("added_mass_kg", "reinforcement mass (kg)"))
+    cols += [("verdict", "verdict"), ("note", "")]
+    if rec.choice:
+        page.para(rec.choice[0].upper() + rec.choice[1:] + ".")
     page.table(rows, cols)
     if rec.comparison:
         page.para("Best design of every shape family, same constraints and load cases, fine level:")
         page.table(list(rec.comparison), [
             ("rank", "rank"), ("shape", "family"), ("peak_stress_mpa", "peak (MPa)"), ("kt", "Kt"),
             ("area_mm2", "area (mm^2)"), ("buckling_load_factor", "buckling factor"),
-            ("governing_load_case", "governing load case"),
-            ("improvement_over_circle_pct", "improvement over circle (%)"), ("reason", "note")])
+            ("governing_load_case", "governing load case"), ("against_circle", "against the best circle"),
+            ("reason", "note")])
         page.img("compare_shapes.png", "best outline of every family, overlaid")
 
 
-def section_stability(page: Page, st: dict | None) -> None:
-    page.h2(SECTIONS[5])
-    if st is None:
-        page.para("Not assessed: the study has no [stability] table, so whether the web buckles under these loads is "
-                  "not checked here. In a thin web the opening often governs through buckling before the peak stress "
-                  "reaches the allowable: add [stability] to the study to check it.", "warn")
-        return
-    edges_ip = st["in_plane_edges"]
-    page.para(f"Linear (eigenvalue) buckling of the panel with its cutout: Kirchhoff plate of the panel's thickness "
-              f"under the plane-stress prestress of each load case; panel edges {SUPPORT_NOTES[st['edge_support']]}, "
-              f"cutout edge {st.get('cutout_edge', 'free')}; in-plane edges '{edges_ip}': {FACTOR_MEANING[edges_ip]}."
-              " Required factor "
-              f"{st['required_factor']:g}.")
-    rows = []
-    for c in st["cases"]:
-        f, fu = c["load_factor"], c["unperforated_factor"]
-        cost = None if f is None or fu is None else 100 * (1 - f / fu)
-        rows.append({"name": c["name"], "factor": factor_text(f), "reserve": c["reserve"],
-                     "estimate_pct": c["error_estimate_pct"], "plain": factor_text(fu),
-                     "cost": None if cost is None else f"{cost:.0f} %",
-                     "levels": ", ".join(factor_text(x) for x in c["level_factors"])})
-    page.table(rows, [("name", "load case"), ("factor", "buckling load factor"),
-                      ("reserve", "reserve (factor / required)"), ("estimate_pct", "error estimate (%)"),
-                      ("plain", "without the cutout"), ("cost", "lost to the opening"),
-                      ("levels", "factor per plate mesh (coarse to fine)")])
-    gov = st.get("buckling_governing_load_case")
-    if gov is None:
-        page.para("No load case buckles the web below the factor ceiling (no compression to buckle it).")
-    else:
-        meets = st["meets_required_factor"]
-        page.para(f"Lowest buckling load factor {st['buckling_load_factor']:.3f} ({gov}): "
-                  f"{'meets' if meets else 'DOES NOT meet'} the required {st['required_factor']:g}. Reported factors "
-                  f"are Richardson extrapolations of the two finest plate meshes (Morley elements, "
-                  f"{', '.join(str(n) for n in st['level_dofs'])} DOFs); the estimate is the whole extrapolation "
-                  "step plus a measured floor.", None if meets else "warn")
-    page.img("best_buckling_mode.png", "buckling mode shape of the governing load case")
-
-
-def section_evidence(page: Page, b: DesignCheck) -> None:
+def section_evidence(page: Page, b: DesignCheck | None) -> None:
     page.h2(SECTIONS[6])
+    if b is None:
+        page.para("No design is recommended, so there is no convergence evidence to show.")
+        return
+    from dataclasses import asdict
+
     page.table([asdict(x) for x in b.levels], [
         ("accuracy", "accuracy level"), ("dofs", "DOFs"), ("peak_stress_mpa", "peak (MPa)"),
         ("change_pct", "change from finest (%)"), ("error_estimate_pct", "error estimate (%)")])
@@ -466,9 +405,10 @@ def section_evidence(page: Page, b: DesignCheck) -> None:
 
 def section_validation(page: Page, validation: list[dict]) -> None:
     page.h2(SECTIONS[7])
-    page.para("The same pipeline at the same accuracy level on published reference cases:")
-    page.table(validation, [("case", "case"), ("source", "source"), ("published", "published (MPa)"),
-                            ("holeshape", "holeshape (MPa)"), ("error_pct", "error (%)"),
+    page.para("The same pipeline at the same accuracy level on published reference cases (peak stresses in MPa;"
+              " buckling cases as load factors):")
+    page.table(validation, [("case", "case"), ("source", "source"), ("published", "published"),
+                            ("holeshape", "holeshape"), ("error_pct", "error (%)"),
                             ("tolerance_pct", "tolerance (%)"), ("within", "within")])
 
 
@@ -477,8 +417,9 @@ def section_cautions(page: Page, inputs: RunInputs, cautions_text: str) -> None:
     edges = inputs.panel["edges"]
     meaning = ("remote stress applied as edge tractions: a large panel free to redistribute load" if edges == "traction"
                else "remote strain imposed on the edges: a web bounded by stiff members")
-    page.para(f"Isotropic material, uniform remote stresses per load case; in-plane edge condition '{edges}' "
-              f"({meaning}).")
+    page.para(f"Isotropic material, load cases as remote stresses or beam forces; in-plane edge condition '{edges}' "
+              f"({meaning}). The reported peak stress is the largest over every place it is looked for: with a"
+              " reinforcement that includes the flange's or the doubler's own stress, which may govern.")
     page.para(cautions_text, "caution")
 
 
@@ -486,7 +427,8 @@ SWEEP_SECTIONS = ("The job", "Study inputs", "Sweep", "Validation appendix", "As
 
 
 def build_sweep_report(run: Path, fmt: str = "html") -> Path:
-    """Report of a parameter sweep: inputs, the curves or map, every point, the validation appendix, cautions."""
+    """Report of a parameter sweep: inputs (panel, material, loads, requirements, every fixed and varied
+    parameter), the curves or map, every point, the validation appendix, cautions."""
     from holeshape import cautions
 
     sweep = SweepRecord.from_dict(json.loads((run / "sweep.json").read_text()))
@@ -497,18 +439,31 @@ def build_sweep_report(run: Path, fmt: str = "html") -> Path:
     page.raw(f"# {title}: parameter sweep\n" if page.md else f"<h1>{html.escape(title)}: parameter sweep</h1>")
     page.h2(SWEEP_SECTIONS[0])
     page.para("A classic parameter study of the cutout: every point is a verified evaluation (two mesh levels, error "
-              f"estimate) at the {sweep.accuracy} level, for every load case; points that break a constraint are"
-              " kept and marked.")
+              f"estimate) at the {sweep.accuracy} level, for every load case, checked against every requirement;"
+              " points that break one are kept and marked.")
     page.h2(SWEEP_SECTIONS[1])
     page.table([inputs.panel], [("width", "width (mm)"), ("height", "height (mm)"), ("thickness", "thickness (mm)"),
                                 ("edges", "edge condition")])
-    page.table(list(inputs.load_cases), load_case_columns(inputs.load_cases))
+    page.table([inputs.material], [("name", "material"), ("youngs_modulus", "E (MPa)"),
+                                   ("poisson_ratio", "Poisson's ratio"), ("allowable_stress", "allowable (MPa)"),
+                                   ("density", "density (kg/m^3)")])
+    rows, cols = load_case_rows(inputs.load_cases)
+    page.table(rows, cols)
+    cons = describe_constraints(inputs.constraints)
+    if cons:
+        page.table(cons, [("constraint", "requirement"), ("value", "value")])
+    varied = {v["name"] for v in sweep.vary}
+    page.table([{"parameter": r["parameter"], "value": f"varied from {v['lo']:g} to {v['hi']:g} in {v['n']} steps"
+                 if r["parameter"] in varied else (f"{r['value']:g} {r.get('unit', '')}".strip()
+                                                   if isinstance(r["value"], (int, float)) else str(r["value"]))}
+                for r in inputs.cutout for v in [next((x for x in sweep.vary if x["name"] == r["parameter"]), {})]],
+               [("parameter", "design parameter"), ("value", "fixed value or sweep")])
     page.h2(SWEEP_SECTIONS[2])
     page.img("sweep.png", "the swept quantities against the varied parameters")
     rows = [{"point": ", ".join(f"{k} = {v:.4g}" for k, v in pt["coords"].items()), **pt} for pt in sweep.points]
     cols = [("point", "parameters"), ("peak_stress_mpa", "peak (MPa)"), ("kt", "Kt"),
-            ("area_mm2", "area (mm^2)"), ("error_estimate_pct", "error estimate (%)"),
-            ("feasible", "meets constraints"), ("reason", "note")]
+            ("area_mm2", "area (mm^2)"), ("margin_of_safety", "lowest margin"),
+            ("error_estimate_pct", "error estimate (%)"), ("feasible", "meets every requirement"), ("reason", "note")]
     if any("buckling_load_factor" in r for r in rows):
         cols.insert(3, ("buckling_load_factor", "buckling load factor"))
     page.table(rows, cols)

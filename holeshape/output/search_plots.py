@@ -12,19 +12,20 @@ from holeshape.record import folder_name
 
 
 def plot_history(path: Path, trials, title: str, goal: str = "lowest_peak") -> Path:
-    """Objective of every feasible design against the trial number with the best so far; for
-    ``goal = "largest_opening"`` the removed area (the best so far is the largest), for
-    ``"lightest_reinforcement"`` the reinforcement's volume in cm^3."""
+    """The goal's quantity for every feasible design against the trial number, with the best so far (the goal's
+    own reading of its objective: the peak, the removed area (the best is the largest), the reinforcement's volume
+    in cm^3)."""
     from optuna.trial import TrialState
 
+    from holeshape.goals import GOALS
+
+    g = GOALS.get(goal, GOALS["lowest_peak"])
     plt = pyplot()
     fig, ax = plt.subplots(figsize=(8, 4.6))
-    sign = -1.0 if goal == "largest_opening" else 1.0  # the study stores minus the area for the largest opening
-    scale = 1e-3 if goal == "lightest_reinforcement" else 1.0  # mm^3 -> cm^3
-    probes = [(t.number, sign * scale * t.values[0]) for t in trials if t.state == TrialState.COMPLETE
+    probes = [(t.number, g.readable(t.values[0])) for t in trials if t.state == TrialState.COMPLETE
               and t.user_attrs.get("probe") and t.values[0] < 1e8]
     trials = [t for t in trials if not t.user_attrs.get("probe")]
-    feas = [(t.number, sign * scale * t.values[0]) for t in trials if t.state == TrialState.COMPLETE
+    feas = [(t.number, g.readable(t.values[0])) for t in trials if t.state == TrialState.COMPLETE
             and t.user_attrs.get("feasible") and all(v <= 0 for v in t.constraints.values())]
     infeas = [t.number for t in trials if t.state == TrialState.COMPLETE and not t.user_attrs.get("feasible", True)]
     if probes:
@@ -35,11 +36,11 @@ def plot_history(path: Path, trials, title: str, goal: str = "lowest_peak") -> P
         n, v = np.array(feas).T
         ax.plot(n, v, "o", ms=3.5, color="0.55", label="feasible design (draft level)")
         order = np.argsort(n)
-        best = np.minimum.accumulate(v[order]) if sign > 0 else np.maximum.accumulate(v[order])
+        best = np.maximum.accumulate(v[order]) if g.grows else np.minimum.accumulate(v[order])
         ax.step(n[order], best, where="post", color="black", lw=1.8, label="best so far")
-        if sign > 0 and v.min() > 0:
+        if not g.grows and v.min() > 0:
             ax.set_ylim(0.95 * v.min(), min(v.max(), 3 * v.min()) * 1.05)
-        elif sign > 0:
+        elif not g.grows:
             ax.set_ylim(0.0, max(v.max(), 1e-9) * 1.08)
         else:
             ax.set_ylim(max(0.0, v.min() * 0.9), v.max() * 1.08)
@@ -53,8 +54,7 @@ def plot_history(path: Path, trials, title: str, goal: str = "lowest_peak") -> P
         ax.plot(failed, np.full(len(failed), ymark), "s", ms=4, mfc="none", color="C1", clip_on=False,
                 label=f"failed ({len(failed)})")
     ax.set_xlabel("trial")
-    labels = {"largest_opening": "removed area (mm^2)", "lightest_reinforcement": "reinforcement volume (cm^3)"}
-    ax.set_ylabel(labels.get(goal, "peak stress over all load cases (MPa)"))
+    ax.set_ylabel(g.axis_label)
     ax.grid(True, alpha=0.3)
     ax.legend(fontsize=8, loc="upper right")
     ax.set_title(f"{title}: search history")
@@ -118,15 +118,13 @@ def plot_shapes(path: Path, best, baselines, panel, constraints, title: str, bes
         ax.plot(*np.vstack([p, p[:1]]).T, color="C0", lw=2.2)
     p = best.polygon(720) if best.count == 1 else best.outlines(720)[0]
     r = best.reinforcement
-    if r is not None and r.kind == "ring":
-        from holeshape.geometry.reinforcement import ring_outline
-
-        q = ring_outline(best, r.width).polygon(720)
-        ax.fill(*q.T, color="C1", alpha=0.25, label=f"doubler ring {r.width:.1f} mm wide")
-    ax.fill(*p.T, color="white" if r is not None and r.kind == "ring" else "C0", alpha=1.0 if r is not None and
-            r.kind == "ring" else 0.15)
-    flange = f", flange {r.height:.1f} mm" if r is not None and r.kind == "flange" else ""
-    ax.plot(*np.vstack([p, p[:1]]).T, color="C0", lw=2.2, label=f"best {best.family.replace('_', ' ')}{flange}: "
+    region = None if r is None else r.interior_outline(best)
+    if region is not None:  # the reinforced region (a doubler ring) drawn round the opening
+        q = region.polygon(720)
+        ax.fill(*q.T, color="C1", alpha=0.25, label=r.label())
+    ax.fill(*p.T, color="white" if region is not None else "C0", alpha=1.0 if region is not None else 0.15)
+    extra = f", {r.label()}" if r is not None and region is None else ""
+    ax.plot(*np.vstack([p, p[:1]]).T, color="C0", lw=2.2, label=f"best {best.family.replace('_', ' ')}{extra}: "
             f"{best_peak:.1f} MPa")
     if constraints.access is not None:
         env = constraints.access.polygon(best.center, 0.0)
@@ -196,7 +194,7 @@ def plot_family_overlay(path: Path, study, run_dir: Path, ranked: list[dict]) ->
     if study.constraints.access is not None:
         from holeshape.search.baselines import baseline_center
 
-        center = baseline_center(study.cutout.values, panel, study.constraints)
+        center = baseline_center(study.cutout, panel, study.constraints)
         env = study.constraints.access.polygon(center, 0.0)
         ax.fill(*env.exterior.xy, color="C2", alpha=0.25, label="access envelope")
     return _finish_plan(fig, ax, path, f"{study.title}: best of every family (peak, fine level)")

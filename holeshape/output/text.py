@@ -1,14 +1,19 @@
-"""Human-readable summary of an evaluation (plain text, units stated)."""
+"""Human-readable summaries (plain text, units stated): of one checked design, and of a search run, whether it
+recommends a design or has none (then with the reasons by count, the nearest misses and what to change). Every
+check's own section is printed the same way, from its plain-data :class:`~holeshape.checks.Section`."""
 
 from __future__ import annotations
 
-from dataclasses import asdict
+import textwrap
 
 from holeshape import cautions
-from holeshape.evaluate import STRESS_LABELS, Evaluation
+from holeshape.checks.base import Requirement, Section, verdict
+from holeshape.evaluate import STRESS_LABELS
+from holeshape.output.numbers import fmt, limit_value, requirement_value
 from holeshape.record import RunRecord
-from holeshape.search.constraints import requirement_value
-from holeshape.stability import FACTOR_MEANING, SUPPORT_NOTES
+
+WIDTH = 118
+INDENT = "                "
 
 
 def factor_text(f: float | None) -> str:
@@ -16,70 +21,52 @@ def factor_text(f: float | None) -> str:
     return "does not buckle" if f is None else f"{f:.3f}"
 
 
-def stability_lines(st) -> list[str]:
-    """The stability block of a text summary."""
-    g = st.governing
-    lines = [
-        "",
-        f"  stability     linear buckling, panel edges {SUPPORT_NOTES[st.edge_support]}, cutout edge {st.cutout_edge};"
-        f" in-plane edges '{st.in_plane_edges}': {FACTOR_MEANING[st.in_plane_edges]}",
-        f"                {st.accuracy}: estimated error {st.error_estimate_pct:.2g} % (target"
-        f" {st.accuracy_target_pct:g} %), plate DOFs per level {', '.join(str(n) for n in st.level_dofs)}",
-        f"  {'load case':<34} {'buckling factor':>16} {'reserve':>9} {'error est.':>11} {'no cutout':>10}",
-    ]
-    for c in st.cases:
-        res = "-" if c.reserve is None else f"{c.reserve:.3f}"
-        err = "-" if c.error_estimate_pct is None else f"{c.error_estimate_pct:.2g} %"
-        flag = "  << BELOW REQUIRED" if c.reserve is not None and c.reserve < 1.0 else ""
-        lines.append(f"  {c.name[:34]:<34} {factor_text(c.load_factor):>16} {res:>9} {err:>11}"
-                     f" {factor_text(c.unperforated_factor):>10}{flag}")
-    if g is None:
-        lines.append("  buckling      no load case buckles the web below the factor ceiling (no compression)")
-    else:
-        lines.append(f"  buckling      lowest load factor {g.load_factor:.3f} ({g.name}); required"
-                     f" {st.required_factor:g}, reserve {st.reserve:.3f}; without the cutout"
-                     f" {factor_text(st.unperforated_factor)}")
+def wrap(head: str, text: str) -> list[str]:
+    """``text`` after a 14-character label (a longer one takes its own line), wrapped under itself."""
+    if len(head) > 13:
+        return [f"  {head}"] + textwrap.wrap(text, WIDTH, initial_indent=INDENT, subsequent_indent=INDENT)
+    return textwrap.wrap(text, WIDTH, initial_indent=f"  {head:<14}", subsequent_indent=INDENT) or [f"  {head}"]
+
+
+def table_lines(columns, rows, indent: str = "    ") -> list[str]:
+    """A fixed-width table: headings, then each row's cells formatted by their column key."""
+    cells = [[fmt(k, r.get(k)) for k, _ in columns] for r in rows]
+    widths = [max([len(h)] + [len(c[i]) for c in cells]) for i, (_, h) in enumerate(columns)]
+    out = [indent + "  ".join(h.ljust(w) if i == 0 else h.rjust(w) for i, ((_, h), w) in
+                              enumerate(zip(columns, widths)))]
+    for c in cells:
+        out.append(indent + "  ".join(x.ljust(w) if i == 0 else x.rjust(w) for i, (x, w) in
+                                      enumerate(zip(c, widths))))
+    return out
+
+
+def section_lines(section: Section | dict) -> list[str]:
+    """A check's section: its title, paragraphs (a warning marked) and tables."""
+    s = section if isinstance(section, Section) else Section.from_dict(section)
+    lines = ["", f"  {s.title.upper()}"]
+    for i, p in enumerate(s.paragraphs):
+        lines += textwrap.wrap(("WARNING: " if s.warn and i == 0 else "") + p, WIDTH, initial_indent="    ",
+                               subsequent_indent="    ")
+    for t in s.tables:
+        lines += table_lines(t.columns, t.rows)
     return lines
 
 
-REINFORCEMENT_NOTES = {
-    "flange": "formed flange standing on the cutout edge (an edge member in plane, a beam out of plane)",
-    "ring": "doubler ring bonded over the web round the cutout",
-}
-
-
-def reinforcement_lines(ev: Evaluation) -> list[str]:
-    """The reinforcement block of a check summary: what it is, what it weighs, the peak at every location."""
-    r = ev.reinforcement
-    sizes = " x ".join(f"{k} {v:.1f} mm" for k, v in r.sizes.items() if k != "youngs_modulus")
-    mass = "" if r.added_mass_kg is None else f", added mass {r.added_mass_kg:.4f} kg"
-    lines = ["", f"  reinforcement {r.kind}: {REINFORCEMENT_NOTES[r.kind]}",
-             f"                {sizes}; cross-section {r.cross_section_mm2:.1f} mm^2{mass}"]
-    if "youngs_modulus" in r.sizes:
-        lines.append(f"                Young's modulus {r.sizes['youngs_modulus']:g} MPa")
-    names = list(r.peak_stress_mpa)
-    lines.append(f"  {'load case':<34} " + " ".join(f"{n:>30}" for n in names) + "   governs at")
-    for c in ev.load_cases:
-        by = {loc.location: loc.peak_stress_mpa for loc in c.locations}
-        lines.append(f"  {c.name[:34]:<34} " + " ".join(f"{by[n]:>26.2f} MPa" for n in names)
-                     + f"   {c.peak_location}")
-    return lines
-
-
-def requirement_lines(rows: list[dict]) -> list[str]:
-    if not rows:
+def requirement_lines(reqs: list[Requirement] | tuple[Requirement, ...]) -> list[str]:
+    """The verdict and every requirement (rows implied by a listed one shown only when they fail)."""
+    if not reqs:
         return []
-    from holeshape.search.constraints import verdict
-
-    failed = [r for r in rows if not r["met"]]
+    shown = [r for r in reqs if r.listed or not r.met]
+    failed = [r for r in reqs if not r.met]
     head = "MEETS every requirement of the study" if not failed else \
-        f"FAILS {len(failed)} of {len(rows)} requirements"
+        f"FAILS {len(failed)} of {len(reqs)} requirements"
     lines = ["", f"  verdict       {head}"]
-    for r in rows:
-        lines.append(f"    {'ok  ' if r['met'] else 'FAIL'} {r['requirement']:<52} {requirement_value(r):>14}"
-                     f"  required {r['limit']}")
-    for a in verdict(rows)["advice"]:
-        lines.append(f"  what to change {a}")
+    for r in shown:
+        label = r.label if r.unit in ("", "%") or r.kind in ("margin", "buckling") else f"{r.label} ({r.unit})"
+        lines.append(f"    {'ok  ' if r.met else 'FAIL'} {label[:58]:<58} {requirement_value(r):>16}"
+                     f"  required {limit_value(r)}")
+    for a in verdict(reqs).advice:
+        lines += wrap("to change", a)
     return lines
 
 
@@ -87,160 +74,219 @@ def _fmt_mos(m: float | None) -> str:
     return "n/a (no allowable given)" if m is None else f"{m:+.3f}{'  << NEGATIVE' if m < 0 else ''}"
 
 
-SHEAR_NOTES = {"uniform": "the web carries the whole shear force, nearly evenly (built-up beam; the caps carry most"
-                           " of the bending)",
-               "parabolic": "parabolic shear over the depth (the panel is a solid rectangular section)"}
-
-
-def row_lines(ev: Evaluation) -> list[str]:
-    """Several openings (a row or separate tables): the web between them and every opening's peak per load case."""
-    if not ev.ligaments_between_mm:
-        return []
-    n = len(ev.load_cases[0].locations)
-    lines = ["", f"  openings      {n}; narrowest web between openings {min(ev.ligaments_between_mm):.1f} mm (each: "
-                 + ", ".join(f"{w:.1f}" for w in ev.ligaments_between_mm) + " mm)"]
-    for c in ev.load_cases:
-        lines.append(f"    {c.name}: " + ", ".join(f"{loc.location} {loc.peak_stress_mpa:.1f}" for loc in c.locations)
-                     + f" MPa; governs at {c.peak_location}")
-    return lines
-
-
-def beam_lines(ev: Evaluation, beam_cases: dict) -> list[str]:
-    """The beam-load block: each beam case's forces, the reference stress and the tee sections' mean stresses.
-    ``beam_cases``: name -> (shear force N, bending moment N mm, shear distribution)."""
-    if not beam_cases:
-        return []
-    lines = ["", "  beam loads    edge tractions from the beam theory stresses (sigma_x = M y / I, dM/dx = V); Kt"
-                 f" reference: {ev.kt_reference if 'beam' in ev.kt_reference else 'see each case'}"]
-    for r in ev.load_cases:
-        if r.name not in beam_cases:
-            continue
-        v, m, dist = beam_cases[r.name]
-        lines.append(f"    {r.name}: V = {v:g} N, M = {m:g} N mm at the panel's x-centre; {SHEAR_NOTES[dist]};"
-                     f" reference stress {r.reference_stress_mpa:.2f} MPa")
-        lines.append(f"      tee above the opening: mean sigma_x {r.tee_above_mpa:.2f} MPa, mean shear"
-                     f" {r.tee_above_shear_mpa:.2f} MPa; below: {r.tee_below_mpa:.2f} MPa, {r.tee_below_shear_mpa:.2f}"
-                     " MPa")
-    return lines
-
-
-def check_summary(title: str, family: str, params: dict, ev: Evaluation, edges_note: str,
-                  requirements: list[dict] | None = None, beam_cases: dict | None = None) -> str:
+def check_summary(result, edges_note: str) -> str:
+    """The text of ``holeshape check``: one :class:`~holeshape.checkrun.DesignResult`."""
+    ev, a, study, cutout = result.evaluation, result.assessment, result.study, result.cutout
     label = STRESS_LABELS[ev.stress_measure]
-    lines = [
-        f"holeshape check: {title}",
-        f"  cutout        {family} " + ", ".join(f"{k} = {v}" for k, v in params.items()),
+    stress = a.result("stress")
+    net = a.result("net_section")
+    params = ", ".join(f"{k} = {_num(v)}" for k, v in cutout.parameters().items())
+    lines = [f"holeshape check: {study.title}"]
+    lines += wrap("cutout", f"{cutout.family} {params}")
+    lines += [
         f"  removed area  {ev.area_mm2:.1f} mm^2   smallest radius {ev.min_radius_mm:.3g} mm",
         f"  model         {ev.model} panel, {ev.dofs} DOFs, P2 on curved quadratic triangles, {edges_note}",
-        f"  accuracy      {ev.accuracy}: estimated discretisation error {ev.error_estimate_pct:.3f} %"
-        f" (target {ev.accuracy_target_pct:g} %; levels "
-        + ", ".join(f"{n} DOFs -> {p:.3f} MPa" for n, p in ev.levels) + ")",
-        "",
-        f"  {'load case':<34} {'peak ' + label:>28} {'Kt':>7} {'at x, y (mm)':>18} {'net-section':>12} {'MoS':>8}",
     ]
+    levels = ", ".join(f"{n} DOFs -> {p:.3f} MPa" for n, p in ev.levels)
+    lines += wrap("accuracy", f"{ev.accuracy}: estimated discretisation error {ev.error_estimate_pct:.3f} % (target"
+                  f" {ev.accuracy_target_pct:g} %; levels {levels})")
+    lines += ["", f"  {'load case':<34} {'peak ' + label:>28} {'Kt':>7} {'at x, y (mm)':>18} {'net section':>14}"
+                  f" {'MoS':>8}"]
     for r in ev.load_cases:
-        mos = "-" if r.margin_of_safety is None else f"{r.margin_of_safety:+.3f}"
+        mos = None if stress is None else stress.margins.get(r.name)
+        ns = "-" if net is None else f"{net.sections[net.governing[r.name]].equivalent_mpa:.1f} MPa"
         lines.append(f"  {r.name[:34]:<34} {r.peak_stress_mpa:>24.2f} MPa {r.kt:>7.3f} "
-                     f"{f'{r.x_mm:.1f}, {r.y_mm:.1f}':>18} {r.net_section_stress_mpa:>8.1f} MPa {mos:>8}")
-    lig = ev.ligament
-    lines += [
-        "",
-        f"  governing     {ev.governing_load_case}: peak {ev.peak_stress_mpa:.2f} MPa, Kt = {ev.kt:.3f}"
-        f" (reference: {ev.kt_reference})",
-        f"  margin        {_fmt_mos(ev.margin_of_safety)}",
-        f"  ligament      narrowest {lig.width_mm:.1f} mm, to the {lig.edge} edge (net-section stress per load case"
-        " above: mean normal stress across it)",
-    ]
-    lines += row_lines(ev)
-    lines += beam_lines(ev, beam_cases or {})
-    if ev.reinforcement is not None:
-        lines += reinforcement_lines(ev)
-    if ev.stability is not None:
-        lines += stability_lines(ev.stability)
-    lines += requirement_lines(requirements or [])
-    for w in ev.warnings:
-        lines.append(f"  WARNING       {w}")
-    lines += ["", "  CAUTION: " + cautions(ev.stability is not None, ev.reinforcement is not None)]
+                     f"{f'{r.x_mm:.1f}, {r.y_mm:.1f}':>18} {ns:>14} {'-' if mos is None else f'{mos:+.3f}':>8}")
+    lines += ["", f"  governing     {ev.governing_load_case}: peak {ev.peak_stress_mpa:.2f} MPa, Kt = {ev.kt:.3f}"]
+    lines += wrap("Kt reference", ev.kt_reference)
+    lines.append(f"  margin        {_fmt_mos(None if stress is None else stress.margin_of_safety)}")
+    if ev.load_cases[0].locations:
+        for c in ev.load_cases:
+            lines += wrap("peaks" if c is ev.load_cases[0] else "", f"{c.name}: " + ", ".join(
+                f"{loc.location} {loc.peak_stress_mpa:.1f}" for loc in c.locations) + f" MPa; governs at"
+                f" {c.peak_location}")
+    beams = [lc for lc in study.load_cases if lc.is_beam]
+    for lc in beams:
+        lines += wrap("beam load" if lc is beams[0] else "", f"{lc.name}: shear force V = {lc.shear_force or 0:.4g} N,"
+                      f" bending moment M = {lc.bending_moment or 0:.4g} N mm at the panel's x-centre (edge tractions"
+                      " from sigma_x = M y / I, dM/dx = V)")
+    from holeshape.checks.compose import sections
+
+    for s in sections(a, study):
+        lines += section_lines(s)
+    lines += requirement_lines(a.requirements)
+    for w in result.warnings:
+        lines += wrap("WARNING", w)
+    lines += [""] + wrap("CAUTION", cautions(a.result("stability") is not None,
+                                            a.result("reinforcement") is not None))
     return "\n".join(lines)
 
 
 def optimise_summary(rec: RunRecord) -> str:
     """The text summary of a search run, from its typed record."""
+    if rec.best is None:
+        return no_design_summary(rec)
     b = rec.best
     dims = ", ".join(f"{k} = {_num(v)}" for k, v in b.params.items())
     x0, y0, x1, y1 = b.bounds_mm
     t = rec.trials
-    lines = [
-        f"holeshape optimise: {rec.study}",
-        f"  trials        {t.completed} completed ({t.infeasible} infeasible{t.probe_note}), {t.failed} failed;"
-        f" storage {rec.storage}",
-        f"  best          {b.shape}: {dims}",
+    from holeshape.goals import GOALS
+
+    goal = GOALS.get(rec.goal, GOALS["lowest_peak"])
+    lines = [f"holeshape optimise: {rec.study}",
+             f"  goal          {goal.label}",
+             f"  trials        {t.completed} completed ({t.infeasible} infeasible{t.probe_note}), {t.failed} failed;"
+             f" storage {rec.storage}"]
+    lines += wrap("recommended", f"{b.shape}: {dims}")
+    lines += wrap("why", rec.choice) if rec.choice else []
+    lines += [
         f"  size          {x1 - x0:.1f} x {y1 - y0:.1f} mm overall, smallest radius {b.min_radius_mm:.2f} mm,"
-        f" removed area {b.area_mm2:.0f} mm^2",
-        f"  peak          {b.peak_stress_mpa:.2f} MPa, Kt {b.kt:.3f} ({b.kt_reference}), error estimate"
-        f" {b.error_estimate_pct:.3f} % at the {b.accuracy} level",
-        f"  margin        {_fmt_mos(b.margin_of_safety)}",
+        f" removed area {b.area_mm2:.0f} mm^2" + ("" if b.mass_saved_kg is None else
+                                                 f" ({b.mass_saved_kg:.3f} kg saved)"),
+        f"  peak          {b.peak_stress_mpa:.2f} MPa, Kt {b.kt:.3f}, error estimate {b.error_estimate_pct:.3f} %"
+        f" at the {b.accuracy} level",
     ]
-    if rec.goal == "largest_opening":
-        mass = "" if b.mass_saved_kg is None else f" ({b.mass_saved_kg:.3f} kg saved)"
-        lines.insert(2, f"  goal          largest opening within every constraint: {b.area_mm2:.0f} mm^2"
-                        f" removed{mass}")
+    lines += wrap("Kt reference", b.kt_reference)
+    lines.append(f"  margin        {_fmt_mos(b.margin_of_safety)}")
+    if b.moved is not None:
+        lines += wrap("moved", b.moved["note"])
     r = b.reinforcement
-    if rec.goal == "lightest_reinforcement":
-        lines.insert(2, "  goal          the least reinforcement that meets every requirement")
     if r is not None:
         sizes = ", ".join(f"{k} {v:.2f} mm" for k, v in r["sizes"].items() if k != "youngs_modulus")
         mass = "" if r["added_mass_kg"] is None else f", adds {r['added_mass_kg']:.4f} kg"
-        lines.append(f"  reinforcement {r['kind']}: {sizes}; cross-section {r['cross_section_mm2']:.1f} mm^2{mass};"
-                     " peaks " + ", ".join(f"{k} {v:.1f} MPa" for k, v in r["peak_stress_mpa"].items()))
+        lines += wrap("reinforcement", f"{r['kind']}: {sizes}; cross-section {r['cross_section_mm2']:.1f} mm^2{mass};"
+                      " peaks " + ", ".join(f"{k} {v:.1f} MPa" for k, v in r["peak_stress_mpa"].items()))
         bare = r.get("bare_opening")
         if bare is not None:
             f = bare["buckling_load_factor"]
             mos = "" if bare["margin_of_safety"] is None else f", margin {bare['margin_of_safety']:+.3f}"
-            lines.append(f"  bare opening  the same outline without it: peak {bare['peak_stress_mpa']:.1f} MPa{mos}"
-                         + ("" if b.stability is None else f", buckling factor {factor_text(f)}")
-                         + f"; {'meets' if bare['verdict'] == 'pass' else 'FAILS'} the requirements"
-                         + ("" if bare["verdict"] == "pass" else f" ({'; '.join(bare['verdict_reasons'])})"))
-    for r in b.load_cases:
-        mos = "" if r.margin_of_safety is None else f", MoS {r.margin_of_safety:+.3f}"
-        lines.append(f"    {r.name}: {r.peak_stress_mpa:.2f} MPa at ({r.x_mm:.1f}, {r.y_mm:.1f}) mm{mos}")
-        if r.locations:
-            lines.append("      " + ", ".join(f"{loc['location']} {loc['peak_stress_mpa']:.1f}" for loc in r.locations)
+            lines += wrap("bare opening", f"the same outline without it: peak {bare['peak_stress_mpa']:.1f} MPa{mos}"
+                          + ("" if b.stability is None else f", buckling factor {factor_text(f)}")
+                          + f"; {'meets' if bare['verdict'] == 'pass' else 'FAILS'} the requirements"
+                          + ("" if bare["verdict"] == "pass" else f" ({'; '.join(bare['verdict_reasons'])})"))
+    for c in b.load_cases:
+        mos = "" if c.margin_of_safety is None else f", MoS {c.margin_of_safety:+.3f}"
+        buck = "" if not c.with_stability else f", buckling factor {factor_text(c.buckling_load_factor)}"
+        lines.append(f"    {c.name}: {c.peak_stress_mpa:.2f} MPa at ({c.x_mm:.1f}, {c.y_mm:.1f}) mm{mos}{buck}")
+        if c.locations:
+            lines.append("      " + ", ".join(f"{loc['location']} {loc['peak_stress_mpa']:.1f}" for loc in c.locations)
                          + " MPa")
-    if rec.baselines:
-        lines.append("  standard shapes (same constraints, fine level):")
-    for row in rec.baselines:
-        if row.feasible:
-            imp = rec.improvement_over_baselines_pct[row.shape]
-            lines.append(f"    {row.shape:<18} {row.peak_stress_mpa:8.2f} MPa, area {row.area_mm2:.0f} mm^2;"
-                         f" best is {imp:+.1f} % {'lower' if imp >= 0 else 'higher'}")
-        else:
-            lines.append(f"    {row.shape:<18} cannot meet the constraints: {row.reason}")
+    lines += comparison_lines(rec)
     if rec.front:
         lines.append(f"  trade-off     {len(rec.front)} designs on the front (draft level), one DXF each")
-    st = b.stability
-    if st is not None:
-        lines.append(f"  stability     lowest buckling factor {factor_text(st['buckling_load_factor'])}"
-                     f" ({st['buckling_governing_load_case'] or 'no case buckles'}), required"
-                     f" {st['required_factor']:g}; without the cutout"
-                     f" {factor_text(st['buckling_load_factor_unperforated'])};"
-                     f" estimated error {st['buckling_error_estimate_pct']:.2g} %")
-        for c in st["cases"]:
-            lines.append(f"    {c['name']}: factor {factor_text(c['load_factor'])}, without the cutout"
-                         f" {factor_text(c['unperforated_factor'])}")
     refused = t.refused_after_solve
-    if refused.get("buckling"):
-        lines.append(f"  refused       {refused['buckling']} solved designs that met every geometric constraint"
-                     " buckled below the required factor")
-    if refused.get("margin"):
-        lines.append(f"  refused       {refused['margin']} solved designs that met every geometric constraint"
-                     " missed the margin")
-    lines += requirement_lines([asdict(r) for r in b.requirements])
+    for k, what in (("buckling", "buckled below the required factor"), ("margin", "missed the margin")):
+        if refused.get(k):
+            lines.append(f"  refused       {refused[k]} solved designs that met every geometric requirement {what}")
+    for s in b.sections:
+        lines += section_lines(s)
+    lines += requirement_lines(list(b.requirements))
     for w in b.warnings:
-        lines.append(f"  WARNING       {w}")
+        lines += wrap("WARNING", w)
     lines.append(f"  profile       {b.dxf} ({b.dxf_vertices} vertices, chord error {b.dxf_chord_error_mm:.4f} mm)")
-    lines += ["", "  CAUTION: " + (rec.cautions or cautions(False))]
+    lines += [""] + wrap("CAUTION", rec.cautions or cautions(False))
     return "\n".join(lines)
+
+
+def comparison_lines(rec: RunRecord) -> list[str]:
+    """The recommendation beside the searched family's best and the standard shapes, directions in words."""
+    from holeshape.goals import GOALS
+
+    goal = GOALS.get(rec.goal, GOALS["lowest_peak"])
+    b = rec.best
+    mine = {"peak_stress_mpa": b.peak_stress_mpa, "area_mm2": b.area_mm2, "reinforcement": b.reinforcement}
+    if rec.family_best is None or rec.family_best.get("recommended"):
+        if not rec.baselines:
+            return ["", "  compared       no standard shape applies (no access envelope or area requirement to size"
+                        " one by)"]
+    lines = ["", "  compared at the fine level, same requirements:"]
+    fam = rec.family_best
+    if fam is not None and not fam.get("recommended"):
+        state = "meets every requirement" if fam["meets_every_requirement"] else \
+            "FAILS: " + "; ".join(fam["verdict_reasons"])
+        lines += wrap("", f"searched {fam['shape'].replace('_', ' ')} best (trial {fam['trial']}):"
+                      f" {fam['peak_stress_mpa']:.2f} MPa, area {fam['area_mm2']:.0f} mm^2; {state}; the recommended"
+                      f" design has {goal.better(mine, fam)} it")
+    for row in rec.baselines:
+        name = row.shape.replace("_", " ")
+        if row.peak_stress_mpa is None:
+            lines += wrap("", f"standard {name}: cannot be drawn within the requirements ({row.reason})")
+            continue
+        other = {"peak_stress_mpa": row.peak_stress_mpa, "area_mm2": row.area_mm2,
+                 "reinforcement": None if row.added_volume_mm3 is None else {"added_volume_mm3": row.added_volume_mm3}}
+        mass = "" if row.added_mass_kg is None else f", reinforcement {row.added_mass_kg:.4f} kg"
+        state = "meets every requirement" if row.feasible else f"FAILS: {row.reason}"
+        lines += wrap("", f"standard {name}: {row.peak_stress_mpa:.2f} MPa, area {row.area_mm2:.0f} mm^2{mass};"
+                      f" {state}; the recommended design has {goal.better(mine, other)} it")
+    return lines
+
+
+def no_design_summary(rec: RunRecord) -> str:
+    """A run with no answer: why, by count; the nearest misses, value against limit; what to change."""
+    t = rec.trials
+    lines = [f"holeshape optimise: {rec.study}",
+             "  NO DESIGN meets every requirement at the fine level (exit code 5): nothing is recommended",
+             f"  trials        {t.completed} completed ({t.infeasible} refused{t.probe_note}), {t.failed} failed;"
+             f" storage {rec.storage}"]
+    lines += wrap("why", rec.choice) if rec.choice else []
+    if rec.trial_reasons:
+        lines += ["", "  refused designs by the requirement they missed (draft level):"]
+        for g in rec.trial_reasons[:8]:
+            if "failure" in g:
+                lines.append(f"    {g['trials']:>5} trials failed in the numerics ({g['failure']})")
+                continue
+            rng = ""
+            if "lowest" in g:
+                lo, hi = _val(g, g["lowest"]), _val(g, g["highest"])
+                rng = f": {lo}" if lo == hi else f": {lo} to {hi}"
+                rng += f" (required {g['relation']} {_val(g, g['limit'])})"
+            lines.append(f"    {g['trials']:>5} trials  {g['requirement']}{rng}")
+    if rec.nearest_misses:
+        lines += ["", "  nearest misses:"]
+        for m in rec.nearest_misses[:6]:
+            who = "a standard shape" if m.get("trial") is None else f"trial {m['trial']}"
+            dims = ", ".join(f"{k} = {_num(v)}" for k, v in m["params"].items() if not isinstance(v, str))
+            lines += wrap("", f"{who} ({m.get('level', 'draft')} level): {dims}")
+            for r in m["missed"]:
+                got = "-" if r.get("value") is None else _val(r, r["value"])
+                need = "" if r.get("limit") is None else f", required {r['relation']} {_val(r, r['limit'])}"
+                lines.append(f"{INDENT}misses {r['label']}: {got}{need}")
+    if rec.baselines:
+        lines += ["", "  standard shapes at the fine level:"]
+        for row in rec.baselines:
+            lines += wrap("", f"{row.shape.replace('_', ' ')}: " + ("meets every requirement" if row.feasible else
+                                                                   f"fails: {row.reason}"))
+    for a in rec.advice:
+        lines += wrap("to change", a)
+    lines += [""] + wrap("CAUTION", rec.cautions or cautions(False))
+    return "\n".join(lines)
+
+
+def _val(r: dict, v) -> str:
+    kind, unit = r.get("kind", ""), r.get("unit", "")
+    if v is None:
+        return "-"
+    if kind == "margin":
+        return f"{v:+.3f}"
+    if kind == "buckling":
+        return f"{v:.3f}"
+    return f"{v:.4g}{(' ' + unit) if unit else ''}"
+
+
+def sweep_lines(res: dict) -> list[str]:
+    """The points of a sweep."""
+    lines = [f"holeshape sweep: {res['study']} ({res['accuracy']} level, {res['elapsed_s']:.1f} s)"]
+    for p in res["points"]:
+        where = ", ".join(f"{k} = {v:.4g}" for k, v in p["coords"].items())
+        if p.get("solved"):
+            flag = "" if p["feasible"] else f"  [breaks: {p.get('reason', '')}]"
+            buck = "" if "buckling_load_factor" not in p else \
+                f", buckling factor {factor_text(p['buckling_load_factor'])}"
+            lines.append(f"  {where:<28} peak {p['peak_stress_mpa']:8.2f} MPa, Kt {p['kt']:.3f},"
+                         f" area {p['area_mm2']:.0f} mm^2{buck}{flag}")
+        else:
+            lines.append(f"  {where:<28} not solved: {p.get('reason', '')}")
+    return lines
 
 
 def _num(v) -> str:

@@ -8,32 +8,31 @@ import math
 
 from holeshape.errors import GeometryError
 from holeshape.geometry import Circle, Cutout, Ellipse, RoundedRectangle
-from holeshape.search.constraints import constraint_values
-from holeshape.search.space import scaled_to_area
-from holeshape.study import Constraints, Panel, Range
+from holeshape.parameters import CutoutSpec, Param, Range
+from holeshape.search.space import DesignSpace, scaled_to_area
+from holeshape.study import Constraints, Panel
 
 
-def baseline_center(spec_values: dict, panel: Panel, cons: Constraints) -> tuple[float, float]:
+def baseline_center(spec: CutoutSpec, panel: Panel, cons: Constraints) -> tuple[float, float]:
     if cons.access is not None and cons.access.center is not None:
         return cons.access.center
-    c = spec_values.get("center")
-    if c is not None and not any(isinstance(v, Range) for v in c):
-        return float(c[0]), float(c[1])
-    return panel.width / 2, panel.height / 2
+    c = spec.fixed_center()
+    return c if c is not None else (panel.width / 2, panel.height / 2)
 
 
-def standard_shapes(spec_values: dict, panel: Panel, cons: Constraints, density: float | None = None
-                    ) -> list[tuple[str, Cutout | None, str]]:
+def standard_shapes(study) -> list[tuple[str, Cutout | None, str]]:
     """(family, cutout or None, note) for circle, ellipse and rounded rectangle; None with the reason when the
-    family cannot meet the constraints. With a [reinforcement] the shapes carry it at its nominal sizes
-    (``study.nominal_reinforcement``)."""
+    family cannot meet the geometric requirements. With a [reinforcement] the shapes carry it at its nominal sizes
+    (``CutoutSpec.nominal_reinforcement``)."""
+    from holeshape.checks import assess
     from holeshape.geometry.reinforcement import check_formable
-    from holeshape.study import nominal_reinforcement, nominal_row
 
-    reinforcement = nominal_reinforcement(spec_values)
-    row = nominal_row(spec_values)  # a row: rows of the standard shapes at the nominal pitch
+    spec, panel, cons = study.cutout, study.panel, study.constraints
+
+    reinforcement = spec.nominal_reinforcement()
+    row = spec.nominal_row()  # a row: rows of the standard shapes at the nominal pitch
     count = 1 if row is None else row.count
-    center = baseline_center(spec_values, panel, cons)
+    center = baseline_center(spec, panel, cons)
     rot = cons.access.rotation if cons.access is not None else 0.0
     shapes: list[tuple[str, object]] = []
     if cons.access is not None:
@@ -67,9 +66,79 @@ def standard_shapes(spec_values: dict, panel: Panel, cons: Constraints, density:
         except GeometryError as err:
             out.append((family, None, str(err)))
             continue
-        values, reasons = constraint_values(cut, panel, cons, density)
-        if reasons:
-            out.append((family, None, "; ".join(reasons)))
+        geo = assess(study, cut)
+        if not geo.meets_every_requirement:
+            out.append((family, None, "; ".join(geo.reasons())))
         else:
-            out.append((family, cut, "meets every constraint"))
+            out.append((family, cut, "meets every geometric requirement"))
     return out
+
+
+def family_point(base_family: str, cut: Cutout, space: DesignSpace) -> dict[str, float] | None:
+    """The search parameters (by flat name) that reproduce a standard shape in the study's own family, or None
+    when the family cannot represent it within the ranges (and the study's fixed values)."""
+    spec = space.spec
+    family = spec.shape
+    sh = cut.shape
+    own: dict[str, float] = {}
+    if family == base_family:
+        own = {k: v for k, v in sh.parameters().items() if not isinstance(v, (tuple, list, str))}
+    elif family == "superellipse" and base_family in ("circle", "ellipse"):
+        a = sh.radius if base_family == "circle" else sh.a
+        b = sh.radius if base_family == "circle" else sh.b
+        own = {"a": a, "b": b, "exponent": 2.0}
+    elif family == "ellipse" and base_family == "circle":
+        own = {"a": sh.radius, "b": sh.radius}
+    elif family != "spline":
+        return None
+    vals: dict[Param, float] = {Param(0, "shape", k): v for k, v in own.items()}
+    rotation = cut.rotation
+    if family == "spline":
+        if base_family != "circle":
+            rotation = _spline_rotation(cut, spec)
+        vals.update(_spline_radii(cut, spec, rotation))
+    vals.update({Param(0, "place", "center", 0): cut.center[0], Param(0, "place", "center", 1): cut.center[1],
+                 Param(0, "place", "rotation"): rotation})
+    ranges = spec.ranges
+    out = {}
+    for p, r in ranges.items():
+        if p not in vals:
+            return None
+        v = vals[p]
+        if space.constraints.area is None and not (r.min <= v <= r.max):
+            return None
+        out[p.flat] = min(max(v, r.min), r.max)
+    # fixed (non-searched) values must agree with the standard shape
+    fixed = spec.entries()
+    for p, v in vals.items():
+        if p in ranges:
+            continue
+        f = fixed.get(p)
+        if isinstance(f, (int, float)) and not isinstance(f, bool) and abs(float(f) - v) > 1e-9 * max(1, abs(v)):
+            if space.constraints.area is None or not p.is_length:
+                return None
+    return out
+
+
+def _spline_rotation(cut: Cutout, spec: CutoutSpec) -> float:
+    """The rotation a spline start takes: the standard shape's where the study searches it, else the study's."""
+    fixed = spec.openings[0].rotation
+    return cut.rotation if isinstance(fixed, Range) else float(fixed)
+
+
+def _spline_radii(cut: Cutout, spec: CutoutSpec, rotation: float) -> dict[Param, float]:
+    """The spline radii through a standard shape's outline (its polar radius about its centre at the spline's
+    angles, in the spline's own frame): the same shape for a circle, a close one otherwise (a start)."""
+    import numpy as np
+
+    op = spec.openings[0]
+    n = len(op.value("radii"))
+    sym = op.value("symmetry")
+    span = {"none": 2 * math.pi * (n - 1) / n, "x": math.pi, "xy": math.pi / 2}[sym]
+    theta = np.linspace(0.0, span, n) + math.radians(rotation)
+    p = cut.sampling.points
+    phi = np.arctan2(p[1] - cut.center[1], p[0] - cut.center[0])
+    rho = np.hypot(p[0] - cut.center[0], p[1] - cut.center[1])
+    order = np.argsort(phi)
+    r = np.interp(np.mod(theta + math.pi, 2 * math.pi) - math.pi, phi[order], rho[order], period=2 * math.pi)
+    return {Param(0, "shape", "radii", i): float(v) for i, v in enumerate(r)}

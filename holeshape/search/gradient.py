@@ -28,7 +28,8 @@ import numpy as np
 
 from holeshape.errors import HoleshapeError
 from holeshape.geometry import Cutout
-from holeshape.study import Constraints, Panel, Study
+from holeshape.search.trial import TrialRecord
+from holeshape.study import Panel, Study
 
 FD_STEP = 2.0e-3  # forward-difference step in the unit cube (0.05 mm on a 24 mm radius range)
 TRUST_START = 0.08  # first trust-region half-width in the unit cube
@@ -45,21 +46,22 @@ PROBE_REASON = "a gradient probe, not a candidate (one mesh level, no error esti
 
 def not_applicable(study: Study) -> str | None:
     """Why the gradient refinement cannot run on ``study`` (None when it can)."""
-    from holeshape.study import OTHER_PREFIX, REINFORCEMENT_PREFIX
-
     spec = study.cutout
-    vals = spec.values
     if spec.shape != "spline":
         return f"it refines free-form outlines (shape = \"spline\"), not shape = {spec.shape!r}"
-    if any(k.startswith(REINFORCEMENT_PREFIX) for k in vals):
+    if spec.reinforced:
         return "a reinforced opening is searched by the sampler"
-    if any(k.startswith(OTHER_PREFIX.split("{")[0]) for k in vals) or int(vals.get("count", 1) or 1) > 1:
+    if spec.several:
         return "several openings are searched by the sampler"
     if study.search.goal != "lowest_peak":
         return f"it lowers the peak stress; search.goal = {study.search.goal!r} is searched by the sampler"
-    if not any(k.startswith("radii[") for k in spec.ranges):
+    if not _searched_radii(study):
         return "no radius of the spline is searched"
     return None
+
+
+def _searched_radii(study: Study) -> int:
+    return sum(1 for p in study.cutout.ranges if p.part == "shape" and p.name == "radii")
 
 
 def chosen_method(study: Study) -> str:
@@ -68,8 +70,7 @@ def chosen_method(study: Study) -> str:
     m = study.search.method
     if m != "auto":
         return m
-    radii = sum(1 for k in study.cutout.ranges if k.startswith("radii["))
-    return "gradient" if radii >= 6 and not_applicable(study) is None else "sampler_simplex"
+    return "gradient" if _searched_radii(study) >= 6 and not_applicable(study) is None else "sampler_simplex"
 
 
 # --- the moved mesh -------------------------------------------------------------------------------------------
@@ -92,7 +93,7 @@ def moved_mesh(pm, base: Cutout, new: Cutout, panel: Panel):
     lx, ly = c * dx + s * dy, -s * dx + c * dy
     phi = np.mod(np.arctan2(ly, lx), 2 * math.pi)
     rho = np.hypot(lx, ly)
-    r_old = base.shape._radius(phi)
+    r_old = base.shape.radius_at(phi)
     u = np.clip((rho - r_old) / blend_length(base, panel), 0.0, 1.0)
     w = (1.0 - u) ** 2 * (1.0 + 2.0 * u)
     moved = X + w * (new.xy(phi) - base.xy(phi))
@@ -108,7 +109,7 @@ def sample_stress(pm, study: Study, cutout: Cutout) -> tuple[np.ndarray, float]:
 
     panel = study.panel
     remote = np.array([lc.components for lc in study.load_cases])
-    sol = solve_panel(pm, study.material.youngs_modulus, study.material.poisson_ratio, remote, panel.edges,
+    sol = solve_panel(pm, study.material.elastic, remote, panel.edges,
                       panel.width, panel.height, thickness=panel.thickness,
                       fields=load_fields(panel, study.load_cases))
     vals = measure_values(sol.cutout, study.measure.stress)
@@ -117,35 +118,15 @@ def sample_stress(pm, study: Study, cutout: Cutout) -> tuple[np.ndarray, float]:
 
 
 # --- the geometric rows ---------------------------------------------------------------------------------------
-def geometry_rows(cutout: Cutout, panel: Panel, cons: Constraints) -> np.ndarray:
-    """The geometric constraints as rows (<= 0 met), each in outline sizes (sqrt of the area) or relative: the
-    distance of every outline point to every panel edge against the ligament, the access envelope's points
-    inside the outline (radially: the outline is star-shaped about its centre), the curvature against the
-    smallest radius, and the area limits. Smooth in the radii, unlike the single worst value of each."""
-    size = math.sqrt(max(cutout.area, 1e-12))
-    p = cutout.polygon(360).T
-    need = cons.min_ligament or 0.0
-    gaps = np.concatenate([p[0], p[1], panel.width - p[0], panel.height - p[1]])
-    rows = [(need - gaps) / size]
-    if cons.min_radius is not None:
-        k = cutout.sampling.curvature[::8] * cons.min_radius
-        rows += [k - 1.0, -k - 1.0]
-    if cons.access is not None:
-        env = cons.access.polygon(cutout.center, cons.clearance)
-        import shapely
+def geometry_rows(cutout: Cutout, study: Study) -> np.ndarray:
+    """The geometric requirements as smooth rows (<= 0 met) for the linearisation: every geometric check's
+    ``linear_rows`` (the ligament of every outline point to every panel edge, the curvature against the smallest
+    radius, the access envelope's points inside the outline, the area limits). Smooth in the radii, unlike the single
+    worst value of each requirement."""
+    from holeshape.checks import registered
 
-        q = np.asarray(shapely.segmentize(env, max(env.length / 128.0, 1e-9)).exterior.coords).T
-        c, s = math.cos(math.radians(cutout.rotation)), math.sin(math.radians(cutout.rotation))
-        dx, dy = q[0] - cutout.center[0], q[1] - cutout.center[1]
-        lx, ly = c * dx + s * dy, -s * dx + c * dy
-        r = cutout.shape._radius(np.mod(np.arctan2(ly, lx), 2 * math.pi))
-        rows.append((np.hypot(lx, ly) - r) / size)
-    a = cutout.area
-    if cons.min_area is not None:
-        rows.append(np.array([(cons.min_area - a) / cons.min_area]))
-    if cons.max_area is not None:
-        rows.append(np.array([(a - cons.max_area) / cons.max_area]))
-    return np.concatenate(rows)
+    rows = [cls.linear_rows(study, cutout) for cls in registered("geometry") if cls.applies(study)]
+    return np.concatenate([np.atleast_1d(r) for r in rows if r is not None] or [np.zeros(0)])
 
 
 # --- the linear programme -------------------------------------------------------------------------------------
@@ -179,7 +160,7 @@ class Point:
 
     x: np.ndarray
     params: dict
-    rec: dict
+    rec: TrialRecord
     cutout: Cutout
     pm: object
     stress: np.ndarray  # (n, m) MPa
@@ -187,8 +168,7 @@ class Point:
 
     @property
     def acceptable(self) -> bool:
-        return self.rec.get("state") == "complete" and bool(self.rec["user_attrs"].get("feasible")) and \
-            all(v <= 0 for v in self.rec["constraints"].values())
+        return self.rec.acceptable
 
 
 class Refinement:
@@ -199,7 +179,7 @@ class Refinement:
     searched dimensions, in order. Chains restart from the best design with a smaller trust region once they
     converge, so the whole budget is used."""
 
-    def __init__(self, study: Study, space, objective, record: Callable[[dict], bool], names: list[str],
+    def __init__(self, study: Study, space, objective, record: Callable[[TrialRecord], bool], names: list[str],
                  seed: int = 0):
         self.study, self.space, self.objective, self.record = study, space, objective, record
         self.names = names
@@ -216,48 +196,43 @@ class Refinement:
     def full(self, x: np.ndarray, base_params: dict) -> Point | None:
         """Evaluate a design in full and record it; None when the budget is spent."""
         params = self._params(x, base_params)
-        rec, fields = self.objective.evaluate(params, keep=True)
+        rec, ev = self.objective.evaluate(params)
         if not self.record(rec):
             return None
-        if fields is None:
+        if ev is None:
             return Point(x, params, rec, None, None, None, math.inf)
-        cutout, _ = self.space.decode(params)
+        cutout = self.space.decode(params)
         from holeshape.evaluate import measure_values
 
+        fields = ev.fields
         stress = measure_values(fields.solution.cutout, self.study.measure.stress)
-        pt = Point(np.asarray(x, float), params, rec, cutout, fields.panel_mesh, stress, float(rec["value"]))
+        pt = Point(np.asarray(x, float), params, rec, cutout, fields.panel_mesh, stress, rec.sampler_value)
         if pt.acceptable and (self.best is None or pt.peak < self.best.peak):
             self.best = pt
         return pt
 
-    def probe(self, base: Point, x: np.ndarray) -> tuple[dict, np.ndarray | None] | None:
+    def probe(self, base: Point, x: np.ndarray) -> tuple[TrialRecord, np.ndarray | None] | None:
         """One finite-difference probe on ``base``'s moved mesh, recorded; (record, sample stresses or None when
         the probe is infeasible or failed), or None when the budget is spent."""
-        from holeshape.search.constraints import constraint_values
+        from holeshape.checks import assess
 
         params = self._params(x, base.params)
-        rec: dict = {"params": params, "constraints": {},
-                     "user_attrs": {"probe": True, "note": PROBE_NOTE, "feasible": False}}
+        note = {"probe": True, "note": PROBE_NOTE}
         stress = None
         try:
-            cutout, _ = self.space.decode(params)
-            cons, reasons = constraint_values(cutout, self.study.panel, self.study.constraints,
-                                              self.study.material.density)
-            rec["constraints"] = cons
-            rec["user_attrs"].update(area_mm2=cutout.area, min_radius_mm=cutout.min_radius)
-            if reasons:
-                rec["state"] = "infeasible"
-                rec["value"] = 1.0e9
-                rec["user_attrs"]["reason"] = "; ".join(reasons)
+            cutout = self.space.decode(params)
+            geo = assess(self.study, cutout, accuracy="draft", purpose="search")
+            attrs = {**note, "area_mm2": cutout.area, "min_radius_mm": cutout.min_radius}
+            if not geo.meets_every_requirement:
+                rec = TrialRecord.refused(params, geo.constraint_values(), "; ".join(geo.reasons()), **attrs)
             else:
                 stress, peak = sample_stress(moved_mesh(base.pm, base.cutout, cutout, self.study.panel),
                                              self.study, cutout)
-                rec["state"] = "complete"
-                rec["value"] = peak
-                rec["user_attrs"].update(peak_stress_mpa=peak, reason=PROBE_REASON)
+                rec = TrialRecord(params, "complete", value=peak, constraints=geo.constraint_values(),
+                                  attrs={**attrs, "peak_stress_mpa": peak, "reason": PROBE_REASON})
         except HoleshapeError as err:  # geometry, mesh and solve errors belong to the design
-            rec["state"] = "failed"
-            rec["user_attrs"]["failure"] = f"{type(err).__name__}: {' '.join(str(err).split())}"
+            rec = replace(TrialRecord.failure(params, f"{type(err).__name__}: {' '.join(str(err).split())}", **note),
+                          feasible=False)
         if not self.record(rec):
             return None
         return rec, stress
@@ -268,7 +243,7 @@ class Refinement:
         n = len(self.names)
         ref = float(base.stress.max())
         s0 = base.stress.ravel() / ref
-        g0 = geometry_rows(base.cutout, self.study.panel, self.study.constraints)
+        g0 = geometry_rows(base.cutout, self.study)
         js = np.zeros((s0.size, n))
         jg = np.zeros((g0.size, n))
         for i in range(n):
@@ -284,8 +259,8 @@ class Refinement:
                 if stress is None:
                     continue
                 js[:, i] = (stress.ravel() / ref - s0) / (sign * FD_STEP)
-                cut, _ = self.space.decode(rec["params"])
-                jg[:, i] = (geometry_rows(cut, self.study.panel, self.study.constraints) - g0) / (sign * FD_STEP)
+                cut = self.space.decode(rec.params)
+                jg[:, i] = (geometry_rows(cut, self.study) - g0) / (sign * FD_STEP)
                 break
         keep_s = s0 >= STRESS_ROWS_FROM * s0.max()
         keep_g = g0 >= GEOMETRY_ROWS_FROM

@@ -18,15 +18,15 @@ from pathlib import Path
 import numpy as np
 
 from holeshape.errors import GeometryError, HoleshapeError, StorageError
-from holeshape.search.constraints import constraint_values, solved_constraint_values
+from holeshape.goals import GOALS
 from holeshape.search.gradient import chosen_method
 from holeshape.search.space import DesignSpace
-from holeshape.study import ACCURACIES, Measure, Study, split_flat_name
+from holeshape.search.trial import TrialRecord, compact
+from holeshape.study import ACCURACIES, Measure, Study
 from holeshape.studyfile import load_study
 
 log = logging.getLogger("holeshape.search")
 
-INFEASIBLE_VALUE = 1.0e9  # objective recorded for infeasible designs (never solved); samplers rank them by constraints
 SEARCH_ACCURACY = ACCURACIES[0]  # trials are screened at the coarsest level
 TRIAL_TIME_LIMIT_S = 60.0  # per evaluation in a search; a design that needs longer is recorded as failed
 
@@ -73,118 +73,97 @@ def _with_driver(url: str) -> str:
 
 @dataclass(frozen=True)
 class Objective:
-    """Evaluates one point of the design space: constraints, then the draft solve. Returns a record."""
+    """Evaluates one point of the design space: the geometric checks, then the draft solve and the checks a
+    search steers by. Returns a :class:`TrialRecord`."""
 
     study: Study
     space: DesignSpace
     trade_off: bool = False
     cache: dict = field(default_factory=dict, compare=False, hash=False)  # shared results of this run
 
-    def __call__(self, params: dict[str, float]) -> dict:
+    def __call__(self, params: dict[str, float]) -> TrialRecord:
         return self.evaluate(params)[0]
 
-    def evaluate(self, params: dict[str, float], keep: bool = False):
-        """(record, the solved fields of the last mesh level when ``keep`` and the design was solved, else None)."""
+    def evaluate(self, params: dict[str, float]):
+        """(the record, the draft evaluation with its fields when the design was solved, else None)."""
+        from holeshape.checks import assess
         from holeshape.evaluate import evaluate
 
         t0 = time.perf_counter()
-        rec: dict = {"params": dict(params), "user_attrs": {}, "constraints": {}}
-        try:
-            cutout, vals = self.space.decode(params)
-        except GeometryError as err:
-            rec.update(state="infeasible", constraints={"outline": 1.0})
-            rec["user_attrs"].update(feasible=False, reason=str(err))
-            return rec, None
-        cons, reasons = constraint_values(cutout, self.study.panel, self.study.constraints,
-                                          self.study.material.density)
-        rec["constraints"] = cons
-        dims = {k: (list(v) if isinstance(v, (list, tuple)) else v) for k, v in cutout.parameters().items()}
-        rec["user_attrs"].update(area_mm2=cutout.area, dims=dims, min_radius_mm=cutout.min_radius)
-        if reasons:
-            rec["state"] = "infeasible"
-            rec["user_attrs"].update(feasible=False, reason="; ".join(reasons))
-            return rec, None
         study = self.study
         try:
-            out = evaluate(study.panel, study.material, study.load_cases, cutout,
-                           Measure(study.measure.stress, SEARCH_ACCURACY), time_limit_s=TRIAL_TIME_LIMIT_S,
-                           stability=search_stability(study), cache=self.cache, keep_fields=keep)
-            ev, fields = out if keep else (out, None)
+            cutout = self.space.decode(params)
+        except GeometryError as err:
+            return TrialRecord.refused(params, {"outline": 1.0}, " ".join(str(err).split())), None
+        dims = {k: (list(v) if isinstance(v, (list, tuple)) else v) for k, v in cutout.parameters().items()}
+        attrs = {"area_mm2": cutout.area, "dims": dims, "min_radius_mm": cutout.min_radius}
+        geo = assess(study, cutout, accuracy=SEARCH_ACCURACY, purpose="search")
+        if not geo.meets_every_requirement:
+            return TrialRecord.refused(params, geo.constraint_values(), "; ".join(geo.reasons()), **attrs,
+                                       requirements=compact(geo.requirements)), None
+        try:
+            ev = evaluate(study.panel, study.material, study.load_cases, cutout,
+                          Measure(study.measure.stress, SEARCH_ACCURACY), time_limit_s=TRIAL_TIME_LIMIT_S)
+            left = max(1.0, TRIAL_TIME_LIMIT_S - (time.perf_counter() - t0))
+            full = assess(study, cutout, ev, accuracy=SEARCH_ACCURACY, purpose="search", cache=self.cache,
+                          time_limit_s=left)
         except HoleshapeError as err:
             # the project's own errors (mesh, solve, geometry) belong to the design: record it failed, with its
             # reason, and go on; anything else is a bug and stops the study (see run_worker)
-            rec["state"] = "failed"
-            rec["user_attrs"].update(feasible=True, failure=f"{type(err).__name__}: {' '.join(str(err).split())}")
             log.debug("trial failed", exc_info=True)
-            return rec, None
-        post, post_reasons = solved_constraint_values(ev, study.constraints)
-        rec["constraints"].update(post)
-        rec["state"] = "complete"
-        rec["value"] = ev.peak_stress_mpa if self.trade_off else objective_value(ev, study.search.goal)
-        rec["user_attrs"].update(feasible=not post_reasons, peak_stress_mpa=ev.peak_stress_mpa, kt=ev.kt,
-                                 error_estimate_pct=ev.error_estimate_pct, governing=ev.governing_load_case,
-                                 dofs=ev.dofs, seconds=time.perf_counter() - t0)
-        if ev.lowest_margin is not None:
-            rec["user_attrs"]["margin_of_safety"] = ev.lowest_margin
-        if ev.stability is not None:
-            rec["user_attrs"]["buckling_load_factor"] = ev.stability.load_factor
-        if post_reasons:
-            rec["user_attrs"]["reason"] = "; ".join(post_reasons)
-        return rec, fields
-
-
-def search_stability(study: Study):
-    """The stability settings a search trial needs: only when a constraint asks for the buckling factor (the
-    final checks of the recommended design always include it when the study has [stability])."""
-    return study.stability if study.constraints.min_buckling_factor is not None else None
-
-
-def objective_value(ev, goal: str) -> float:
-    """The number a search minimises: the peak stress (MPa), minus the removed area (mm^2) for
-    ``goal = "largest_opening"``, or the reinforcement's volume (mm^3; 0 for a bare opening) for
-    ``goal = "lightest_reinforcement"``."""
-    if goal == "lightest_reinforcement":
-        return 0.0 if ev.reinforcement is None else ev.reinforcement.added_volume_mm3
-    return ev.peak_stress_mpa if goal == "lowest_peak" else -ev.area_mm2
+            return TrialRecord.failure(params, f"{type(err).__name__}: {' '.join(str(err).split())}", **attrs), None
+        value = ev.peak_stress_mpa if self.trade_off else GOALS[study.search.goal].objective(ev, cutout, study)
+        attrs.update(peak_stress_mpa=ev.peak_stress_mpa, kt=ev.kt, error_estimate_pct=ev.error_estimate_pct,
+                     governing=ev.governing_load_case, dofs=ev.dofs, seconds=time.perf_counter() - t0,
+                     requirements=compact(full.requirements))
+        stress = full.result("stress")
+        if stress is not None and stress.lowest_margin is not None:
+            attrs["margin_of_safety"] = stress.lowest_margin
+        stab = full.result("stability")
+        if stab is not None:
+            attrs["buckling_load_factor"] = stab.stability.load_factor
+        if not full.meets_every_requirement:
+            attrs["reason"] = "; ".join(full.reasons())
+        rec = TrialRecord(dict(params), "complete", value=value, constraints=full.constraint_values(),
+                          feasible=full.meets_every_requirement, attrs=attrs)
+        return rec, ev
 
 
 def shown_value(value: float, goal: str) -> str:
     """A trial's objective value as a person reads it."""
-    if goal == "lightest_reinforcement":
-        return f"{value / 1000.0:.2f} cm^3 of reinforcement"
-    return f"{value:.1f} MPa" if goal == "lowest_peak" else f"{-value:.0f} mm^2 removed"
+    return GOALS[goal].shown(value)
 
 
-def _values(rec: dict, trade_off: bool):
-    v = rec.get("value", INFEASIBLE_VALUE)
-    return [v, rec["user_attrs"].get("area_mm2", 0.0)] if trade_off else v
+def _values(rec: TrialRecord, trade_off: bool):
+    v = rec.sampler_value
+    return [v, rec.attrs.get("area_mm2", 0.0)] if trade_off else v
 
 
-def _record(study, trial, rec: dict, trade_off: bool) -> None:
+def _record(study, trial, rec: TrialRecord, trade_off: bool) -> None:
     """Tell the study the outcome of an asked trial."""
     from optuna.trial import TrialState
 
-    for k, v in rec["constraints"].items():
+    for k, v in rec.constraints.items():
         trial.set_constraint(k, float(v))
-    for k, v in rec["user_attrs"].items():
+    for k, v in rec.user_attrs().items():
         trial.set_user_attr(k, v)
-    if rec["state"] == "failed":
+    if rec.state == "failed":
         study.tell(trial, state=TrialState.FAIL)
     else:
         study.tell(trial, _values(rec, trade_off))
 
 
-def add_record(study, space: DesignSpace, rec: dict, trade_off: bool) -> None:
+def add_record(study, space: DesignSpace, rec: TrialRecord, trade_off: bool) -> None:
     """Record an evaluation made outside the sampler (standard shapes, simplex steps) as a finished trial."""
     from optuna.trial import TrialState, create_trial
 
-    failed = rec["state"] == "failed"
+    failed = rec.state == "failed"
     v = None if failed else _values(rec, trade_off)
     study.add_trial(create_trial(
         state=TrialState.FAIL if failed else TrialState.COMPLETE,
         value=None if (failed or trade_off) else v, values=v if (trade_off and not failed) else None,
-        params=rec["params"], distributions=space.distributions(), user_attrs=rec["user_attrs"],
-        constraints=rec["constraints"] or None))
+        params=rec.params, distributions=space.distributions(), user_attrs=rec.user_attrs(),
+        constraints=rec.constraints or None))
 
 
 def finished(study) -> list:
@@ -251,12 +230,12 @@ class BudgetGate:
 OVER_BUDGET = "interrupted: the trial budget was reached by another worker first"
 
 
-def _penalised(rec: dict, reference: float) -> float:
+def _penalised(rec: TrialRecord, reference: float) -> float:
     """The value the simplex sees: the objective of a feasible design; otherwise worse than ``reference`` (the
     best so far, which may be negative: minus an area) in proportion to the summed violation."""
-    viol = sum(max(0.0, v) for v in rec["constraints"].values())
-    if rec["state"] == "complete" and viol <= 0.0:
-        return rec["value"]
+    viol = sum(max(0.0, v) for v in rec.constraints.values())
+    if rec.complete and viol <= 0.0:
+        return rec.sampler_value
     return reference + abs(reference) * (viol or 1.0) + 1.0
 
 
@@ -307,7 +286,7 @@ def run_worker(study_path: str, storage_url: str | None, out_dir: str, study_nam
                 raise
             with gate:
                 if len(finished(study)) >= settings.trials:
-                    rec = {"state": "failed", "constraints": {}, "user_attrs": {"failure": OVER_BUDGET}}
+                    rec = TrialRecord.failure(trial.params, OVER_BUDGET)
                 _record(study, trial, rec, trade_off)
             continue
         if method == "gradient":
@@ -334,8 +313,8 @@ def run_worker(study_path: str, storage_url: str | None, out_dir: str, study_nam
                 return
             add_record(study, space, rec, trade_off)
         pending = _penalised(rec, reference)
-        if rec["state"] == "complete" and rec["user_attrs"].get("feasible"):
-            reference = min(reference, rec["value"])
+        if rec.complete and rec.feasible:
+            reference = min(reference, rec.sampler_value)
 
 
 def _refine(study, study_def: Study, space: DesignSpace, objective: Objective, gate: BudgetGate, worker: int,
@@ -346,7 +325,7 @@ def _refine(study, study_def: Study, space: DesignSpace, objective: Objective, g
 
     trials = study_def.search.trials
 
-    def record(rec: dict) -> bool:
+    def record(rec: TrialRecord) -> bool:
         with gate:
             if len(finished(study)) >= trials:
                 return False
@@ -393,11 +372,9 @@ def local_dimensions(space: DesignSpace) -> list[str]:
     """The dimensions the simplex moves. With the area fixed every design is scaled to it, so one searched length
     is redundant (it only sets a scale that the area then undoes): it is held at the best design's value, which
     keeps the simplex from degenerating along a flat direction."""
-    from holeshape.search.space import LENGTH_PARAMETERS
-
     names = list(space.dimensions)
     if space.constraints.area is not None:
-        lengths = [k for k in names if split_flat_name(k)[0] in LENGTH_PARAMETERS]
+        lengths = space.lengths()
         if len(lengths) >= 2:
             names.remove(lengths[0])
     return names

@@ -1,5 +1,9 @@
 """The design space of a study's cutout: which parameters are searched, their ranges, and how a point of the
-space becomes a placed cutout (scaled to a fixed area where the study fixes one). Lengths mm, angles degrees."""
+space becomes a placed cutout (scaled to a fixed area where the study fixes one). Lengths mm, angles degrees.
+
+The storage knows a parameter by its flat name (:attr:`holeshape.parameters.Param.flat`); everything else works on
+the typed :class:`~holeshape.parameters.Param` keys, and the translation is made here, once.
+"""
 
 from __future__ import annotations
 
@@ -8,9 +12,8 @@ from dataclasses import dataclass
 
 from holeshape.errors import StudyError
 from holeshape.geometry import Cutout
-from holeshape.study import Constraints, CutoutSpec, Range, set_flat
-
-LENGTH_PARAMETERS = ("radius", "a", "b", "length", "width", "corner_radius", "radii")
+from holeshape.parameters import CutoutSpec, Param, Range
+from holeshape.study import Constraints
 
 
 @dataclass(frozen=True)
@@ -19,9 +22,14 @@ class DesignSpace:
     constraints: Constraints
 
     @property
+    def params(self) -> dict[str, Param]:
+        """The searched parameters by flat name (``a``, ``radii[2]``, ``center[0]``), in the study's order."""
+        return {p.flat: p for p in self.spec.ranges}
+
+    @property
     def dimensions(self) -> dict[str, Range]:
-        """Searched parameters by flat name (``a``, ``radii[2]``, ``center[0]``) and their ranges."""
-        return dict(self.spec.ranges)
+        """Searched parameters by flat name and their ranges."""
+        return {p.flat: r for p, r in self.spec.ranges.items()}
 
     def check(self) -> None:
         if not self.dimensions:
@@ -57,42 +65,41 @@ class DesignSpace:
                 else r.min + x * (r.max - r.min)
         return out
 
-    def values(self, params: dict[str, float]) -> dict:
-        """The full parameter set: fixed values of the study plus the searched ones."""
-        vals = {k: (list(v) if isinstance(v, (list, tuple)) else v) for k, v in self.spec.values.items()}
-        for name, v in params.items():
-            set_flat(vals, name, float(v))
-        return vals
+    def point(self, params: dict[str, float]) -> dict[Param, float]:
+        """The typed point of a storage's parameter set."""
+        keys = self.params
+        return {keys[k]: float(v) for k, v in params.items()}
 
-    def decode(self, params: dict[str, float]) -> tuple[Cutout, dict]:
+    def decode(self, params: dict[str, float]) -> Cutout:
         """Build the placed cutout for a point of the space; with a fixed area, scale every length to it.
 
         Raises :class:`~holeshape.errors.GeometryError` when the parameters make no valid outline of the family.
         """
-        vals = self.values(params)
-        cutout = self.spec.build(vals)
+        point = self.point(params)
+        cutout = self.spec.build(point)
         if self.constraints.area is not None:
-            vals.update(scaled_lengths(vals, math.sqrt(self.constraints.area / cutout.area)))
-            cutout = self.spec.build(vals)
-        return cutout, vals
+            cutout = self.spec.build(point, scale=math.sqrt(self.constraints.area / cutout.area))
+        return cutout
 
-
-def scaled_lengths(values: dict, k: float) -> dict:
-    """The length parameters among ``values`` multiplied by ``k`` (lists and tuples element by element, keeping
-    their type): the one rule for scaling a design to an area."""
-    out = {}
-    for key in LENGTH_PARAMETERS:
-        if key in values:
-            v = values[key]
-            out[key] = type(v)(r * k for r in v) if isinstance(v, (list, tuple)) else v * k
-    return out
+    def lengths(self) -> list[str]:
+        """The searched lengths of the outline itself (flat names)."""
+        return [k for k, p in self.params.items() if p.is_length]
 
 
 def scaled_to_area(cutout: Cutout, area: float) -> Cutout:
     """The same outline scaled about its centre to ``area`` (mm^2)."""
+    return scaled(cutout, math.sqrt(area / cutout.area))
+
+
+def scaled(cutout: Cutout, k: float) -> Cutout:
+    """The same outline with every length of its shape times ``k`` about its centre (a row keeps its pitch)."""
     from dataclasses import fields, replace
 
+    from holeshape.parameters import LENGTH_PARAMETERS
+
     current = {f.name: getattr(cutout.shape, f.name) for f in fields(cutout.shape)}
-    shape = replace(cutout.shape, **scaled_lengths(current, math.sqrt(area / cutout.area)))
+    new = {name: (tuple(r * k for r in v) if isinstance(v, tuple) else v * k) for name, v in current.items()
+           if name in LENGTH_PARAMETERS}
+    shape = replace(cutout.shape, **new)
     shape.check()
     return replace(cutout, shape=shape)

@@ -1,0 +1,158 @@
+"""What a search is for: each goal is a registered class (``GOALS``) that knows the number the search minimises,
+how a person reads it, its plot axis, what the study must give for it to make sense, and how a design that sits
+on a solved requirement is moved back along the goal until it passes (the end of a run).
+
+The objective is always "lower is better": the peak (MPa), minus the removed area (mm^2), the reinforcement's
+volume (mm^3).
+"""
+
+from __future__ import annotations
+
+from abc import ABC, abstractmethod
+from typing import Any, ClassVar
+
+
+class Goal(ABC):
+    name: ClassVar[str] = ""
+    aim: ClassVar[str] = ""  # "the lowest peak stress", as the report's opening says it
+    label: ClassVar[str] = ""  # the goal in one line
+    axis_label: ClassVar[str] = ""  # the search history's y axis
+    grows: ClassVar[bool] = False  # the quantity a person reads grows as the objective falls (area)
+    retreat_note: ClassVar[str] = ""  # how a design is moved back along the goal
+
+    @abstractmethod
+    def objective(self, evaluation, cutout, study) -> float:
+        """The number the search minimises for one solved design."""
+
+    def readable(self, value: float) -> float:
+        """The quantity a person reads from an objective value (in its unit)."""
+        return value
+
+    @abstractmethod
+    def shown(self, value: float) -> str:
+        """An objective value as a person reads it, with its unit."""
+
+    def requires(self, study) -> str | None:
+        """Why this goal cannot be used by the study (None: it can)."""
+        return None
+
+    def retreat(self, spec, point: dict, t: float, ranges: dict) -> tuple[dict, float] | None:
+        """The search point (typed :class:`~holeshape.parameters.Param` keys) moved back along the goal by ``t``
+        in (0, 1] (1: as far as the goal allows) and the scale of the outline's lengths that goes with it, or
+        None where the ranges end first. None for a goal whose optimum does not sit on a requirement by
+        construction (the lowest peak)."""
+        return None
+
+    def better(self, a: dict[str, Any], b: dict[str, Any]) -> str:
+        """How design ``a`` compares with ``b`` (dicts with ``peak_stress_mpa`` and ``area_mm2``), in words with the
+        direction stated: "12.3 % lower peak than" or "8.0 % more area removed than"."""
+        return relative(a["peak_stress_mpa"], b["peak_stress_mpa"], "peak", "lower", "higher")
+
+
+def relative(a: float, b: float, what: str, less: str, more: str) -> str:
+    """``a`` against ``b`` as "x.y % <less|more> <what> than" (the direction in words, never a signed number)."""
+    if b == 0:
+        return f"the same {what} as"
+    pct = 100.0 * (a / b - 1.0)
+    if abs(pct) < 0.05:
+        return f"the same {what} (within 0.05 %) as"
+    return f"{abs(pct):.1f} % {less if pct < 0 else more} {what} than"
+
+
+class LowestPeak(Goal):
+    name = "lowest_peak"
+    aim = "the lowest peak stress"
+    label = "lowest peak stress within every constraint"
+    axis_label = "peak stress over all load cases (MPa)"
+
+    def objective(self, evaluation, cutout, study) -> float:
+        return evaluation.peak_stress_mpa
+
+    def shown(self, value: float) -> str:
+        return f"{value:.1f} MPa"
+
+
+class LargestOpening(Goal):
+    name = "largest_opening"
+    aim = "the largest removed area"
+    label = "largest opening within every constraint"
+    axis_label = "removed area (mm^2)"
+    grows = True
+    retreat_note = "the opening scaled down about its centre (every length of the outline; a row keeps its pitch)"
+    SPAN = 0.25  # t = 1 scales the outline to 75 % of its size
+
+    def objective(self, evaluation, cutout, study) -> float:
+        return -cutout.area
+
+    def readable(self, value: float) -> float:
+        return -value
+
+    def shown(self, value: float) -> str:
+        return f"{-value:.0f} mm^2 removed"
+
+    def requires(self, study) -> str | None:
+        c = study.constraints
+        if c.area is not None:
+            return (f'search.goal = "largest_opening" cannot be combined with constraints.area = {c.area!r} (a fixed'
+                    " area leaves nothing to enlarge); use min_area / max_area")
+        if c.min_margin is None and c.min_buckling_factor is None:
+            return ('search.goal = "largest_opening" needs a structural limit that bounds the opening: give'
+                    " constraints.min_margin (against material.allowable_stress) and/or"
+                    " constraints.min_buckling_factor (with [stability])")
+        return None
+
+    def retreat(self, spec, point: dict, t: float, ranges: dict) -> tuple[dict, float] | None:
+        k = 1.0 - self.SPAN * t
+        if any(p.is_length and point[p] * k < r.min for p, r in ranges.items()):
+            return None
+        return dict(point), k  # every length of the outline, searched or fixed, times k
+
+    def better(self, a, b) -> str:
+        return relative(a["area_mm2"], b["area_mm2"], "area removed", "less", "more")
+
+
+class LightestReinforcement(Goal):
+    name = "lightest_reinforcement"
+    aim = "the least reinforcement (by volume, hence mass)"
+    label = "least reinforcement that meets every requirement"
+    axis_label = "reinforcement volume (cm^3)"
+    retreat_note = "every searched size of the reinforcement enlarged in proportion"
+    SPAN = 1.0  # t = 1 doubles the searched sizes
+
+    def objective(self, evaluation, cutout, study) -> float:
+        r = cutout.reinforcement
+        return 0.0 if r is None else r.sizes(cutout, study.panel.thickness).volume_mm3
+
+    def readable(self, value: float) -> float:
+        return value / 1000.0
+
+    def shown(self, value: float) -> str:
+        return f"{value / 1000.0:.2f} cm^3 of reinforcement"
+
+    def requires(self, study) -> str | None:
+        c = study.constraints
+        if study.cutout.reinforcement is None or not any(p.part == "reinforcement" for p in study.cutout.ranges):
+            return ('search.goal = "lightest_reinforcement" needs a [reinforcement] table with at least one size'
+                    " given as a range ({min = ..., max = ...}) to search")
+        if c.min_margin is None and c.min_buckling_factor is None:
+            return ('search.goal = "lightest_reinforcement" needs a requirement the reinforcement must meet: give'
+                    " constraints.min_margin and/or constraints.min_buckling_factor")
+        return None
+
+    def retreat(self, spec, point: dict, t: float, ranges: dict) -> tuple[dict, float] | None:
+        k = 1.0 + self.SPAN * t
+        out = dict(point)
+        for p, r in ranges.items():
+            if p.part == "reinforcement" and p.name != "youngs_modulus":
+                if point[p] * k > r.max:
+                    return None
+                out[p] = point[p] * k
+        return out, 1.0
+
+    def better(self, a, b) -> str:
+        va = (a.get("reinforcement") or {}).get("added_volume_mm3", 0.0)
+        vb = (b.get("reinforcement") or {}).get("added_volume_mm3", 0.0)
+        return relative(va, vb, "reinforcement", "less", "more") if vb else super().better(a, b)
+
+
+GOALS: dict[str, Goal] = {g.name: g for g in (LowestPeak(), LargestOpening(), LightestReinforcement())}
