@@ -35,15 +35,6 @@ def bare_document(doc: dict) -> dict:
     return out
 
 
-def rank_key(goal: str):
-    """How compare ranks its rows for the study's goal."""
-    if goal == "largest_opening":
-        return lambda r: -r["area_mm2"]
-    if goal == "lightest_reinforcement":  # no reinforcement (a bare opening that passes) first, then by volume
-        return lambda r: ((r.get("reinforcement") or {}).get("added_volume_mm3", 0.0), r["peak_stress_mpa"])
-    return lambda r: r["peak_stress_mpa"]
-
-
 def _r(lo: float, hi: float) -> dict:
     lo, hi = float(lo), float(hi)
     return {"min": round(min(lo, hi), 4), "max": round(max(lo, hi), 4)}
@@ -158,22 +149,16 @@ def run_compare(study_path: str, out: str, workers: int = 1, progress: bool = Tr
             "buckling_load_factor", "reinforcement")}})
         if rows[-1]["reinforcement"] is None:
             rows[-1].pop("reinforcement")
-    largest = study.search.goal == "largest_opening"
+    goal = GOALS[study.search.goal]
     # ranked by the study's goal: lowest peak first, largest removed area first, or least reinforcement first
-    ok = sorted((r for r in rows if r["feasible"]), key=rank_key(study.search.goal))
+    ok = sorted((r for r in rows if r["feasible"]), key=goal.rank_key)
     if not ok:
         raise SearchError("no shape family found a design that meets the constraints: " +
                              "; ".join(f"{r['shape']}: {r['reason']}" for r in rows))
     circle = next((r for r in rows if r["shape"] == "circle" and r["feasible"]), None)
-    goal = GOALS[study.search.goal]
     for rank, r in enumerate(ok, 1):
         r["rank"] = rank
-        if circle is None:
-            r["improvement_over_circle_pct"] = None
-        elif largest:  # more area removed than the largest feasible circle
-            r["improvement_over_circle_pct"] = 100 * (r["area_mm2"] / circle["area_mm2"] - 1)
-        else:  # lower peak than the best circle
-            r["improvement_over_circle_pct"] = 100 * (1 - r["peak_stress_mpa"] / circle["peak_stress_mpa"])
+        r["improvement_over_circle_pct"] = None if circle is None else goal.improvement_pct(r, circle)
         r["against_circle"] = None if circle is None or r is circle else f"{goal.better(r, circle)} the best circle"
     winner = ok[0]["shape"]
     src = out_dir / folder_name(winner)

@@ -137,7 +137,7 @@ class Choice:
     reason: str
 
 
-def choose(checks: FinalChecks, study, space, usable, bar=None) -> Choice:
+def choose(checks: FinalChecks, study, space, usable, bar=None, standard_count: int = 0) -> Choice:
     """The best feasible trials checked at the final level until one passes; when none does and the failures are
     the ones the goal can move away from, the best moved back along the goal until it passes; then the lower of it
     and the passing standard shapes. ``usable``: the passing standard shapes, or a callable giving them (they are
@@ -165,8 +165,10 @@ def choose(checks: FinalChecks, study, space, usable, bar=None) -> Choice:
     candidates = ([own] if own is not None else []) + list(usable)
     nearest = None if own is not None or not misses else min(misses, key=lambda c: _miss_size(c))
     if not candidates:
-        return Choice(None, None, nearest, tuple(misses), "nothing the search found, and no standard shape, meets"
-                      f" every requirement at the {FINAL_ACCURACY} level")
+        std = "no standard shape applies (no access envelope or area requirement to size one by)" \
+            if standard_count == 0 else "none of the standard shapes meets them either"
+        return Choice(None, None, nearest, tuple(misses), f"nothing the search found meets every requirement at the"
+                      f" {FINAL_ACCURACY} level, and {std}")
     best = min(candidates, key=lambda c: c.score)
     return Choice(best, own, nearest, tuple(misses), _why(best, own, nearest, list(usable), goal, family))
 

@@ -27,7 +27,7 @@ from holeshape.final import (
 from holeshape.progress import QUIET, Progress
 from holeshape.record import CaseCheck, DesignCheck, LevelCheck, RunInputs, RunRecord, TrialCounts
 from holeshape.search.runner import SEARCH_ACCURACY, finished, is_feasible
-from holeshape.search.summary import failure_reasons, nearest_misses, trial_reasons
+from holeshape.search.summary import bound_advice, failure_reasons, nearest_misses, trial_reasons
 from holeshape.study import ACCURACIES, Measure
 
 
@@ -220,9 +220,9 @@ def finish_run(study_def, study, space, baselines, out_dir: Path, storage_name: 
 
         if side is None:
             base_rows, usable = check_standard_shapes(checks, baselines, bar)
-            choice = choose(checks, study, space, usable, bar)
+            choice = choose(checks, study, space, usable, bar, len([b for b in baselines if b[1] is not None]))
         else:
-            choice = choose(checks, study, space, side_result, bar)
+            choice = choose(checks, study, space, side_result, bar, len([b for b in baselines if b[1] is not None]))
             usable, base_rows = side_result(), got["rows"]
             if got["validation"] is not None:
                 files.write_json(out_dir / "validation.json", got["validation"])
@@ -240,7 +240,7 @@ def finish_run(study_def, study, space, baselines, out_dir: Path, storage_name: 
                       trials_finished=len(finished(study)), warnings=study_def.warnings,
                       trial_reasons=tuple(trial_reasons(study)) + tuple(failure_reasons(study)))
         if choice.best is None:
-            return _no_design(study_def, study, choice, base_rows, out_dir, t0, common, bar)
+            return _no_design(study_def, study, space, choice, base_rows, out_dir, t0, common, bar)
         best = choice.best
         if best.evaluation.fields is None:  # a standard shape won: its fields for the plots and the VTK file
             bar.grow(1)
@@ -299,11 +299,11 @@ def _write(record: RunRecord, out_dir: Path, bar) -> dict:
     return summary
 
 
-def _no_design(study_def, study, choice, base_rows, out_dir: Path, t0: float, common: dict, bar) -> dict:
+def _no_design(study_def, study, space, choice, base_rows, out_dir: Path, t0: float, common: dict, bar) -> dict:
     """The record of a run with no answer: written in full, then NoDesignError."""
     misses = [{**_checked_miss(c), "level": FINAL_ACCURACY} for c in choice.misses]
     misses += nearest_misses(study)
-    advice = []
+    advice = bound_advice(misses, space)
     for c in choice.misses:
         advice += [a for a in c.assessment.verdict().advice if a not in advice]
     for g in common["trial_reasons"]:
@@ -337,7 +337,7 @@ def _advice_for(group: dict) -> list[str]:
 
     kind = group.get("kind", "")
     if kind == "margin":
-        return [ADVICE_BARE + "; or accept a lower margin only where the applicable code allows"]
+        return [ADVICE_BARE]
     if kind == "buckling":
         return [BUCKLING]
     if kind in ("geometry", "area", "mass"):

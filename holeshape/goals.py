@@ -18,6 +18,7 @@ class Goal(ABC):
     label: ClassVar[str] = ""  # the goal in one line
     axis_label: ClassVar[str] = ""  # the search history's y axis
     grows: ClassVar[bool] = False  # the quantity a person reads grows as the objective falls (area)
+    smooth: ClassVar[bool] = False  # the free-form gradient refinement applies (it lowers the peak only)
     retreat_note: ClassVar[str] = ""  # how a design is moved back along the goal
 
     @abstractmethod
@@ -43,6 +44,15 @@ class Goal(ABC):
         construction (the lowest peak)."""
         return None
 
+    def rank_key(self, row: dict[str, Any]) -> tuple:
+        """How a comparison of designs (dicts with ``peak_stress_mpa``, ``area_mm2``, ``reinforcement``) ranks them
+        for this goal, best first."""
+        return (row["peak_stress_mpa"],)
+
+    def improvement_pct(self, a: dict[str, Any], b: dict[str, Any]) -> float:
+        """How much better ``a`` is than ``b`` in this goal's terms, percent (positive: better)."""
+        return 100.0 * (1.0 - a["peak_stress_mpa"] / b["peak_stress_mpa"])
+
     def better(self, a: dict[str, Any], b: dict[str, Any]) -> str:
         """How design ``a`` compares with ``b`` (dicts with ``peak_stress_mpa`` and ``area_mm2``), in words with the
         direction stated: "12.3 % lower peak than" or "8.0 % more area removed than"."""
@@ -60,6 +70,7 @@ def relative(a: float, b: float, what: str, less: str, more: str) -> str:
 
 
 class LowestPeak(Goal):
+    smooth = True  # the peak is what the gradient refinement lowers
     name = "lowest_peak"
     aim = "the lowest peak stress"
     label = "lowest peak stress within every constraint"
@@ -107,6 +118,12 @@ class LargestOpening(Goal):
             return None
         return dict(point), k  # every length of the outline, searched or fixed, times k
 
+    def rank_key(self, row) -> tuple:
+        return (-row["area_mm2"],)
+
+    def improvement_pct(self, a, b) -> float:
+        return 100.0 * (a["area_mm2"] / b["area_mm2"] - 1.0)
+
     def better(self, a, b) -> str:
         return relative(a["area_mm2"], b["area_mm2"], "area removed", "less", "more")
 
@@ -148,6 +165,10 @@ class LightestReinforcement(Goal):
                     return None
                 out[p] = point[p] * k
         return out, 1.0
+
+    def rank_key(self, row) -> tuple:
+        # no reinforcement at all (a bare opening that passes) first, then by volume, then by peak
+        return ((row.get("reinforcement") or {}).get("added_volume_mm3", 0.0), row["peak_stress_mpa"])
 
     def better(self, a, b) -> str:
         va = (a.get("reinforcement") or {}).get("added_volume_mm3", 0.0)

@@ -171,6 +171,13 @@ _GMSH_READY = False
 MAX_CUTOUT_SEGMENTS = 20000  # beyond this a single evaluation would take minutes: refuse rather than hang
 
 
+def from_gmsh(err: BaseException) -> bool:
+    """Whether an error came from the mesher itself: gmsh's Python API raises a plain ``Exception`` with its last
+    error message (a geometry it cannot mesh belongs to the design). Anything else raised in the meshing code, a
+    subclass (TypeError, IndexError, ...), is a bug of ours and must not pass for a failed design."""
+    return type(err) is Exception
+
+
 def gmsh_session():
     """The process's gmsh instance with every option at its default (options outlive ``gmsh.clear()``, so a size
     limit set by one caller would silently coarsen the next caller's mesh)."""
@@ -304,9 +311,9 @@ def mesh_panel(width: float, height: float, cutout: Cutout, region: Region, spec
             tris.append(enodes[0])
             if k == 1:
                 n_ring = len(enodes[0]) // 3
-    except MeshError:
-        raise
-    except Exception as err:  # gmsh raises bare Exception
+    except Exception as err:
+        if not from_gmsh(err):
+            raise
         raise MeshError(f"gmsh could not mesh the panel around the {cutout.family} cutout: {err}") from err
     finally:
         gmsh.clear()
@@ -377,7 +384,9 @@ def _mesh_row(width: float, height: float, cutout: Cutout, region: Region, spec:
         _generate(gmsh, h_max)
         node_tags, coords, _ = gmsh.model.mesh.getNodes()
         etypes, _, enodes = gmsh.model.mesh.getElements(2, surface)
-    except Exception as err:  # gmsh raises bare Exception
+    except Exception as err:
+        if not from_gmsh(err):
+            raise
         raise MeshError(f"gmsh could not mesh the panel around the row of {cutout.family} cutouts: {err}") from err
     finally:
         gmsh.clear()

@@ -146,3 +146,23 @@ def test_a_bug_or_ctrl_c_stops_the_study_and_keeps_completed_trials(tmp_path, ca
     capsys.readouterr()
     counted = [t for t in _journal_trials(out) if t.state == TrialState.COMPLETE]
     assert len(counted) == 6
+
+
+def test_a_bug_in_our_own_meshing_code_is_exit_1_not_a_failed_design(tmp_path, capsys, monkeypatch):
+    # gmsh's own errors (a plain Exception) belong to the design and become MeshError (exit 3, or a failed trial);
+    # an error of any other type raised in the meshing code is a bug and must surface as one
+    import holeshape.mesh as mesh_module
+
+    def broken(*args, **kwargs):
+        raise IndexError("a bug in the size field")
+
+    monkeypatch.setattr(mesh_module, "_size_field", broken)
+    assert main(["check", str(FIXTURE), "--accuracy", "draft"]) == 1
+    assert "internal error (IndexError)" in _one_line(capsys)
+
+    def gmsh_refuses(*args, **kwargs):
+        raise Exception("the mesher's own complaint")  # what gmsh's Python API raises
+
+    monkeypatch.setattr(mesh_module, "_size_field", gmsh_refuses)
+    assert main(["check", str(FIXTURE), "--accuracy", "draft"]) == 3
+    assert "gmsh could not mesh" in _one_line(capsys)

@@ -94,3 +94,18 @@ def limit_value(r) -> str:
     if not r.unit and r.limit == 1.0 and r.relation == ">=":
         return "yes"
     return f"{r.relation} {r.limit:g}{unit}"
+
+
+def stored_value(row: dict, v, limit: bool = False) -> str:
+    """A value of a stored requirement row (a dict with its ``kind`` and ``unit``), as :func:`requirement_value`
+    reads a live one; ``limit`` for the required value (as the study gave it)."""
+    if v is None:
+        return "-"
+    kind, unit = row.get("kind", ""), row.get("unit", "")
+    if kind == "margin":
+        return f"{v:+g}" if limit else f"{v:+.3f}"
+    if limit:
+        return f"{v:g}{(' ' + unit) if unit else ''}"
+    if kind == "buckling":
+        return f"{v:.3f}"
+    return f"{v:.4g}{(' ' + unit) if unit else ''}"

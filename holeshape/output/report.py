@@ -10,8 +10,8 @@ import json
 from pathlib import Path
 
 from holeshape.goals import GOALS
-from holeshape.output.numbers import limit_value, requirement_value, sig
-from holeshape.output.page import Page, describe_constraints, describe_params, render_table
+from holeshape.output.numbers import limit_value, requirement_value, sig, stored_value
+from holeshape.output.page import Page, describe_constraints, describe_params, describe_value, render_table
 from holeshape.record import DesignCheck, RunInputs, RunRecord, SweepRecord
 
 SECTIONS = ("The job", "Study inputs", "Recommendation", "Comparison", "Stress", "Stability", "Evidence of accuracy",
@@ -181,8 +181,6 @@ def section_inputs(page: Page, inputs: RunInputs, rec: RunRecord | None = None) 
         page.table(cons, [("constraint", "requirement"), ("value", "value")])
     section_search(page, inputs, rec)
     if inputs.reinforcement:
-        from holeshape.output.page import describe_value
-
         page.table([{"key": k, "value": describe_value(v)} for k, v in inputs.reinforcement.items()],
                    [("key", "reinforcement"), ("value", "value (mm, MPa)")])
     stab_in = inputs.stability
@@ -283,10 +281,10 @@ def section_no_design(page: Page, rec: RunRecord) -> None:
                 continue
             rng = ""
             if "lowest" in g:
-                lo, hi = _value(g, g["lowest"]), _value(g, g["highest"])
+                lo, hi = stored_value(g, g["lowest"]), stored_value(g, g["highest"])
                 rng = lo if lo == hi else f"{lo} to {hi}"
             rows.append({"reason": g["requirement"], "trials": g["trials"], "values": rng,
-                         "limit": f"{g.get('relation', '')} {_value(g, g.get('limit'))}".strip()})
+                         "limit": f"{g.get('relation', '')} {stored_value(g, g.get('limit'), limit=True)}".strip()})
         page.para("Designs refused, by the requirement they missed (the search's draft level):")
         page.table(rows, [("reason", "requirement missed"), ("trials", "trials"), ("values", "values found"),
                           ("limit", "required")])
@@ -298,23 +296,13 @@ def section_no_design(page: Page, rec: RunRecord) -> None:
             for r in m["missed"]:
                 rows.append({"design": f"{who} ({m.get('level', 'draft')})", "params": describe_params(
                     {k: v for k, v in m["params"].items() if not isinstance(v, str)}),
-                    "missed": r["label"], "value": _value(r, r.get("value")),
-                    "limit": "" if r.get("limit") is None else f"{r['relation']} {_value(r, r['limit'])}"})
+                    "missed": r["label"], "value": stored_value(r, r.get("value")),
+                    "limit": "" if r.get("limit") is None else
+                    f"{r['relation']} {stored_value(r, r['limit'], limit=True)}"})
         page.table(rows, [("design", "design (level)"), ("params", "parameters"), ("missed", "misses"),
                           ("value", "value"), ("limit", "required")])
     if rec.advice:
         page.para("What to change: " + "; ".join(rec.advice) + ".")
-
-
-def _value(r: dict, v) -> str:
-    if v is None:
-        return "-"
-    kind, unit = r.get("kind", ""), r.get("unit", "")
-    if kind == "margin":
-        return f"{v:+.3f}"
-    if kind == "buckling":
-        return f"{v:.3f}"
-    return f"{v:.4g}{(' ' + unit) if unit else ''}"
 
 
 def section_bare_opening(page: Page, b: DesignCheck) -> None:
@@ -365,6 +353,7 @@ def section_comparison(page: Page, rec: RunRecord) -> None:
         other = {"peak_stress_mpa": r.peak_stress_mpa, "area_mm2": r.area_mm2,
                  "reinforcement": None if r.added_volume_mm3 is None else {"added_volume_mm3": r.added_volume_mm3}}
         note = "" if mine is None or r.peak_stress_mpa is None else \
+            "the recommended design" if b.trial is None and r.shape == b.shape and r.params == b.params else \
             f"the recommended design has {goal.better(mine, other)} it"
         rows.append({"shape": f"standard {r.shape.replace('_', ' ')}", "peak_stress_mpa": r.peak_stress_mpa,
                      "kt": r.kt, "area_mm2": r.area_mm2, "buckling_load_factor": r.buckling_load_factor,

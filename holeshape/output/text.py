@@ -9,7 +9,7 @@ import textwrap
 from holeshape import cautions
 from holeshape.checks.base import Requirement, Section, verdict
 from holeshape.evaluate import STRESS_LABELS
-from holeshape.output.numbers import fmt, limit_value, requirement_value
+from holeshape.output.numbers import fmt, limit_value, requirement_value, stored_value
 from holeshape.record import RunRecord
 
 WIDTH = 118
@@ -216,8 +216,10 @@ def comparison_lines(rec: RunRecord) -> list[str]:
                  "reinforcement": None if row.added_volume_mm3 is None else {"added_volume_mm3": row.added_volume_mm3}}
         mass = "" if row.added_mass_kg is None else f", reinforcement {row.added_mass_kg:.4f} kg"
         state = "meets every requirement" if row.feasible else f"FAILS: {row.reason}"
+        than = "it is the recommended design" if b.trial is None and row.shape == b.shape and \
+            row.params == b.params else f"the recommended design has {goal.better(mine, other)} it"
         lines += wrap("", f"standard {name}: {row.peak_stress_mpa:.2f} MPa, area {row.area_mm2:.0f} mm^2{mass};"
-                      f" {state}; the recommended design has {goal.better(mine, other)} it")
+                      f" {state}; {than}")
     return lines
 
 
@@ -237,9 +239,9 @@ def no_design_summary(rec: RunRecord) -> str:
                 continue
             rng = ""
             if "lowest" in g:
-                lo, hi = _val(g, g["lowest"]), _val(g, g["highest"])
+                lo, hi = stored_value(g, g["lowest"]), stored_value(g, g["highest"])
                 rng = f": {lo}" if lo == hi else f": {lo} to {hi}"
-                rng += f" (required {g['relation']} {_val(g, g['limit'])})"
+                rng += f" (required {g['relation']} {stored_value(g, g['limit'], limit=True)})"
             lines.append(f"    {g['trials']:>5} trials  {g['requirement']}{rng}")
     if rec.nearest_misses:
         lines += ["", "  nearest misses:"]
@@ -248,8 +250,9 @@ def no_design_summary(rec: RunRecord) -> str:
             dims = ", ".join(f"{k} = {_num(v)}" for k, v in m["params"].items() if not isinstance(v, str))
             lines += wrap("", f"{who} ({m.get('level', 'draft')} level): {dims}")
             for r in m["missed"]:
-                got = "-" if r.get("value") is None else _val(r, r["value"])
-                need = "" if r.get("limit") is None else f", required {r['relation']} {_val(r, r['limit'])}"
+                got = "-" if r.get("value") is None else stored_value(r, r["value"])
+                need = "" if r.get("limit") is None else \
+                    f", required {r['relation']} {stored_value(r, r['limit'], limit=True)}"
                 lines.append(f"{INDENT}misses {r['label']}: {got}{need}")
     if rec.baselines:
         lines += ["", "  standard shapes at the fine level:"]
@@ -260,17 +263,6 @@ def no_design_summary(rec: RunRecord) -> str:
         lines += wrap("to change", a)
     lines += [""] + wrap("CAUTION", rec.cautions or cautions(False))
     return "\n".join(lines)
-
-
-def _val(r: dict, v) -> str:
-    kind, unit = r.get("kind", ""), r.get("unit", "")
-    if v is None:
-        return "-"
-    if kind == "margin":
-        return f"{v:+.3f}"
-    if kind == "buckling":
-        return f"{v:.3f}"
-    return f"{v:.4g}{(' ' + unit) if unit else ''}"
 
 
 def sweep_lines(res: dict) -> list[str]:

@@ -53,7 +53,9 @@ def not_applicable(study: Study) -> str | None:
         return "a reinforced opening is searched by the sampler"
     if spec.several:
         return "several openings are searched by the sampler"
-    if study.search.goal != "lowest_peak":
+    from holeshape.goals import GOALS
+
+    if not GOALS[study.search.goal].smooth:
         return f"it lowers the peak stress; search.goal = {study.search.goal!r} is searched by the sampler"
     if not _searched_radii(study):
         return "no radius of the spline is searched"

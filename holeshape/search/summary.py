@@ -60,6 +60,24 @@ def failure_reasons(study) -> list[dict]:
     return [{"failure": k, "trials": n} for k, n in sorted(counts.items(), key=lambda kv: -kv[1])]
 
 
+def bound_advice(misses: list[dict], space) -> list[str]:
+    """Where the nearest misses sit at the end of a searched range: the way to a design that passes may lie beyond
+    it."""
+    out = []
+    dims = space.dimensions
+    for m in misses[:NEAREST]:
+        for k, v in m["params"].items():
+            r = dims.get(k)
+            if r is None or r.max <= r.min:
+                continue
+            end = "minimum" if v - r.min <= 1e-3 * (r.max - r.min) else \
+                "maximum" if r.max - v <= 1e-3 * (r.max - r.min) else None
+            text = f"the nearest misses sit at the {end} of {k}'s range ({r.min:g} to {r.max:g}): widen that range"
+            if end is not None and text not in out:
+                out.append(text)
+    return out
+
+
 def nearest_misses(study, n: int = NEAREST) -> list[dict]:
     """The ``n`` designs nearest to meeting every requirement (least summed scaled violation; solved ones first at
     equal violation), each with its parameters and every requirement it misses, value against limit."""
@@ -70,7 +88,7 @@ def nearest_misses(study, n: int = NEAREST) -> list[dict]:
         missed = [r for r in t.user_attrs.get("requirements", []) if not r.get("met", True)]
         out.append({"trial": t.number, "params": dict(t.params), "violation": violation(t),
                     "area_mm2": t.user_attrs.get("area_mm2"), "peak_stress_mpa": t.user_attrs.get("peak_stress_mpa"),
-                    "level": "draft (the search's level)",
+                    "level": "draft",
                     "missed": missed or [{"label": str(t.user_attrs.get("reason", "refused")), "value": None,
                                           "limit": None, "relation": "", "unit": "", "kind": "geometry"}]})
     return out
