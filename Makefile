@@ -4,7 +4,7 @@ VENV   ?= .venv
 PY     := $(VENV)/bin/python
 STAMP  := $(VENV)/.holeshape-installed
 
-.PHONY: demo test lint bench validate clean
+.PHONY: demo test quick lint bench validate clean
 
 $(STAMP): pyproject.toml
 	test -x $(PY) || $(PYTHON) -m venv $(VENV)
@@ -21,12 +21,18 @@ demo: $(STAMP)
 	$(VENV)/bin/holeshape optimise studies/floor-beam-flanged-access.toml --out runs/floor-beam-flanged-access
 	$(VENV)/bin/holeshape check studies/floor-beam-service-opening.toml --plots runs/floor-beam-service-opening
 	$(VENV)/bin/holeshape optimise studies/floor-beam-lightening-row.toml --out runs/floor-beam-lightening-row
+	$(VENV)/bin/holeshape optimise studies/deck-girder-cable-row.toml --out runs/deck-girder-cable-row
+	$(VENV)/bin/holeshape optimise studies/bulkhead-cable-transit.toml --out runs/bulkhead-cable-transit
 
 test: $(STAMP)
-	$(PY) -m pytest
+	$(PY) -m pytest -n auto --dist worksteal
+
+quick: $(STAMP)
+	$(PY) -m pytest -n auto --dist worksteal -m "not slow"
 
 lint: $(STAMP)
 	$(VENV)/bin/ruff check holeshape tests benchmarks examples
+	$(VENV)/bin/mypy
 
 validate: $(STAMP)
 	$(PY) benchmarks/validation.py standard

@@ -82,6 +82,7 @@ def test_moved_mesh_keeps_kirsch_scale_invariance():
     assert abs(p1 / p0 - 1.0) < 1e-5
 
 
+@pytest.mark.slow
 def test_twelve_radius_search_approaches_the_harmonic_hole(tmp_path, capsys):
     # The harmonic hole for sigma_x = 100, sigma_y = 50 MPa is the ellipse a/b = 2 with a uniform hoop stress of
     # 150 MPa (Bjorkman & Richards, harmonic holes). A 12-radius spline cannot draw that ellipse exactly: the
@@ -103,6 +104,7 @@ def test_twelve_radius_search_approaches_the_harmonic_hole(tmp_path, capsys):
     assert (tmp_path / "run" / "search_outlines.png").stat().st_size > 0
 
 
+@pytest.mark.slow
 def test_gradient_search_resumes_after_a_kill_and_runs_with_two_workers(tmp_path, capsys):
     study = write(tmp_path, FREE, TRIALS=60, METHOD="")
     out = tmp_path / "run"

@@ -61,6 +61,7 @@ def postgres_url():
         shutil.rmtree(root, ignore_errors=True)
 
 
+@pytest.mark.slow
 def test_two_machines_share_one_study(tmp_path, postgres_url):
     """Two separate commands (standing for two machines, each with its own --out) on one database study: every
     trial is recorded once, the total is the budget, and both report the same best design."""

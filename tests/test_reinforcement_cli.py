@@ -101,6 +101,7 @@ def test_check_json_plots_and_dxf_of_a_ring(tmp_path, capsys):
     assert dict(doc.header.custom_vars)["HOLESHAPE_REINFORCEMENT_KIND"] == "ring"
 
 
+@pytest.mark.slow
 def test_least_flange_makes_the_failing_bare_opening_pass(tmp_path, capsys):
     # the bundled study: the bare 112 mm hole buckles below the required 1.5 (measured 0.76); the search finds the
     # smallest flange that passes, and the report compares it with the bare opening
@@ -128,6 +129,7 @@ def _fast(text: str) -> str:
     return text.replace("allowable_stress = 280.0", "allowable_stress = 60.0")
 
 
+@pytest.mark.slow
 def test_compare_adds_the_reinforced_row(tmp_path, capsys):
     # the bare families cannot carry 12 MPa of shear round a 110 mm access hole within 60 MPa (Kirsch-type 4 tau at
     # the edge of a round hole is already 48 MPa, and the bay's finite size adds more); the reinforced row can
@@ -170,6 +172,7 @@ def test_mass_and_cross_section_limits_are_geometric_constraints():
     assert any("added mass" in w for w in why) and any("cross-section 16 mm^2 > 15 mm^2" in w for w in why)
 
 
+@pytest.mark.slow
 def test_largest_opening_with_a_mass_limit(tmp_path):
     # the weight study with a reinforcement: the opening grows until the margin binds, the flange within its mass
     text = _fast(TEXT).replace('goal = "lightest_reinforcement"', 'goal = "largest_opening"')

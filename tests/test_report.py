@@ -94,6 +94,7 @@ def test_vtk_field_reads_back(run_dir):
     assert vm == pytest.approx(summary["best"]["peak_stress_mpa"], rel=0.05)
 
 
+@pytest.mark.slow
 def test_compare_ranks_every_family(tmp_path, capsys):
     study = write(tmp_path, RIB, TRIALS=8, CONSTRAINTS="access = {width = 90.0, height = 50.0}\nclearance = 2.0\n"
                   "min_ligament = 20.0")

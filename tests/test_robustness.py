@@ -140,6 +140,7 @@ def _trials(out: Path):
     return optuna.load_study(study_name="holeshape", storage=st_).trials
 
 
+@pytest.mark.slow
 @pytest.mark.parametrize("family", list(WIDE))
 def test_random_draws_inside_a_search_never_crash_it(tmp_path, capsys, family):
     """Wide ranges that produce invalid, crossing, oversized and slender outlines: every trial ends complete,
@@ -162,6 +163,7 @@ def test_random_draws_inside_a_search_never_crash_it(tmp_path, capsys, family):
     assert code in (0, 5)  # 5 (no answer from the search) only when nothing at all was feasible, said in one line
 
 
+@pytest.mark.slow
 def test_kills_at_random_moments_lose_nothing(tmp_path, capsys):
     import random
 
@@ -195,6 +197,7 @@ def test_kills_at_random_moments_lose_nothing(tmp_path, capsys):
     assert d["trials_completed"] + d["trials_failed"] == 30
 
 
+@pytest.mark.slow
 def test_three_workers(tmp_path, capsys):
     study = _study(tmp_path, "ellipse", trials=24, extra="min_ligament = 10.0")
     assert main(["optimise", str(study), "--out", str(tmp_path / "run"), "-q", "--json", "--workers", "3"]) == 0
@@ -206,6 +209,7 @@ def test_three_workers(tmp_path, capsys):
     assert len(set(points)) == len(points)
 
 
+@pytest.mark.slow
 def test_same_seed_same_best_design(tmp_path, capsys):
     study = _study(tmp_path, "superellipse", trials=16, extra="min_ligament = 10.0")
     best = []

@@ -12,6 +12,7 @@ import json
 import re
 
 import ezdxf
+import numpy as np
 import pytest
 
 from holeshape.cli import main
@@ -49,16 +50,35 @@ def test_widely_spaced_openings_are_each_kirsch(load):
     assert ev.within_target
 
 
-def test_close_openings_interact_as_a_row_does():
-    # d / l = 0.5: across the row the middle opening's peak rises above Kirsch's 3, along the row it falls below
-    # (Howland 1935, Schulz; qualitative, from memory); the row is mirror symmetric, so its first and last openings
-    # agree to the mesh scatter (0.1 %)
-    _, across = row_peaks(40.0, (0.0, 100.0, 0.0))
-    _, along = row_peaks(40.0, (100.0, 0.0, 0.0))
-    assert across[2] > 300.0 * 1.02 and along[2] < 300.0 * 0.9
-    for peaks in (across, along):
-        assert peaks[0] == pytest.approx(peaks[-1], rel=1e-3)
-        assert peaks[1] == pytest.approx(peaks[-2], rel=1e-3)
+# An independent periodic-cell computation of an infinite row of holes at pitch l (a converged curved-P2 model of
+# the quarter cell written apart from holeshape, two meshes agreeing to 1e-5; not a published table): across the
+# row Ktg = peak / S, along the row Kt on the remote stress at the far edge of a strip 3 l high
+PERIODIC_CELL = {0.5: (3.2411, 2.1392), 0.3: (3.0308, 2.5466)}
+
+
+@pytest.mark.slow
+@pytest.mark.parametrize("d_over_l", [0.5, 0.3])
+def test_the_middle_opening_of_a_long_row_approaches_the_periodic_cell(d_over_l):
+    # 15 openings at l = 100 mm filling a 1500 x 600 mm panel (3 l of web above and below the row, as the cell);
+    # the middle opening against the cell. Measured: across the row +0.24 % (d/l = 0.5) and +0.27 % (0.3) at the
+    # standard level (the panel's free side edges, zero net sigma_x, raise it a few tenths of a per cent), along
+    # the row -0.42 % and -0.07 % (the row's fifteen openings against infinitely many); draft adds up to 0.1 %.
+    # Tolerance 0.6 %: that finite-row effect plus the draft mesh error, with a little room
+    across, along = PERIODIC_CELL[d_over_l]
+    panel = Panel(1500.0, 600.0, 1.0)
+    cut = Cutout(Circle(d_over_l * 50.0), (750.0, 300.0), 0.0, row=Row(15, 100.0, 0.0))
+    ev = evaluate(panel, MAT, (LoadCase("across", sigma_y=100.0), LoadCase("along", sigma_x=100.0)), cut,
+                  Measure("hoop", "draft"))
+    middle = {c.name: next(loc.peak_stress_mpa for loc in c.locations if loc.location == "opening 8")
+              for c in ev.load_cases}
+    from holeshape.evaluate import stress_at_points
+
+    far = stress_at_points(ev.fields.panel_mesh, ev.fields.solution, np.array([[750.0], [600.0]]))[0, 0, 1]
+    assert far > 100.0  # the row's force deficit: the strip's far edge carries more than the applied mean
+    assert middle["across"] / 100.0 == pytest.approx(across, rel=6e-3)
+    assert middle["along"] / far == pytest.approx(along, rel=6e-3)
+    # the row interacts as a row does: across it above Kirsch's 3, along it below
+    assert middle["across"] > 300.0 and middle["along"] / far < 3.0
 
 
 ROW_STUDY = """
@@ -141,6 +161,7 @@ def test_check_json_reports_every_opening(tmp_path, capsys):
     assert case["peak_location"].startswith("opening")
 
 
+@pytest.mark.slow
 def test_search_over_the_pitch_keeps_the_web_between_neighbours(tmp_path):
     p = tmp_path / "row.toml"
     p.write_text(ROW_STUDY)
@@ -195,6 +216,7 @@ trials = 10
 """
 
 
+@pytest.mark.slow
 def test_separate_openings_each_with_its_own_shape(tmp_path, capsys):
     p = tmp_path / "two.toml"
     p.write_text(TWO)

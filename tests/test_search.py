@@ -92,6 +92,7 @@ def profile(out: Path) -> np.ndarray:
     return pts[:-1]
 
 
+@pytest.mark.slow
 def test_harmonic_hole_optimum(tmp_path, capsys):
     """Same-sign biaxial stress s1 = 100, s2 = 50 MPa: the best hole is the ellipse with a/b = s1/s2 = 2 and a
     uniform hoop stress s1 + s2 = 150 MPa (Bjorkman & Richards, J. Appl. Mech. 43 (1976) 414-418; from memory).
@@ -116,6 +117,7 @@ def test_harmonic_hole_optimum(tmp_path, capsys):
     ("radius", "min_radius = 30.0\nmin_area = 6000.0"),
     ("area", "min_area = 14000.0"),
 ])
+@pytest.mark.slow
 def test_every_constraint_holds_on_the_written_profile(tmp_path, capsys, name, constraints):
     d = optimise(capsys, write(tmp_path, RIB, TRIALS=24, CONSTRAINTS=constraints), tmp_path / "run")
     assert d["best"]["feasible"] is True
@@ -205,6 +207,7 @@ def resume_keeps(capsys, study: Path, out: Path, before: dict[int, dict], total:
     return d
 
 
+@pytest.mark.slow
 def test_resume_after_sigkill_keeps_every_completed_trial(tmp_path, capsys):
     study = write(tmp_path, RIB, TRIALS=30, CONSTRAINTS="min_area = 6000.0")
     out = tmp_path / "run"
@@ -213,6 +216,7 @@ def test_resume_after_sigkill_keeps_every_completed_trial(tmp_path, capsys):
     resume_keeps(capsys, study, out, before, 30)
 
 
+@pytest.mark.slow
 def test_two_workers_lose_and_duplicate_nothing(tmp_path, capsys):
     study = write(tmp_path, RIB, TRIALS=24, CONSTRAINTS="min_area = 6000.0")
     d = optimise(capsys, study, tmp_path / "run", "--workers", "2")
@@ -242,6 +246,7 @@ def test_impossible_constraints_are_refused_before_any_search(tmp_path, capsys):
     assert not (tmp_path / "run").exists()
 
 
+@pytest.mark.slow
 def test_trade_off_front(tmp_path, capsys):
     import ezdxf
 

@@ -60,6 +60,7 @@ def _study(tmp_path, text=LIGHTENING, name="study.toml"):
     return p
 
 
+@pytest.mark.slow
 def test_largest_opening_is_bounded_by_buckling(tmp_path, capsys):
     from holeshape.geometry import Circle, Cutout
     from holeshape.stability import buckling

@@ -25,10 +25,21 @@ def pyplot():
 
 
 def save(fig, path: Path) -> Path:
-    """Save with the caution line at the foot, atomically (temporary file, then rename)."""
+    """Save with the caution at the foot (wrapped to the figure's width, the plot lifted clear of it), atomically
+    (temporary file, then rename). Every plot function lays itself out first; this only makes room at the foot."""
     import os
+    import textwrap
 
-    fig.text(0.01, 0.005, PLOT_CAUTION, fontsize=6.5, color="0.35", ha="left", va="bottom")
+    width_in, height_in = fig.get_size_inches()
+    per_line = max(40, int(width_in * 72 / (6.5 * 0.52)))  # characters of 6.5 pt text across the figure
+    lines = textwrap.wrap(PLOT_CAUTION, per_line)
+    foot = (len(lines) * 8.5 + 6) / (height_in * 72)  # figure fraction the caution takes
+    if fig.subplotpars.bottom < foot + 0.04:
+        shift = foot + 0.04 - fig.subplotpars.bottom
+        for ax in fig.axes:
+            box = ax.get_position()
+            ax.set_position([box.x0, box.y0 + shift * (1 - box.y0), box.width, box.height * (1 - shift)])
+    fig.text(0.01, 0.005, "\n".join(lines), fontsize=6.5, color="0.35", ha="left", va="bottom")
     tmp = path.with_name(f".{path.name}.tmp")
     fig.savefig(tmp, dpi=130, format="png")
     os.replace(tmp, path)
@@ -135,10 +146,12 @@ def plot_boundary_stress(path: Path, ev: Evaluation, fields: EvaluationFields, a
     if fields.interior_boundary is not None:
         rb = fields.interior_boundary
         second = (rb.s, measure_values(rb, ev.stress_measure), fields.interior_name,
-                  "arc length round the reinforcement's outer edge, counter-clockwise (mm)",
+                  f"arc length round the reinforcement's outer edge, counter-clockwise from ({rb.xy[0, 0]:.1f},"
+                  f" {rb.xy[1, 0]:.1f}) mm (mm)",
                   f"{STRESS_LABELS[ev.stress_measure]} (MPa)")
     elif fields.member_stress is not None:
-        second = (bs.s, fields.member_stress, fields.member_name, "arc length round the cutout, counter-clockwise (mm)",
+        second = (bs.s, fields.member_stress, fields.member_name,
+                  f"arc length round the cutout, counter-clockwise from ({bs.xy[0, 0]:.1f}, {bs.xy[1, 0]:.1f}) mm (mm)",
                   f"axial stress in the {fields.member_name} (MPa)")
     fig, axes = plt.subplots(2 if second else 1, 1, figsize=(9, 8.4 if second else 4.8), squeeze=False)
     styles = ["-", "--", "-.", ":"]
@@ -149,7 +162,9 @@ def plot_boundary_stress(path: Path, ev: Evaluation, fields: EvaluationFields, a
         at = next((loc.peak_stress_mpa for loc in r.locations if loc.location == here), r.peak_stress_mpa)
         ax.plot(bs.s, vals[:, j], styles[j % 4], lw=1.6, label=f"{r.name} (peak here {at:.1f} MPa)")
     which = f" of {gov.peak_location} (governing)" if gov.peak_location.startswith("opening") else ""
-    panels = [(ax, "arc length round the cutout, counter-clockwise (mm)", f"{STRESS_LABELS[ev.stress_measure]} (MPa)",
+    origin = f"from ({bs.xy[0, 0]:.1f}, {bs.xy[1, 0]:.1f}) mm"
+    panels = [(ax, f"arc length round the cutout, counter-clockwise {origin} (mm)",
+               f"{STRESS_LABELS[ev.stress_measure]} (MPa)",
                f"{title}: stress along the cutout edge{which}" + (" (in the web)" if second else ""), bs.s)]
     if second:
         s2, v2, where, xlabel, ylabel = second
@@ -219,7 +234,9 @@ def plot_buckling_mode(path: Path, stability, fields, cutout_xy, panel, title: s
             levels = np.linspace(-1.0, 1.0, 21)
             cs = ax.tricontourf(fields.p[0], fields.p[1], fields.t.T, w, levels=levels, cmap="RdBu_r")
             ax.tricontour(fields.p[0], fields.p[1], fields.t.T, w, levels=levels[::2], colors="k", linewidths=0.3)
-            ax.set_title(f"mode {k + 1}: load factor {factor:.3f} on the finest plate mesh", fontsize=10)
+            reported = "" if k or gov is None else \
+                f"\n(the reported factor, extrapolated from two meshes: {gov.load_factor:.3f})"
+            ax.set_title(f"mode {k + 1}: factor {factor:.3f} on the finest plate mesh{reported}", fontsize=10)
             if k == n - 1:
                 fig.colorbar(cs, ax=ax, shrink=0.8, label="out-of-plane deflection (largest = 1)")
         else:

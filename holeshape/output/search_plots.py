@@ -132,7 +132,7 @@ def plot_shapes(path: Path, best, baselines, panel, constraints, title: str, bes
         if constraints.clearance > 0:
             ax.plot(*constraints.access.polygon(best.center, constraints.clearance).exterior.xy, color="C2",
                     lw=0.8, label=f"with {constraints.clearance:g} mm clearance")
-    return _finish_plan(fig, ax, path, f"{title}: best shape against the standard shapes (peak, fine level)")
+    return _finish_plan(fig, ax, path, f"{title}\nbest shape against the standard shapes (peak, fine level)")
 
 
 def _finish_plan(fig, ax, path: Path, title: str) -> Path:
@@ -197,7 +197,7 @@ def plot_family_overlay(path: Path, study, run_dir: Path, ranked: list[dict]) ->
         center = baseline_center(study.cutout, panel, study.constraints)
         env = study.constraints.access.polygon(center, 0.0)
         ax.fill(*env.exterior.xy, color="C2", alpha=0.25, label="access envelope")
-    return _finish_plan(fig, ax, path, f"{study.title}: best of every family (peak, fine level)")
+    return _finish_plan(fig, ax, path, f"{study.title}\nbest of every family (peak, fine level)")
 
 
 def _label(name: str) -> str:
