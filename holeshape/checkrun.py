@@ -8,13 +8,16 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field, replace
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING
 
-from holeshape.checks import Assessment, assess
+from holeshape.checks import Assessment, CheckResult, assess
 from holeshape.checks.compose import design_json
 from holeshape.errors import StudyError
 from holeshape.evaluate import Evaluation, evaluate
 from holeshape.study import Study
+
+if TYPE_CHECKING:
+    from holeshape.geometry import Cutout
 
 
 @dataclass(frozen=True)
@@ -22,7 +25,7 @@ class DesignResult:
     """A design with its evaluation and assessment; ``plots`` the files drawn for it."""
 
     study: Study
-    cutout: Any
+    cutout: Cutout
     evaluation: Evaluation
     assessment: Assessment
     plots: tuple[str, ...] = field(default=())
@@ -31,7 +34,7 @@ class DesignResult:
     def meets_every_requirement(self) -> bool:
         return self.assessment.meets_every_requirement
 
-    def result(self, name: str):
+    def result(self, name: str) -> CheckResult | None:
         """One check's result by its name (``"stress"``, ``"stability"``, ``"net_section"``, ...), or None."""
         return self.assessment.result(name)
 
@@ -49,7 +52,7 @@ class DesignResult:
         return d
 
 
-def check_design(study: Study, cutout=None, accuracy: str | None = None, keep_fields: bool = False,
+def check_design(study: Study, cutout: Cutout | None = None, accuracy: str | None = None, keep_fields: bool = False,
                  cache: dict | None = None) -> DesignResult:
     """Evaluate and assess one design of ``study`` (its own current design when ``cutout`` is None) at
     ``accuracy`` (default the study's)."""
@@ -78,10 +81,12 @@ def run_check(study_path: str, accuracy: str | None = None, plots: str | None = 
     res = check_design(study, accuracy=accuracy, keep_fields=plot_dir is not None)
     if plot_dir is None:
         return res
+    from holeshape.checks.stability import BucklingResult
     from holeshape.output import plots as P
 
     ev, cutout = res.evaluation, res.cutout
     fields = ev.fields
+    assert fields is not None  # kept for the plots
     gov = [r.name for r in ev.load_cases].index(ev.governing_load_case)
     size = (study.panel.width, study.panel.height)
     outline = [o.T for o in cutout.outlines(720)]
@@ -92,7 +97,7 @@ def run_check(study_path: str, accuracy: str | None = None, plots: str | None = 
         P.plot_mesh(plot_dir / "mesh_near_cutout.png", fields, cutout.bounds, study.title),
     ]
     st = res.result("stability")
-    if st is not None:
+    if isinstance(st, BucklingResult):
         drawn.append(P.plot_buckling_mode(plot_dir / "buckling_mode.png", st.stability, st.fields, outline,
                                           study.panel, study.title))
     return replace(res, plots=tuple(str(p) for p in drawn))

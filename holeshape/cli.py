@@ -122,7 +122,7 @@ def main(argv: list[str] | None = None) -> int:
         return _fail(args, err, EXIT_INTERNAL, internal=True)
 
 
-def _fail(args, err: BaseException, code: int, internal: bool = False) -> int:
+def _fail(args: argparse.Namespace, err: BaseException, code: int, internal: bool = False) -> int:
     if args.debug:
         traceback.print_exc()
     msg = " ".join(str(err).split()) or type(err).__name__
@@ -132,7 +132,7 @@ def _fail(args, err: BaseException, code: int, internal: bool = False) -> int:
     return code
 
 
-def _check(args) -> int:
+def _check(args: argparse.Namespace) -> int:
     from holeshape.checkrun import run_check
 
     res = run_check(args.study, accuracy=args.accuracy, plots=args.plots)
@@ -149,8 +149,10 @@ def _check(args) -> int:
             print(f"  plot          {p}")
     else:
         line = f"{ev.peak_stress_mpa:.3f} MPa (Kt {ev.kt:.4f}, error estimate {ev.error_estimate_pct:.3f} %)"
+        from holeshape.checks.stability import BucklingResult
+
         st = res.result("stability")
-        if st is not None:
+        if isinstance(st, BucklingResult):
             f = st.stability.load_factor
             line += ("; does not buckle" if f is None else
                      f"; buckling factor {f:.3f} (error estimate {st.stability.error_estimate_pct:.2g} %)")
@@ -160,14 +162,14 @@ def _check(args) -> int:
     return 0
 
 
-def _run_folder(args, suffix: str) -> str:
+def _run_folder(args: argparse.Namespace, suffix: str) -> str:
     """--out, or runs/<study file name><suffix> with the name made safe as a folder name."""
     from holeshape.output.files import safe_name
 
     return args.out or str(Path("runs") / (safe_name(Path(args.study).stem) + suffix))
 
 
-def _sweep(args) -> int:
+def _sweep(args: argparse.Namespace) -> int:
     from holeshape.sweep import run_sweep
 
     out = _run_folder(args, "-sweep")
@@ -183,7 +185,7 @@ def _sweep(args) -> int:
     return 0
 
 
-def _compare(args) -> int:
+def _compare(args: argparse.Namespace) -> int:
     from holeshape.compare import run_compare
 
     _quiet_optuna(args)
@@ -206,14 +208,14 @@ def _compare(args) -> int:
     return 0
 
 
-def _quiet_optuna(args) -> None:
+def _quiet_optuna(args: argparse.Namespace) -> None:
     """Optuna configures its own logger on import (level INFO): set ours after it is imported."""
     import optuna
 
     optuna.logging.set_verbosity(optuna.logging.DEBUG if args.verbose else optuna.logging.WARNING)
 
 
-def _optimise(args) -> int:
+def _optimise(args: argparse.Namespace) -> int:
     from holeshape.optimise import run_optimise
 
     _quiet_optuna(args)

@@ -12,11 +12,12 @@ import math
 import shutil
 from dataclasses import replace
 from pathlib import Path
+from typing import Any
 
 from holeshape.errors import HoleshapeError, NoDesignError, SearchError, StudyError
 from holeshape.goals import GOALS
 from holeshape.record import REINFORCED_SUFFIX, RunInputs, RunRecord, folder_name
-from holeshape.study import Range
+from holeshape.study import Range, Study
 from holeshape.studyfile import dump_toml, load_study
 
 FAMILY_ORDER = ("circle", "ellipse", "rounded_rectangle", "slot", "superellipse", "spline")
@@ -40,7 +41,7 @@ def _r(lo: float, hi: float) -> dict:
     return {"min": round(min(lo, hi), 4), "max": round(max(lo, hi), 4)}
 
 
-def family_ranges(study, raw_cutout: dict) -> dict[str, dict]:
+def family_ranges(study: Study, raw_cutout: dict) -> dict[str, dict]:
     """[cutout] tables for every family, on the study's centre and rotation, sized to the panel and envelope."""
     panel, cons = study.panel, study.constraints
     center = study.cutout.openings[0].center
@@ -58,10 +59,12 @@ def family_ranges(study, raw_cutout: dict) -> dict[str, dict]:
     common = {"center": raw_cutout.get("center", [panel.width / 2, panel.height / 2])}
     if "count" in raw_cutout:  # a row: every family as the same row, each opening no wider than the pitch allows
         common.update({k: raw_cutout[k] for k in ("count", "pitch", "direction") if k in raw_cutout})
-        pitch = study.cutout.row.pitch
-        half = 0.5 * (pitch.min if isinstance(pitch, Range) else pitch) * 0.999
-        pmax, qmax = min(pmax, half), min(qmax, half)
-        p, q = min(p, 0.5 * pmax), min(q, 0.5 * qmax)
+        row = study.cutout.row
+        if row is not None:  # count = 1 is one opening (no row, no pitch to fit)
+            pitch = row.pitch
+            half = 0.5 * (pitch.min if isinstance(pitch, Range) else pitch) * 0.999
+            pmax, qmax = min(pmax, half), min(qmax, half)
+            p, q = min(p, 0.5 * pmax), min(q, 0.5 * qmax)
     rot = raw_cutout.get("rotation", 0.0)
     out = {
         "circle": {"radius": _r(min(math.hypot(p, q), min(pmax, qmax)), min(pmax, qmax))},
@@ -98,7 +101,8 @@ def run_compare(study_path: str, out: str, workers: int = 1, progress: bool = Tr
         doc["cutout"] = doc["cutout"][0]
     out_dir = Path(out)
     out_dir.mkdir(parents=True, exist_ok=True)
-    rows, summaries = [], {}
+    rows: list[dict[str, Any]] = []
+    summaries: dict[str, dict] = {}
     shared: dict = {}  # the standard shapes and the unperforated panel: the same for every family
     if not (out_dir / "validation.json").exists():  # one validation appendix serves every family's search
         from holeshape.finish import FINAL_ACCURACY
@@ -138,11 +142,11 @@ def run_compare(study_path: str, out: str, workers: int = 1, progress: bool = Tr
         fb = s.get("family_best")
         if fb is None or not fb.get("meets_every_requirement", True):
             refused = s.get("trials_refused_after_solve", {})
-            why = [f"{n} solved designs refused for {k}" for k, n in refused.items() if n]
+            whys = [f"{n} solved designs refused for {k}" for k, n in refused.items() if n]
             if fb is not None:
-                why.insert(0, "; ".join(fb.get("verdict_reasons", [])))
+                whys.insert(0, "; ".join(fb.get("verdict_reasons", [])))
             rows.append({"shape": family, "feasible": False, "reason": "no design of this family meets every"
-                         " requirement at the fine level" + (f" ({', '.join(why)})" if why else "")})
+                         " requirement at the fine level" + (f" ({', '.join(whys)})" if whys else "")})
             continue
         rows.append({"shape": family, "feasible": True, **{k: fb.get(k) for k in (
             "peak_stress_mpa", "kt", "area_mm2", "governing_load_case", "params", "dxf", "error_estimate_pct",
@@ -170,12 +174,14 @@ def run_compare(study_path: str, out: str, workers: int = 1, progress: bool = Tr
             shutil.copyfile(src / name, out_dir / f".{name}.copy")
             (out_dir / f".{name}.copy").replace(out_dir / name)
     won = RunRecord.from_summary(summaries[winner])
+    assert won.best is not None  # the winning family's run recommends a design
+    comparison = tuple(ok + [r for r in rows if not r["feasible"]])
     record = replace(won, best=replace(won.best, dxf=str(out_dir / "best.dxf")), study=study.title,
-                     comparison=tuple(ok + [r for r in rows if not r["feasible"]]))
+                     comparison=comparison)
     search_plots.plot_family_overlay(out_dir / "compare_shapes.png", study, out_dir, ok)
     inputs = RunInputs.from_dict(json.loads((out_dir / "inputs.json").read_text()))
     files.write_json(out_dir / "inputs.json", replace(inputs, title=study.title).to_dict())
-    files.write_json(out_dir / "compare.json", list(record.comparison))
+    files.write_json(out_dir / "compare.json", list(comparison))
     top = record.to_summary()
     files.write_json(out_dir / "summary.json", top)
     top["report"] = str(build_report(out_dir))

@@ -89,22 +89,22 @@ class Isotropic(Elastic):
     def shear_modulus(self) -> float:
         return self.youngs_modulus / (2.0 * (1.0 + self.poisson_ratio))
 
-    def stress(self, exx, eyy, exy):
+    def stress(self, exx: Any, eyy: Any, exy: Any) -> tuple[Any, Any, Any]:
         lam, mu = self.lame
         tr = exx + eyy
         return 2 * mu * exx + lam * tr, 2 * mu * eyy + lam * tr, 2 * mu * exy
 
-    def strain(self, sxx, syy, sxy):
+    def strain(self, sxx: Any, syy: Any, sxy: Any) -> tuple[Any, Any, Any]:
         e, nu = self.youngs_modulus, self.poisson_ratio
         return (sxx - nu * syy) / e, (syy - nu * sxx) / e, sxy / (2.0 * self.shear_modulus)
 
-    def stress_tensor(self, eps):
+    def stress_tensor(self, eps: Any) -> Any:
         from skfem.helpers import eye, trace
 
         lam, mu = self.lame
         return 2.0 * mu * eps + lam * eye(trace(eps), 2)
 
-    def bending_work(self, thickness, ddu, ddv):
+    def bending_work(self, thickness: float, ddu: Any, ddv: Any) -> Any:
         from skfem.helpers import ddot, trace
 
         nu = self.poisson_ratio

@@ -13,6 +13,7 @@ from __future__ import annotations
 import math
 import time
 from dataclasses import dataclass, field, replace
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
@@ -31,6 +32,11 @@ from holeshape.solve import (
     von_mises,
 )
 from holeshape.study import ACCURACIES, LoadCase, Material, Measure, Panel
+
+if TYPE_CHECKING:
+    from holeshape.geometry import Reinforcement
+    from holeshape.mesh import PanelMesh
+    from holeshape.solve import BeamField
 
 
 @dataclass(frozen=True)
@@ -74,10 +80,11 @@ BEAM_KT_REFERENCE = ("the beam-theory stress at the opening's centre without the
                      " below 1 % of the largest beam-theory stress in the web, that largest one)")
 
 
-def reference_stress(case: LoadCase, stress: str, field=None, center=None, panel: Panel | None = None) -> float:
+def reference_stress(case: LoadCase, stress: str, field: BeamField | None = None,
+                     center: tuple[float, float] | None = None, panel: Panel | None = None) -> float:
     """The stress Kt is measured against: the remote stress state, or for a beam case (``field``) the beam-theory
     stress at the opening's ``center`` (the largest in the web where that is below 1 % of it)."""
-    def measure(sxx, syy, sxy):
+    def measure(sxx: Any, syy: Any, sxy: Any) -> np.ndarray:
         if stress == "von_mises":
             return np.asarray(von_mises(sxx, syy, sxy))
         s1, s2 = principal_stresses(sxx, syy, sxy)
@@ -85,6 +92,7 @@ def reference_stress(case: LoadCase, stress: str, field=None, center=None, panel
 
     if field is None:
         return float(measure(*case.components))
+    assert center is not None and panel is not None  # a beam case is measured at the opening's centre in its panel
     at = float(measure(*field(center[0], center[1])))
     gx, gy = np.meshgrid(np.linspace(0.0, panel.width, 41), np.linspace(0.0, panel.height, 41))
     top = float(np.max(measure(*field(gx, gy))))
@@ -122,18 +130,20 @@ def opening_name(k: int) -> str:
     return f"opening {k + 1}"
 
 
-def location_values(sol: PanelSolution, stress: str, reinforcement, material: Material
+def location_values(sol: PanelSolution, stress: str, reinforcement: Reinforcement | None, material: Material
                     ) -> dict[str, tuple[BoundaryStress, np.ndarray]]:
     """The chosen measure (n, m) along every place a peak is looked for, by location name: the cutout edge (every
     opening's edge for several), and the places the reinforcement names (``Reinforcement.stress_locations``: the
     web at a ring's outer edge, a flange's own axial stress, a doubler of another modulus at the cutout edge)."""
     if len(sol.members) > 1:  # a row: every opening's edge
         return {opening_name(k): (bs, measure_values(bs, stress)) for k, bs in enumerate(sol.members)}
+    assert sol.cutout is not None  # solved with the cutout stress recovered
     out = {CUTOUT_EDGE: (sol.cutout, measure_values(sol.cutout, stress))}
     if reinforcement is None:
         return out
     for loc in reinforcement.stress_locations(material.elastic.reference_modulus):
         if loc.source == "interior_edge":
+            assert sol.interior_edge is not None  # a kind with this location has an interior outline
             out[loc.name] = (sol.interior_edge, measure_values(sol.interior_edge, stress))
         elif loc.source == "cutout_scaled":
             out[loc.name] = (sol.cutout, out[CUTOUT_EDGE][1] * loc.factor)
@@ -231,7 +241,7 @@ class Evaluation:
 class EvaluationFields:
     """Meshes and solutions behind an :class:`Evaluation`, kept only for plots and field output."""
 
-    panel_mesh: object = field(repr=False)
+    panel_mesh: PanelMesh = field(repr=False)
     solution: PanelSolution = field(repr=False)
     boundary: BoundaryStress = field(repr=False)  # mirrored to the whole outline, in order
     coarse_boundary: BoundaryStress = field(repr=False)
@@ -255,7 +265,8 @@ def evaluate(panel: Panel, material: Material, load_cases: tuple[LoadCase, ...],
     remote = np.array([lc.components for lc in load_cases])
     fields = load_fields(panel, load_cases)
 
-    def run(spec):
+    def run(spec: MeshSpec) -> tuple[PanelMesh, PanelSolution, list[tuple[float, int, str]],
+                                     dict[str, tuple[BoundaryStress, list[tuple[float, int]]]]]:
         if time_limit_s is not None and time.perf_counter() - t0 > time_limit_s:
             raise SolveError(f"the evaluation exceeded its time limit of {time_limit_s:g} s before its error "
                              "estimate was complete")
@@ -288,6 +299,7 @@ def evaluate(panel: Panel, material: Material, load_cases: tuple[LoadCase, ...],
         refinements += 1
     pm, sol, peaks, places = runs[-1]
     pm_c, sol_c, peaks_c, places_c = runs[-2]
+    assert sol.cutout is not None  # solved with the cutout stress recovered
     hoop = np.concatenate([bs.hoop for bs in (sol.members or (sol.cutout,))])
     several = cutout.reinforcement is not None or cutout.count > 1
     results = []
@@ -334,9 +346,10 @@ def evaluate(panel: Panel, material: Material, load_cases: tuple[LoadCase, ...],
         fields=_fields(cutout, material, region, pm, sol, sol_c, g))
 
 
-def _fields(cutout: Cutout, material: Material, region: Region, pm, sol: PanelSolution, sol_c: PanelSolution,
+def _fields(cutout: Cutout, material: Material, region: Region, pm: PanelMesh, sol: PanelSolution, sol_c: PanelSolution,
             governing: LoadCaseResult) -> EvaluationFields:
     """The finest level's mesh and solution, and the edge stresses the plots draw (whole outline, in order)."""
+    assert sol.cutout is not None and sol_c.cutout is not None  # solved with the cutout stress recovered
     k = 0
     if sol.members:  # several openings: the edge of the one that governs
         k = int(governing.peak_location.split()[-1]) - 1
@@ -406,7 +419,7 @@ def mirror_to_full(bs: BoundaryStress, region: Region) -> BoundaryStress:
     return bs
 
 
-def stress_at_points(pm, sol: PanelSolution, xy: np.ndarray) -> np.ndarray:
+def stress_at_points(pm: PanelMesh, sol: PanelSolution, xy: np.ndarray) -> np.ndarray:
     """Stress (3, n, m) MPa at panel points ``xy`` (2, n), mirrored into a reduced model where needed."""
     from skfem import MeshTri1
 

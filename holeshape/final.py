@@ -9,15 +9,28 @@ why). Nothing here writes a file.
 from __future__ import annotations
 
 import logging
+from collections.abc import Callable
 from dataclasses import dataclass, field, replace
+from typing import TYPE_CHECKING, Any
 
 from holeshape.checks import Assessment, assess
+from holeshape.checks.stability import BucklingResult
+from holeshape.checks.stress import StressResult
 from holeshape.errors import GeometryError
 from holeshape.evaluate import Evaluation, evaluate
 from holeshape.goals import GOALS
 from holeshape.progress import QUIET, Progress
 from holeshape.search.runner import finished, is_feasible
 from holeshape.study import ACCURACIES, Measure, Study
+
+if TYPE_CHECKING:
+    from holeshape.geometry import Cutout
+    from holeshape.goals import Goal
+    from holeshape.progress import Bar
+    from holeshape.record import Baseline
+    from holeshape.search.space import DesignSpace
+
+# ``study`` and ``trial`` below, where they are not a holeshape Study, are optuna's: typed Any
 
 log = logging.getLogger("holeshape.final")
 
@@ -38,7 +51,7 @@ class Checked:
     the trial it came from (None for a standard shape), its objective, and how it was moved back along the goal."""
 
     family: str
-    cutout: object
+    cutout: Cutout
     evaluation: Evaluation
     assessment: Assessment
     trial: int | None
@@ -57,8 +70,8 @@ class Checked:
         return {"shape": self.family, "trial": self.trial, "peak_stress_mpa": self.evaluation.peak_stress_mpa,
                 "kt": self.evaluation.kt, "area_mm2": self.evaluation.area_mm2,
                 "error_estimate_pct": self.evaluation.error_estimate_pct,
-                "margin_of_safety": None if stress is None else stress.lowest_margin,
-                "buckling_load_factor": None if st is None else st.stability.load_factor,
+                "margin_of_safety": stress.lowest_margin if isinstance(stress, StressResult) else None,
+                "buckling_load_factor": st.stability.load_factor if isinstance(st, BucklingResult) else None,
                 "reinforcement": None if rf is None else rf.to_dict(),
                 "meets_every_requirement": self.passes, "verdict_reasons": self.assessment.reasons()}
 
@@ -75,7 +88,7 @@ class FinalChecks:
     def measure(self) -> Measure:
         return Measure(self.study.measure.stress, FINAL_ACCURACY)
 
-    def check(self, cut, family: str, trial: int | None, keep: bool = False) -> Checked:
+    def check(self, cut: Cutout, family: str, trial: int | None, keep: bool = False) -> Checked:
         """Evaluate and assess one design at the final level; ``keep`` keeps the fields the plots need."""
         s = self.study
         ev = evaluate(s.panel, s.material, s.load_cases, cut, self.measure)
@@ -83,7 +96,7 @@ class FinalChecks:
         score = GOALS[s.search.goal].objective(ev, cut, s)
         return Checked(family, cut, ev if keep else ev.without_fields(), a, trial, score)
 
-    def standard(self, cut, family: str) -> Checked:
+    def standard(self, cut: Cutout, family: str) -> Checked:
         """A standard shape, checked once per run (``compare`` checks the same ones for every family)."""
         key = standard_key(self.study, cut)
         if key not in self.cache:
@@ -91,18 +104,20 @@ class FinalChecks:
         return self.cache[key]
 
 
-def standard_key(study: Study, cutout) -> tuple:
+def standard_key(study: Study, cutout: Cutout) -> tuple:
     s = study
     return ("standard shape", s.panel, s.material, s.load_cases, cutout, s.measure.stress, s.stability,
             s.constraints)
 
 
-def check_standard_shapes(checks: FinalChecks, baselines, bar=None) -> tuple[list, list[Checked]]:
+def check_standard_shapes(checks: FinalChecks, baselines: list[tuple[str, Cutout | None, str]], bar: Bar | None = None
+                          ) -> tuple[list[Baseline], list[Checked]]:
     """The standard shapes at the final level against every requirement: their rows (``record.Baseline``), and
     those that pass."""
     from holeshape.record import Baseline
 
-    rows, usable = [], []
+    rows: list[Baseline] = []
+    usable: list[Checked] = []
     for family, cut, note in baselines:
         if bar is not None:
             bar.note(f"standard {family.replace('_', ' ')}")
@@ -137,7 +152,8 @@ class Choice:
     reason: str
 
 
-def choose(checks: FinalChecks, study, space, usable, bar=None, standard_count: int = 0) -> Choice:
+def choose(checks: FinalChecks, study: Any, space: DesignSpace, usable: list[Checked] | Callable[[], list[Checked]],
+           bar: Bar | None = None, standard_count: int = 0) -> Choice:
     """The best feasible trials checked at the final level until one passes; when none does and the failures are
     the ones the goal can move away from, the best moved back along the goal until it passes; then the lower of it
     and the passing standard shapes. ``usable``: the passing standard shapes, or a callable giving them (they are
@@ -177,8 +193,8 @@ def _miss_size(c: Checked) -> float:
     return sum(max(0.0, r.constraint or 0.0) for r in c.assessment.failed) + 1e-3 * len(c.assessment.failed)
 
 
-def _why(best: Checked, own: Checked | None, nearest: Checked | None, usable: list[Checked], goal, family: str
-         ) -> str:
+def _why(best: Checked, own: Checked | None, nearest: Checked | None, usable: list[Checked], goal: Goal,
+         family: str) -> str:
     """One sentence: why the recommendation is the one it is, the comparison's direction in words."""
     fam = family.replace("_", " ")
     if best is own:
@@ -200,7 +216,8 @@ def _why(best: Checked, own: Checked | None, nearest: Checked | None, usable: li
     return f"the standard {shape} is recommended: the search found no {fam} that meets every requirement"
 
 
-def retreat(checks: FinalChecks, goal, space, trial, first: Checked, bar=None) -> Checked | None:
+def retreat(checks: FinalChecks, goal: Goal, space: DesignSpace, trial: Any, first: Checked, bar: Bar | None = None
+            ) -> Checked | None:
     """Move the trial's design back along the goal (a smaller opening, a larger reinforcement) until it meets every
     requirement at the final level: steps growing from RETREAT_START while it fails, then halving towards the
     boundary. Returns the passing design with how far it moved, or None (the ranges end first, or the steps do)."""
@@ -239,12 +256,13 @@ def retreat(checks: FinalChecks, goal, space, trial, first: Checked, bar=None) -
     return best
 
 
-def _moved(first: Checked, now: Checked, t: float, scale: float, goal, trial: int) -> dict:
+def _moved(first: Checked, now: Checked, t: float, scale: float, goal: Goal, trial: int) -> dict:
     """How far a design was moved back along the goal to pass: in the goal's own terms and in words."""
     a0, a1 = first.evaluation.area_mm2, now.evaluation.area_mm2
-    out = {"from_trial": trial, "step": t, "length_scale": scale, "area_mm2_before": a0, "area_mm2_after": a1,
-           "objective_before": first.score, "objective_after": now.score,
-           "failed_before": [r.reason or r.label for r in first.assessment.failed], "how": goal.retreat_note}
+    out: dict[str, Any] = {
+        "from_trial": trial, "step": t, "length_scale": scale, "area_mm2_before": a0, "area_mm2_after": a1,
+        "objective_before": first.score, "objective_after": now.score,
+        "failed_before": [r.reason or r.label for r in first.assessment.failed], "how": goal.retreat_note}
     if scale != 1.0:
         out["note"] = (f"trial {trial} missed {'; '.join(out['failed_before'])} at the {FINAL_ACCURACY} level; the"
                        f" outline was scaled by {scale:.4f} ({100 * (1 - scale):.2f} % smaller in every length, removed"

@@ -11,15 +11,22 @@ theorem). Units: MPa, mm; engineering shear strain; per mm of thickness like the
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING, Any
+
 import numpy as np
 
 from holeshape.solve import FactorisedSystem, panel_edge_loads
+
+if TYPE_CHECKING:
+    from holeshape.mesh import PanelMesh
+    from holeshape.solve import PanelSolution
+    from holeshape.study import Panel
 
 EDGE_NORMALS = {"left": (-1.0, 0.0), "right": (1.0, 0.0), "bottom": (0.0, -1.0), "top": (0.0, 1.0),
                 "mirror_h": (0.0, -1.0), "mirror_v": (-1.0, 0.0)}
 
 
-def _components(basis) -> np.ndarray:
+def _components(basis: Any) -> np.ndarray:
     """The displacement component (0: x, 1: y) of every DOF of the P2 vector basis."""
     comp = np.empty(basis.N, dtype=int)
     for c in (0, 1):
@@ -28,7 +35,7 @@ def _components(basis) -> np.ndarray:
     return comp
 
 
-def mean_strain(pm, basis, u: np.ndarray) -> np.ndarray:
+def mean_strain(pm: PanelMesh, basis: Any, u: np.ndarray) -> np.ndarray:
     """(3, m) mean strains (exx, eyy, gamma_xy) of the modelled region for displacements u (n_dofs, m)."""
     mesh, region = pm.mesh, pm.region
     area = (region.width - region.x0) * (region.height - region.y0)
@@ -49,7 +56,7 @@ def mean_strain(pm, basis, u: np.ndarray) -> np.ndarray:
     return np.array([e[0, 0], e[1, 1], e[0, 1] + e[1, 0]])
 
 
-def _antisymmetric_fixed(basis, pm, displacement_edges: bool) -> np.ndarray:
+def _antisymmetric_fixed(basis: Any, pm: PanelMesh, displacement_edges: bool) -> np.ndarray:
     """The fixed DOFs of a mirror model under shear (antisymmetric about the mirror lines: u_x = 0 on y = cy,
     u_y = 0 on x = cx), with the panel edges held (displacement edges) or the rigid motions the mirror lines leave
     free removed (traction edges: a rotation, and a translation along a single mirror line)."""
@@ -66,7 +73,7 @@ def _antisymmetric_fixed(basis, pm, displacement_edges: bool) -> np.ndarray:
         p = pm.mesh.p[:, :pm.mesh.nvertices]
         nd = basis.nodal_dofs
 
-        def vertex(x, y):
+        def vertex(x: float, y: float) -> int:
             return int(np.argmin((p[0] - x) ** 2 + (p[1] - y) ** 2))
 
         if region.mirror_h and region.mirror_v:  # both mirror lines hold the translations: the rotation is left
@@ -78,11 +85,12 @@ def _antisymmetric_fixed(basis, pm, displacement_edges: bool) -> np.ndarray:
     return np.unique(np.concatenate(parts))
 
 
-def effective_compliance(pm, sol, panel) -> np.ndarray:
+def effective_compliance(pm: PanelMesh, sol: PanelSolution, panel: Panel) -> np.ndarray:
     """The 3 x 3 compliance (1/MPa; strains exx, eyy, gamma_xy against mean stresses sxx, syy, txy) of the
     perforated panel of ``pm`` with the stiffness factorised in ``sol`` (a :class:`~holeshape.solve.PanelSolution`
     of the same mesh, its edge condition ``panel.edges``)."""
     basis, system = sol.basis, sol.system
+    assert system is not None  # solve_panel keeps its factorised stiffness
     region = pm.region
     mirrored = region.mirror_h or region.mirror_v
     cx, cy = panel.width / 2, panel.height / 2

@@ -18,6 +18,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
+from typing import Any
 
 import numpy as np
 
@@ -85,8 +86,8 @@ class PanelMesh:
     ``cutout_t`` the matching curve parameters.
     """
 
-    mesh: object = field(repr=False)
-    boundaries: dict = field(repr=False)
+    mesh: Any = field(repr=False)
+    boundaries: dict[str, np.ndarray] = field(repr=False)
     cutout_facets: np.ndarray = field(repr=False)
     cutout_flip: np.ndarray = field(repr=False)
     cutout_s: np.ndarray = field(repr=False)
@@ -101,7 +102,7 @@ class PanelMesh:
     interior_outside: np.ndarray | None = field(default=None, repr=False)
     interior_s: np.ndarray | None = field(default=None, repr=False)
     # every opening of a row as (facets, flip, s, t) like cutout_* above (the first is cutout_*); one for one opening
-    members: tuple = field(default=(), repr=False)
+    members: tuple[tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray], ...] = field(default=(), repr=False)
 
     @property
     def n_elements(self) -> int:
@@ -178,7 +179,7 @@ def from_gmsh(err: BaseException) -> bool:
     return type(err) is Exception
 
 
-def gmsh_session():
+def gmsh_session() -> Any:
     """The process's gmsh instance with every option at its default (options outlive ``gmsh.clear()``, so a size
     limit set by one caller would silently coarsen the next caller's mesh)."""
     global _GMSH_READY
@@ -205,7 +206,8 @@ def _arc_range(cutout: Cutout, region: Region) -> tuple[float, float]:
     return 0.0, 2 * math.pi
 
 
-def _arc_points(cutout: Cutout, region: Region, spec: MeshSpec, h_max: float, width: float, height: float):
+def _arc_points(cutout: Cutout, region: Region, spec: MeshSpec, h_max: float, width: float, height: float
+                ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """Nodes of the modelled arc of an outline: parameters, points (ends exactly on the mirror lines), and the
     spacing at each node (for the size field)."""
     t_start, t_span = _arc_range(cutout, region)
@@ -258,7 +260,7 @@ def mesh_panel(width: float, height: float, cutout: Cutout, region: Region, spec
     off_pts = [geo.addPoint(float(x), float(y), 0.0) for x, y in xy_off.T] if outer is not None else []
     x0, y0, x1, y1 = region.x0, region.y0, width, height
 
-    def chain(pts):
+    def chain(pts: list[int]) -> list[int]:
         n = len(pts)
         return [geo.addLine(pts[i], pts[(i + 1) % n]) for i in range(n if closed else n - 1)]
 
@@ -326,7 +328,7 @@ def mesh_panel(width: float, height: float, cutout: Cutout, region: Region, spec
     return _with_interior(pm, outer, xy_off, t_off, region_elements, spec.curved)
 
 
-def _generate(gmsh, h_max: float) -> None:
+def _generate(gmsh: Any, h_max: float) -> None:
     """Mesh the model in 2-D with sizes from the background field only (capped at ``h_max``)."""
     gmsh.option.setNumber("Mesh.MeshSizeFromPoints", 0)
     gmsh.option.setNumber("Mesh.MeshSizeFromCurvature", 0)
@@ -336,7 +338,7 @@ def _generate(gmsh, h_max: float) -> None:
     gmsh.model.mesh.generate(2)
 
 
-def _linear_mesh(node_tags, coords, enodes):
+def _linear_mesh(node_tags: np.ndarray, coords: np.ndarray, enodes: np.ndarray) -> Any:
     """``MeshTri1`` from gmsh's flat arrays: coords (3n,), triangle node tags (3m,) -> p (2, n), t (3, m), compact
     (no orphan nodes in the stiffness matrix), counter-clockwise."""
     from skfem import MeshTri1
@@ -397,7 +399,7 @@ def _mesh_row(width: float, height: float, cutout: Cutout, region: Region, spec:
                          spec.curved)
 
 
-def _chain_facets(linear, xy_ring, closed: bool, scale: float) -> tuple[np.ndarray, np.ndarray]:
+def _chain_facets(linear: Any, xy_ring: np.ndarray, closed: bool, scale: float) -> tuple[np.ndarray, np.ndarray]:
     """Facet indices of the segments joining consecutive points ``xy_ring`` (2, n), and whether each facet's
     vertex order runs against the chain."""
     from scipy.spatial import cKDTree
@@ -419,7 +421,7 @@ def _chain_facets(linear, xy_ring, closed: bool, scale: float) -> tuple[np.ndarr
     return found, facets[0, found] != a
 
 
-def _arc_s(cutout: Cutout, t_ring, closed: bool) -> tuple[np.ndarray, np.ndarray]:
+def _arc_s(cutout: Cutout, t_ring: np.ndarray, closed: bool) -> tuple[np.ndarray, np.ndarray]:
     """Unwrapped curve parameters and arc lengths of the arc nodes (closing node repeated for a closed outline)."""
     smp = cutout.sampling
     t_nodes = np.concatenate([t_ring, [t_ring[0] + 2 * math.pi]]) if closed else t_ring
@@ -435,8 +437,8 @@ def _curved_midpoints(cutout: Cutout, s_nodes: np.ndarray) -> np.ndarray:
     return cutout.xy(smp.t_at_arclength(0.5 * (s_nodes[:-1] + s_nodes[1:])))
 
 
-def _with_interior(pm: PanelMesh, outer: Cutout, xy_off, t_off, region_elements: np.ndarray, curved: bool
-                   ) -> PanelMesh:
+def _with_interior(pm: PanelMesh, outer: Cutout, xy_off: np.ndarray, t_off: np.ndarray, region_elements: np.ndarray,
+                   curved: bool) -> PanelMesh:
     """Add the reinforced region's outer edge (an interior line: mid-side nodes moved onto its exact curve) to a
     panel mesh."""
     from dataclasses import replace
@@ -458,7 +460,7 @@ def _with_interior(pm: PanelMesh, outer: Cutout, xy_off, t_off, region_elements:
                    interior_outside=outside, interior_s=s_nodes - s_nodes[0])
 
 
-def _size_field(gmsh, points: list[int], node_h: np.ndarray, growth: float, h_max: float) -> None:
+def _size_field(gmsh: Any, points: list[int], node_h: np.ndarray, growth: float, h_max: float) -> None:
     """Background size min_j(h_j + growth * distance to cutout node group j), groups of similar spacing."""
     fld = gmsh.model.mesh.field
     edges = np.exp(np.arange(np.log(node_h.min()), np.log(node_h.max()) + 0.4, 0.4))  # bins of ratio ~1.5
@@ -479,8 +481,8 @@ def _size_field(gmsh, points: list[int], node_h: np.ndarray, growth: float, h_ma
     fld.setAsBackgroundMesh(low)
 
 
-def _curve_cutout(linear, cutouts: list, xy_rings: list, t_rings: list, closed, region, width, height,
-                  curved: bool = True) -> PanelMesh:
+def _curve_cutout(linear: Any, cutouts: list[Cutout], xy_rings: list[np.ndarray], t_rings: list[np.ndarray],
+                  closed: bool, region: Region, width: float, height: float, curved: bool = True) -> PanelMesh:
     """The quadratic mesh with every opening's mid-side nodes on its exact curve, and its named boundaries."""
     from dataclasses import replace
 
@@ -517,7 +519,7 @@ def _curve_cutout(linear, cutouts: list, xy_rings: list, t_rings: list, closed, 
                      cutout_t=t0, region=region, closed=closed, members=tuple(members))
 
 
-def mesh_from_gmsh(gmsh, surface: int):
+def mesh_from_gmsh(gmsh: Any, surface: int) -> Any:
     """``MeshTri2`` from the current gmsh model after ``generate(2)`` and ``setOrder(2)`` (6-node triangles).
 
     For domains built directly with gmsh's own curved geometry (the panel meshes above use exact analytic

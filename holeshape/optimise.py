@@ -12,6 +12,7 @@ import logging
 import multiprocessing
 import time
 from pathlib import Path
+from typing import Any, TextIO
 
 from holeshape.errors import NoDesignError, SearchError, StorageError, StudyError
 from holeshape.finish import finish_run
@@ -36,15 +37,17 @@ from holeshape.studyfile import load_study
 
 log = logging.getLogger("holeshape.optimise")
 
+# optuna (the module, its studies and storages) and tqdm's bars are typed Any
+
 
 class RunLock:
     """One ``optimise`` per run folder at a time (its worker processes excepted)."""
 
-    def __init__(self, out_dir: Path):
+    def __init__(self, out_dir: Path) -> None:
         self.path = out_dir / ".holeshape.lock"
-        self.fh = None
+        self.fh: TextIO | None = None
 
-    def __enter__(self):
+    def __enter__(self) -> RunLock:
         self.fh = open(self.path, "w")
         try:
             fcntl.flock(self.fh, fcntl.LOCK_EX | fcntl.LOCK_NB)
@@ -54,7 +57,8 @@ class RunLock:
                              " or choose another folder (use --workers to run in parallel)") from err
         return self
 
-    def __exit__(self, *exc):
+    def __exit__(self, *exc: object) -> None:
+        assert self.fh is not None  # opened by __enter__
         fcntl.flock(self.fh, fcntl.LOCK_UN)
         self.fh.close()
 
@@ -113,8 +117,8 @@ def run_optimise(study_path: str, out: str, workers: int = 1, storage_url: str |
         baselines = standard_shapes(study_def)
         if created:  # only the process that created the study seeds it: machines starting together add nothing twice
             objective = Objective(study_def, space, trade_off, cache)
-            own = {k: r.value for k, r in space.dimensions.items()}
-            if all(v is not None for v in own.values()):  # the study's current design first
+            own = {k: r.value for k, r in space.dimensions.items() if r.value is not None}
+            if len(own) == len(space.dimensions):  # the study's current design first (every range has its value)
                 rec = objective(own).with_attrs(standard_shape="study design")
                 add_record(study, space, rec, trade_off)
             for family, cut, _ in baselines:
@@ -131,7 +135,7 @@ def run_optimise(study_path: str, out: str, workers: int = 1, storage_url: str |
                           progress, fp, method)
 
 
-def stored_summary(out_dir: Path, study, fingerprint: str, trials: int) -> dict | None:
+def stored_summary(out_dir: Path, study: Any, fingerprint: str, trials: int) -> dict | None:
     """The summary of a run that is already finished (budget spent, nothing added since, same study file and
     version), or None; a stored run with no answer raises its NoDesignError again."""
     import json
@@ -155,7 +159,7 @@ def stored_summary(out_dir: Path, study, fingerprint: str, trials: int) -> dict 
     return d
 
 
-def _create_or_load(optuna, name: str, storage, directions: list[str]):
+def _create_or_load(optuna: Any, name: str, storage: Any, directions: list[str]) -> tuple[Any, bool]:
     """(study, created): create the study, or load it when it exists. The storage's unique study name decides
     which of several machines starting at once is the creator."""
     from optuna.exceptions import DuplicatedStudyError
@@ -189,7 +193,7 @@ def repair_journal(path: Path) -> None:
         log.warning("dropped a half-written record at the end of %s (the previous run was killed)", path)
 
 
-def fail_stale(study, storage, name: str) -> None:
+def fail_stale(study: Any, storage: Any, name: str) -> None:
     """Trials left RUNNING by a killed local run can never finish: mark them failed, with the reason (through the
     storage's public interface; they do not count towards the budget and are re-run)."""
     from optuna.trial import TrialState
@@ -204,14 +208,14 @@ def fail_stale(study, storage, name: str) -> None:
         storage.set_trial_state_values(trial_id, TrialState.FAIL)
 
 
-def _progress_bar(total: int, enabled: bool, label: str = "search"):
+def _progress_bar(total: int, enabled: bool, label: str = "search") -> Any:
     from tqdm import tqdm
 
     return tqdm(total=total, disable=not enabled, unit="trial", desc=label, dynamic_ncols=True, leave=True,
                 mininterval=0.5)
 
 
-def _update(bar, study, goal: str = "lowest_peak") -> None:
+def _update(bar: Any, study: Any, goal: str = "lowest_peak") -> None:
     done = finished(study)
     feas = [t for t in done if is_feasible(t)]
     best = min((t.values[0] for t in feas), default=None)
@@ -225,8 +229,8 @@ def _update(bar, study, goal: str = "lowest_peak") -> None:
     bar.update(n - bar.n)
 
 
-def _run_workers(study_path, storage_url, out_dir, name, workers, trade_off, total, progress,
-                 goal: str = "lowest_peak", label: str = "search") -> None:
+def _run_workers(study_path: str, storage_url: str | None, out_dir: Path, name: str, workers: int, trade_off: bool,
+                 total: int, progress: bool, goal: str = "lowest_peak", label: str = "search") -> None:
     import optuna
 
     bar = _progress_bar(total, progress, label)

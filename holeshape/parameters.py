@@ -13,9 +13,13 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, replace
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from holeshape.errors import GeometryError, StudyError
+
+if TYPE_CHECKING:
+    from holeshape.geometry import Cutout, Reinforcement
+    from holeshape.geometry.base import Row
 
 SHAPE_PARAMETERS: dict[str, tuple[str, ...]] = {
     "circle": ("radius",),
@@ -96,8 +100,8 @@ class OpeningSpec:
 
     shape: str
     values: tuple[tuple[str, Value], ...]
-    center: tuple[Value, Value]
-    rotation: Value = 0.0
+    center: tuple[float | Range, float | Range]
+    rotation: float | Range = 0.0
 
     def value(self, name: str) -> Value:
         return dict(self.values)[name]
@@ -108,8 +112,8 @@ class RowSpec:
     """``count`` copies of the opening at ``pitch`` (mm) along ``direction`` (degrees)."""
 
     count: int
-    pitch: Value
-    direction: Value = 0.0
+    pitch: float | Range
+    direction: float | Range = 0.0
 
 
 @dataclass(frozen=True)
@@ -136,11 +140,11 @@ class CutoutSpec:
     reinforcement: ReinforcementSpec | None = None
 
     @classmethod
-    def from_cutout(cls, cutout) -> CutoutSpec:
+    def from_cutout(cls, cutout: Cutout) -> CutoutSpec:
         """The spec of a placed :class:`~holeshape.geometry.Cutout` with every value fixed (for the Python API: a
         design built in code, checked like one read from a study file)."""
 
-        def opening(c) -> OpeningSpec:
+        def opening(c: Cutout) -> OpeningSpec:
             vals = tuple((k, tuple(float(x) for x in v) if isinstance(v, (list, tuple)) else v)
                          for k, v in c.shape.parameters().items())
             return OpeningSpec(c.family, vals, (float(c.center[0]), float(c.center[1])), float(c.rotation))
@@ -226,7 +230,7 @@ class CutoutSpec:
                 vals[p] = vals[p] * scale
         return vals
 
-    def build(self, point: dict[Param, float] | None = None, scale: float = 1.0, strict: bool = True):
+    def build(self, point: dict[Param, float] | None = None, scale: float = 1.0, strict: bool = True) -> Cutout:
         """The placed :class:`~holeshape.geometry.Cutout` at ``point`` (see :meth:`resolved`); raises
         :class:`~holeshape.errors.GeometryError` naming the parameter when the values make no valid outline."""
         from holeshape.geometry import FAMILIES, Cutout
@@ -250,7 +254,7 @@ class CutoutSpec:
             first.reinforcement.check_on(first)
         return first
 
-    def _row(self, vals: dict[Param, Any]):
+    def _row(self, vals: dict[Param, Any]) -> Row | None:
         from holeshape.geometry.base import Row
 
         if self.row is None or self.row.count == 1:
@@ -260,7 +264,7 @@ class CutoutSpec:
             raise GeometryError(f"cutout.pitch must be a finite number > 0 mm, got {pitch!r}")
         return Row(count=self.row.count, pitch=pitch, direction=float(vals[Param(0, "row", "direction")]))
 
-    def _reinforcement(self, vals: dict[Param, Any]):
+    def _reinforcement(self, vals: dict[Param, Any]) -> Reinforcement | None:
         from holeshape.geometry.reinforcement import REINFORCEMENTS
 
         if self.reinforcement is None:
@@ -270,25 +274,25 @@ class CutoutSpec:
         r.check()
         return r
 
-    def nominal_reinforcement(self):
+    def nominal_reinforcement(self) -> Reinforcement | None:
         """The reinforcement with each searched size at its ``value`` (else mid-range): the one the standard
         shapes are checked with. None without a [reinforcement] table."""
         return self._reinforcement(self.resolved(strict=False))
 
-    def nominal_row(self):
+    def nominal_row(self) -> Row | None:
         """The row with a searched pitch at its ``value`` (else mid-range), None for one opening."""
         return self._row(self.resolved(strict=False))
 
     def fixed_center(self) -> tuple[float, float] | None:
         """The first opening's centre when neither coordinate is searched."""
-        c = self.openings[0].center
-        return None if any(isinstance(v, Range) for v in c) else (float(c[0]), float(c[1]))
+        cx, cy = self.openings[0].center
+        return None if isinstance(cx, Range) or isinstance(cy, Range) else (float(cx), float(cy))
 
-    def describe(self) -> list[dict]:
+    def describe(self) -> list[dict[str, Any]]:
         """Rows for the reports: every parameter with its unit, fixed value or range (current design)."""
         rows = []
         for p, v in self.entries().items():
-            row = {"parameter": p.flat, "unit": p.unit}
+            row: dict[str, Any] = {"parameter": p.flat, "unit": p.unit}
             if isinstance(v, Range):
                 row.update(min=v.min, max=v.max, value=v.value, searched=True)
             else:

@@ -7,6 +7,8 @@ Units: mm, N, MPa; w (deflection) in mm. Prestress at quadrature points (3, n_el
 
 from __future__ import annotations
 
+from typing import Any
+
 import numpy as np
 
 from holeshape.elastic import Elastic
@@ -18,14 +20,14 @@ QUICK_RESTARTS = 60  # Lanczos restarts before asking whether there is a factor 
 PLATE_QUAD_ORDER = 4  # Morley: second derivatives constant, gradients linear; prestress P1-P2 on a triangle
 
 
-def _per_element(basis, values) -> np.ndarray:
+def _per_element(basis: Any, values: Any) -> np.ndarray:
     """A number or per-element values (n_elements,) spread over ``basis``'s quadrature points."""
     shape = np.asarray(basis.global_coordinates())[0].shape
     v = np.asarray(values, dtype=float)
     return np.ascontiguousarray(np.broadcast_to(v[:, None] if v.ndim == 1 else v, shape))
 
 
-def bending_stiffness(basis, elastic: Elastic, thickness: float, scale=1.0):
+def bending_stiffness(basis: Any, elastic: Elastic, thickness: float, scale: float | np.ndarray = 1.0) -> Any:
     """Kirchhoff plate bending stiffness matrix, N mm (w in mm), of the material's bending law for a plate of
     ``thickness`` (D = E t^3 / (12 (1 - nu^2)) for an isotropic web); ``scale`` (a number or per element)
     multiplies it (a doubler ring's elements)."""
@@ -33,13 +35,13 @@ def bending_stiffness(basis, elastic: Elastic, thickness: float, scale=1.0):
     from skfem.helpers import dd
 
     @BilinearForm
-    def form(u, v, w):
+    def form(u: Any, v: Any, w: Any) -> Any:
         return w["scale"] * elastic.bending_work(thickness, dd(u), dd(v))
 
     return form.assemble(basis, scale=_per_element(basis, scale if np.ndim(scale) else [scale] * basis.nelems))
 
 
-def geometric_stiffness(basis, prestress: np.ndarray, thickness):
+def geometric_stiffness(basis: Any, prestress: np.ndarray, thickness: float | np.ndarray) -> Any:
     """t * integral(grad(u) . S . grad(v)) for the prestress ``prestress`` (3, n_elements, n_qp) MPa at ``basis``'s
     quadrature points (or (3,) for a uniform state); ``thickness`` a number or per element (mm): t S is the
     membrane force per unit length."""
@@ -47,7 +49,7 @@ def geometric_stiffness(basis, prestress: np.ndarray, thickness):
     from skfem.helpers import grad
 
     @BilinearForm
-    def form(u, v, w):
+    def form(u: Any, v: Any, w: Any) -> Any:
         gu, gv = grad(u), grad(v)
         return w["t"] * (w["sxx"] * gu[0] * gv[0] + w["syy"] * gu[1] * gv[1]
                          + w["sxy"] * (gu[0] * gv[1] + gu[1] * gv[0]))
@@ -58,8 +60,8 @@ def geometric_stiffness(basis, prestress: np.ndarray, thickness):
     return form.assemble(basis, sxx=s[0], syy=s[1], sxy=s[2], t=t)
 
 
-def edge_beam_matrices(pb, chain: np.ndarray, closed: bool, bending: float,
-                       axial_force: list[np.ndarray] | None = None):
+def edge_beam_matrices(pb: Any, chain: np.ndarray, closed: bool, bending: float,
+                       axial_force: list[np.ndarray] | None = None) -> tuple[Any, list[Any]]:
     """A beam along a chain of plate vertices (a flange standing on the cutout edge): its bending stiffness
     integral(EI w_ss v_ss ds) and, per load case, its geometric stiffness integral(P w_s v_s ds) for the axial force
     P (N per segment of the chain, tension positive). ``bending`` EI in N mm^2; ``chain`` vertex indices in order
@@ -96,7 +98,7 @@ def edge_beam_matrices(pb, chain: np.ndarray, closed: bool, bending: float,
     return K.tocsr(), [k.tocsr() for k in KG]
 
 
-def plate_basis(p: np.ndarray, t: np.ndarray):
+def plate_basis(p: np.ndarray, t: np.ndarray) -> Any:
     """Morley basis on the straight-sided triangles (p (2, n) vertices, t (3, m)). A new element object per mesh:
     scikit-fem's global elements cache per-mesh data."""
     from skfem import Basis, ElementTriMorley, MeshTri1
@@ -105,7 +107,7 @@ def plate_basis(p: np.ndarray, t: np.ndarray):
                  intorder=PLATE_QUAD_ORDER)
 
 
-def supported_dofs(basis, edge_facets: np.ndarray, edge_support: str) -> np.ndarray:
+def supported_dofs(basis: Any, edge_facets: np.ndarray, edge_support: str) -> np.ndarray:
     """DOFs held on the panel edges: the deflection (simply supported), and the normal slope too (clamped)."""
     if edge_support == "simply_supported":
         return basis.get_dofs(edge_facets).all("u")
@@ -114,8 +116,8 @@ def supported_dofs(basis, edge_facets: np.ndarray, edge_support: str) -> np.ndar
     raise ValueError(f"edge_support must be one of {EDGE_SUPPORTS}, got {edge_support!r}")
 
 
-def lowest_factors(K, KG_cases: list, fixed: np.ndarray, n_modes: int = 1, compression: list[bool] | None = None
-                   ) -> list[list[tuple[float, np.ndarray]]]:
+def lowest_factors(K: Any, KG_cases: list[Any], fixed: np.ndarray, n_modes: int = 1,
+                   compression: list[bool] | None = None) -> list[list[tuple[float, np.ndarray]]]:
     """For each geometric stiffness: the ``n_modes`` smallest positive load factors with their mode vectors (full
     DOF vectors), as [(factor, mode), ...]; an empty list where no factor lies below FACTOR_CEILING. K is factorised
     once for every case. ``compression[j]`` False says the prestress of case j has no compressive principal stress
@@ -133,7 +135,7 @@ def lowest_factors(K, KG_cases: list, fixed: np.ndarray, n_modes: int = 1, compr
     except RuntimeError as err:
         raise SolveError(f"the plate bending stiffness is singular (the panel is not supported): {err}") from err
     Minv = LinearOperator(Kf.shape, matvec=lu.solve, dtype=float)
-    out = []
+    out: list[list[tuple[float, np.ndarray]]] = []
     k = min(max(1, n_modes), len(free) - 2)
     for KG, compressed in zip(KG_cases, compression):
         G = (-KG.tocsr())[free][:, free]
@@ -172,7 +174,7 @@ def has_compression(prestress: np.ndarray, relative: float = 1e-9) -> bool:
     return bool(np.min(smin) < -relative * scale)
 
 
-def _buckles_below(Kf, G, ceiling: float) -> bool:
+def _buckles_below(Kf: Any, G: Any, ceiling: float) -> bool:
     """Whether some load factor lies in (0, ceiling): then K - ceiling * G (with G = -K_G) is no longer positive
     definite. Counted by Sylvester's law of inertia from the pivots of a symmetric, diagonally pivoted
     factorisation (a Sturm-sequence check), so no eigenvalue iteration is spent on a case that cannot buckle."""

@@ -8,6 +8,7 @@ from __future__ import annotations
 
 from dataclasses import asdict, dataclass, field
 from datetime import datetime, timezone
+from typing import Any
 
 from holeshape.checks.base import Requirement, verdict
 from holeshape.stability import CASE_KEYS, DESIGN_KEYS
@@ -133,8 +134,8 @@ class CaseCheck:
     @classmethod
     def from_dict(cls, d: dict) -> CaseCheck:
         own = {f for f in cls.__dataclass_fields__}
-        kw = {k: (tuple(v) if k in ("verdict_reasons", "advice", "locations") else v) for k, v in d.items()
-              if k in own}
+        kw: dict[str, Any] = {k: (tuple(v) if k in ("verdict_reasons", "advice", "locations") else v)
+                              for k, v in d.items() if k in own}
         kw.pop("extra", None)
         return cls(**kw, with_stability="buckling_load_factor" in d,
                    extra={k: v for k, v in d.items() if k not in own})

@@ -7,12 +7,19 @@ Array layouts follow scikit-fem: points (2, n); per-facet samples (..., n_facets
 from __future__ import annotations
 
 import math
+from collections.abc import Callable, Iterable, Iterator
 from dataclasses import dataclass, field
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
 from holeshape.elastic import Elastic
 from holeshape.errors import SolveError
+
+if TYPE_CHECKING:
+    from holeshape.geometry import Reinforcement
+    from holeshape.mesh import PanelMesh
+    from holeshape.study import LoadCase, Panel
 
 # Sampling of each boundary facet for stress recovery, in the facet's reference coordinate [0, 1]. The ends are
 # shared with the neighbouring facets and averaged there; the interior points catch a peak between nodes.
@@ -20,25 +27,26 @@ FACET_SAMPLES = np.linspace(0.0, 1.0, 5)
 QUAD_ORDER = 4  # P2 stiffness on quadratic geometry: degree-2 integrand on straight cells; 4 covers the curved ones
 
 
-def von_mises(sxx, syy, sxy):
+def von_mises(sxx: Any, syy: Any, sxy: Any) -> Any:
     """Plane-stress von Mises stress of (sxx, syy, sxy), MPa (arrays or numbers; the one definition in holeshape)."""
     return np.sqrt(np.maximum(sxx * sxx - sxx * syy + syy * syy + 3 * sxy * sxy, 0.0))
 
 
-def principal_stresses(sxx, syy, sxy):
+def principal_stresses(sxx: Any, syy: Any, sxy: Any) -> tuple[Any, Any]:
     """(larger, smaller) in-plane principal stress, MPa."""
     c, r = 0.5 * (sxx + syy), np.hypot(0.5 * (sxx - syy), sxy)
     return c + r, c - r
 
 
-def vector_basis(mesh):
+def vector_basis(mesh: Any) -> Any:
     """P2 vector basis on a (curved) quadratic triangle mesh."""
     from skfem import Basis, ElementTriP2, ElementVector
 
     return Basis(mesh, ElementVector(ElementTriP2()), intorder=QUAD_ORDER)
 
 
-def edge_points(mesh, facets: np.ndarray, elements: np.ndarray | None = None):
+def edge_points(mesh: Any, facets: np.ndarray, elements: np.ndarray | None = None
+                ) -> Iterator[tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]]:
     """Where boundary (or interior) facets lie inside their elements, grouped by which two local vertices they join.
 
     Yields (selection, element indices, reference points of the facet's end-to-end direction as a function of a
@@ -56,7 +64,7 @@ def edge_points(mesh, facets: np.ndarray, elements: np.ndarray | None = None):
                 yield sel, elem[sel], _REF_VERTICES[a], _REF_VERTICES[b] - _REF_VERTICES[a]
 
 
-def edge_member_stiffness(basis, facets: np.ndarray, axial_stiffness: float):
+def edge_member_stiffness(basis: Any, facets: np.ndarray, axial_stiffness: float) -> Any:
     """Stiffness of a bar along boundary ``facets`` that carries force along the edge only (a formed flange or any
     edge member): energy 1/2 integral(EA eps_ss^2 ds) with the membrane strain of the edge eps_ss = t . grad(u) . t
     (which includes the u_n / R term of a curved edge). ``axial_stiffness`` EA per unit web thickness (N / mm, the
@@ -86,19 +94,20 @@ def edge_member_stiffness(basis, facets: np.ndarray, axial_stiffness: float):
     return coo_matrix((np.concatenate(vals), (np.concatenate(rows), np.concatenate(cols))), shape=(n, n)).tocsr()
 
 
-def stiffness(basis, elastic: Elastic):
+def stiffness(basis: Any, elastic: Elastic) -> Any:
     """Plane-stress membrane stiffness per mm of thickness (N/mm per mm of displacement)."""
     from skfem import BilinearForm
     from skfem.helpers import ddot, sym_grad
 
     @BilinearForm
-    def form(u, v, w):
+    def form(u: Any, v: Any, w: Any) -> Any:
         return ddot(elastic.stress_tensor(sym_grad(u)), sym_grad(v))
 
     return form.assemble(basis)
 
 
-def traction_load(mesh, facets: np.ndarray, stress_field) -> np.ndarray:
+def traction_load(mesh: Any, facets: np.ndarray, stress_field: Callable[[Any, Any], tuple[Any, Any, Any]]
+                  ) -> np.ndarray:
     """Load vector of the traction sigma . n on ``facets`` for a stress field.
 
     ``stress_field(x, y)`` returns (sxx, syy, sxy), each broadcastable to x (MPa); n is the outward normal.
@@ -108,7 +117,7 @@ def traction_load(mesh, facets: np.ndarray, stress_field) -> np.ndarray:
     fb = FacetBasis(mesh, ElementVector(ElementTriP2()), facets=facets, intorder=QUAD_ORDER)
 
     @LinearForm
-    def form(v, w):
+    def form(v: Any, w: Any) -> Any:
         sxx, syy, sxy = (np.broadcast_to(c, w.x[0].shape) for c in stress_field(w.x[0], w.x[1]))
         n = w.n
         return (sxx * n[0] + sxy * n[1]) * v[0] + (sxy * n[0] + syy * n[1]) * v[1]
@@ -123,12 +132,12 @@ class FactorisedSystem:
     ``fixed`` (k,) DOF indices with prescribed values; ``free`` the rest.
     """
 
-    K: object = field(repr=False)
+    K: Any = field(repr=False)
     fixed: np.ndarray
     free: np.ndarray = field(init=False)
-    _lu: object = field(init=False, repr=False)
+    _lu: Any = field(init=False, repr=False)
 
-    def __post_init__(self):
+    def __post_init__(self) -> None:
         from scipy.sparse.linalg import splu
 
         n = self.K.shape[0]
@@ -215,7 +224,7 @@ def stress_from_gradient(grad: np.ndarray, elastic: Elastic) -> np.ndarray:
 _REF_VERTICES = np.array([[0.0, 0.0], [1.0, 0.0], [0.0, 1.0]])  # scikit-fem's reference triangle
 
 
-def boundary_stress(mesh, u: np.ndarray, facets: np.ndarray, elastic: Elastic, closed: bool,
+def boundary_stress(mesh: Any, u: np.ndarray, facets: np.ndarray, elastic: Elastic, closed: bool,
                     s_nodes: np.ndarray | None = None, elements: np.ndarray | None = None) -> BoundaryStress:
     """Recover the stress along a chain of boundary facets without smoothing the peak.
 
@@ -325,13 +334,14 @@ class PanelSolution:
     ``u`` (n_dofs, m) mm; ``cutout`` the boundary stress; ``basis`` the P2 vector basis (for field plots).
     """
 
-    basis: object = field(repr=False)
+    basis: Any = field(repr=False)
     u: np.ndarray = field(repr=False)
-    cutout: BoundaryStress = field(repr=False)
+    cutout: BoundaryStress | None = field(repr=False)  # None when solved with recover=False
     elastic: Elastic
     # the web just outside the reinforced region's interior outline (a ring's outer edge)
     interior_edge: BoundaryStress | None = field(default=None, repr=False)
-    members: tuple = field(default=(), repr=False)  # BoundaryStress of every opening of a row (the first is cutout)
+    # BoundaryStress of every opening of a row (the first is cutout)
+    members: tuple[BoundaryStress, ...] = field(default=(), repr=False)
     system: FactorisedSystem | None = field(default=None, repr=False)  # the factorised stiffness (more load cases)
     loads: np.ndarray | None = field(default=None, repr=False)  # the load vectors (n_dofs, m) that were solved
 
@@ -343,7 +353,7 @@ class PanelSolution:
 EDGE_CONDITIONS = ("traction", "displacement")
 
 
-def reinforcement_terms(reinforcement, elastic: Elastic, thickness: float) -> tuple[float, float]:
+def reinforcement_terms(reinforcement: Reinforcement | None, elastic: Elastic, thickness: float) -> tuple[float, float]:
     """(membrane stiffness of a ring's region over the web's, edge member EA over the web thickness in N/mm) for a
     reinforcement (None: (1, 0)). The web's own stiffness in this module is per mm of its thickness."""
     if reinforcement is None:
@@ -352,9 +362,9 @@ def reinforcement_terms(reinforcement, elastic: Elastic, thickness: float) -> tu
     return reinforcement.region_stiffness_ratio(e, thickness), reinforcement.edge_axial_stiffness(e, thickness)
 
 
-def solve_panel(pm, elastic: Elastic, remote: np.ndarray, edges: str,
-                width: float, height: float, recover: bool = True, reinforcement=None,
-                thickness: float = 1.0, fields: list | None = None) -> PanelSolution:
+def solve_panel(pm: PanelMesh, elastic: Elastic, remote: np.ndarray, edges: str,
+                width: float, height: float, recover: bool = True, reinforcement: Reinforcement | None = None,
+                thickness: float = 1.0, fields: list[BeamField | None] | None = None) -> PanelSolution:
     """Solve a panel mesh (``holeshape.mesh.PanelMesh``) for m uniform remote stress states.
 
     ``remote`` (m, 3): (sigma_x, sigma_y, tau_xy) MPa per load case. ``edges``: "traction" applies sigma . n on
@@ -418,8 +428,8 @@ def solve_panel(pm, elastic: Elastic, remote: np.ndarray, edges: str,
     interior = boundary_stress(mesh, u, pm.interior_facets, elastic, closed=pm.closed,
                                s_nodes=pm.interior_s, elements=pm.interior_outside) \
         if recover and pm.interior_facets is not None else None
-    members = ()
-    if recover and len(pm.members) > 1:
+    members: tuple[BoundaryStress, ...] = ()
+    if cut is not None and len(pm.members) > 1:
         members = (cut,) + tuple(boundary_stress(mesh, u, f, elastic, closed=True, s_nodes=s_m)
                                  for f, _, s_m, _ in pm.members[1:])
     return PanelSolution(basis=basis, u=u, cutout=cut, elastic=elastic, interior_edge=interior, members=members,
@@ -452,8 +462,9 @@ class BeamField:
     shear_constant: float  # C, MPa
 
     @classmethod
-    def of(cls, case, panel) -> BeamField:
+    def of(cls, case: LoadCase, panel: Panel) -> BeamField:
         """The field of a beam load case (``study.LoadCase`` with shear_force / bending_moment) in ``panel``."""
+        assert panel.section_inertia is not None  # the study parser requires it for beam load cases
         v, m, i = float(case.shear_force or 0.0), float(case.bending_moment or 0.0), float(panel.section_inertia)
         h, na, t = panel.height, panel.neutral_axis, panel.thickness
         if panel.shear_distribution == "parabolic":  # zero at the free top and bottom edges (solid section)
@@ -463,7 +474,7 @@ class BeamField:
             c = v / (h * t) + v * mean_eta2 / (2 * i)
         return cls(v, m, panel.width / 2, na, i, c)
 
-    def __call__(self, x, y):
+    def __call__(self, x: Any, y: Any) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
         x, y = np.asarray(x, dtype=float), np.asarray(y, dtype=float)
         eta = y - self.neutral_axis
         sx = (self.moment + self.shear_force * (x - self.x_center)) * eta / self.inertia
@@ -471,7 +482,7 @@ class BeamField:
         return sx, np.zeros_like(sx), np.broadcast_to(txy, sx.shape)
 
 
-def load_fields(panel, load_cases) -> list:
+def load_fields(panel: Panel, load_cases: Iterable[LoadCase]) -> list[BeamField | None]:
     """Per load case: its :class:`BeamField`, or None for a uniform remote stress."""
     return [BeamField.of(lc, panel) if lc.is_beam else None for lc in load_cases]
 
@@ -479,7 +490,8 @@ def load_fields(panel, load_cases) -> list:
 EDGE_NORMALS = {"left": (-1.0, 0.0), "right": (1.0, 0.0), "bottom": (0.0, -1.0), "top": (0.0, 1.0)}
 
 
-def panel_edge_loads(basis, mesh, boundaries: dict, remote: np.ndarray, fields: list | None = None) -> np.ndarray:
+def panel_edge_loads(basis: Any, mesh: Any, boundaries: dict[str, np.ndarray], remote: np.ndarray,
+                     fields: list[BeamField | None] | None = None) -> np.ndarray:
     """Consistent P2 load vectors (n_dofs, m) of the load cases' tractions on the straight panel edges.
 
     Uniform remote stresses: on a straight edge of length L with its mid-side node at the midpoint, a constant
@@ -522,12 +534,12 @@ def panel_edge_loads(basis, mesh, boundaries: dict, remote: np.ndarray, fields: 
     return loads
 
 
-def rigid_body_constraints(basis, pm, width: float, height: float) -> list[np.ndarray]:
+def rigid_body_constraints(basis: Any, pm: PanelMesh, width: float, height: float) -> list[np.ndarray]:
     """DOFs that remove exactly the rigid-body modes a traction-loaded (reduced) panel still has."""
     p = pm.mesh.p[:, :pm.mesh.nvertices]
     region = pm.region
 
-    def vertex(x, y):
+    def vertex(x: float, y: float) -> int:
         return int(np.argmin((p[0] - x) ** 2 + (p[1] - y) ** 2))
 
     nd = basis.nodal_dofs  # (2, n_vertices): ux, uy

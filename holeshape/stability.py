@@ -26,7 +26,9 @@ from __future__ import annotations
 
 import math
 import time
+from collections.abc import Callable, Sequence
 from dataclasses import asdict, dataclass, field, replace
+from typing import TYPE_CHECKING, Any, TypeVar
 
 import numpy as np
 
@@ -42,6 +44,15 @@ from holeshape.plate import (
     supported_dofs,
 )
 from holeshape.study import ACCURACIES, StabilitySettings
+
+if TYPE_CHECKING:
+    from holeshape.geometry import Cutout, Reinforcement
+    from holeshape.mesh import PanelMesh
+    from holeshape.solve import BeamField
+    from holeshape.study import LoadCase, Material, Panel
+
+Modes = list[list[tuple[float, np.ndarray]]]  # per load case: [(factor, mode shape), ...]
+Size = TypeVar("Size")  # what sets a level's mesh: a MeshSpec, or the cell count of a structured mesh
 
 SUPPORT_NOTES = {"simply_supported": "simply supported (deflection held, free to rotate)",
                  "clamped": "clamped (deflection and slope held)"}
@@ -124,7 +135,7 @@ class StabilityResult:
     @property
     def governing(self) -> BucklingCase | None:
         buck = [c for c in self.cases if c.buckles]
-        return min(buck, key=lambda c: c.load_factor) if buck else None
+        return min(buck, key=lambda c: math.inf if c.load_factor is None else c.load_factor) if buck else None
 
     @property
     def load_factor(self) -> float | None:
@@ -169,7 +180,7 @@ class StabilityFields:
 
     p: np.ndarray = field(repr=False)
     t: np.ndarray = field(repr=False)
-    modes: list = field(repr=False)
+    modes: Modes = field(repr=False)
 
 
 EDGE_GAUSS = 4  # Gauss points on each edge of a beam along the cutout
@@ -189,20 +200,20 @@ def estimate_pct(coarse: float, fine: float, ratio: float, floor_pct: float) -> 
 # ----- one mesh level -----------------------------------------------------------------------------------------------
 @dataclass
 class _LevelRun:
-    factors: list  # per case: [(factor, mode)] (possibly empty)
+    factors: Modes  # per case: [(factor, mode)] (possibly empty)
     dofs: int
     p: np.ndarray
     t: np.ndarray
 
 
-def _vertex_deflection(basis, mode: np.ndarray) -> np.ndarray:
+def _vertex_deflection(basis: Any, mode: np.ndarray) -> np.ndarray:
     w = mode[basis.nodal_dofs[0]]
     big = float(np.abs(w).max()) or 1.0
     return w / (big if abs(w.max()) >= abs(w.min()) else -big)
 
 
-def plate_buckling(pm, u: np.ndarray, material, thickness: float, edge_support: str, n_modes: int = 1,
-                   reinforcement=None) -> tuple[list[list[tuple[float, np.ndarray]]], object]:
+def plate_buckling(pm: PanelMesh, u: np.ndarray, material: Material, thickness: float, edge_support: str,
+                   n_modes: int = 1, reinforcement: Reinforcement | None = None) -> tuple[Modes, Any]:
     """Buckling of a meshed panel (``holeshape.mesh.PanelMesh`` of the whole panel) under the in-plane
     displacements ``u`` (n_dofs, m) of its P2 solve (any in-plane boundary condition): per load case the
     ``n_modes`` lowest positive factors with their mode shapes (deflection at the mesh vertices, largest magnitude
@@ -219,6 +230,8 @@ def plate_buckling(pm, u: np.ndarray, material, thickness: float, edge_support: 
     prestresses = [stress_from_gradient(np.asarray(sb.interpolate(u[:, c]).grad), material.elastic)
                    for c in range(u.shape[1])]
     edges = np.concatenate([pm.boundaries[k] for k in ("left", "right", "bottom", "top")])
+    scale: float | np.ndarray
+    force: float | np.ndarray
     scale, force = 1.0, thickness
     extra = None
     e = material.elastic.reference_modulus
@@ -235,7 +248,7 @@ def plate_buckling(pm, u: np.ndarray, material, thickness: float, edge_support: 
                           extra), pb
 
 
-def _edge_beam_terms(pm, pb, u: np.ndarray, bending: float, axial: float):
+def _edge_beam_terms(pm: PanelMesh, pb: Any, u: np.ndarray, bending: float, axial: float) -> tuple[Any, list[Any]]:
     """The bending stiffness and the geometric stiffness per load case (plate matrices) of a beam along the cutout
     edge of bending stiffness ``bending`` (E I, N mm^2) and axial stiffness ``axial`` (E A, N), strained with the
     web's edge."""
@@ -264,9 +277,9 @@ def _edge_beam_terms(pm, pb, u: np.ndarray, bending: float, axial: float):
     return edge_beam_matrices(pb, chain, pm.closed, bending, [f.mean(axis=1) for f in force])
 
 
-def _plate_factors(pb, prestresses: list[np.ndarray], material, thickness: float, edge_facets: np.ndarray,
-                   edge_support: str, n_modes: int, scale=1.0, force=None, extra=None
-                   ) -> list[list[tuple[float, np.ndarray]]]:
+def _plate_factors(pb: Any, prestresses: list[np.ndarray], material: Material, thickness: float,
+                   edge_facets: np.ndarray, edge_support: str, n_modes: int, scale: float | np.ndarray = 1.0,
+                   force: float | np.ndarray | None = None, extra: tuple[Any, list[Any]] | None = None) -> Modes:
     """Per prestress (3, ...) MPa: the lowest positive factors and their vertex mode shapes on plate basis ``pb``
     with ``edge_facets`` supported. ``scale``/``force``: per-element bending stiffness ratio and membrane thickness
     (a ring); ``extra``: (K, [K_G per case]) of an edge beam (a flange)."""
@@ -283,8 +296,8 @@ def _plate_factors(pb, prestresses: list[np.ndarray], material, thickness: float
     return [[(f, _vertex_deflection(pb, m)) for f, m in rows] for rows in facs]
 
 
-def _holed_level(panel, material, remote: np.ndarray, cutout, spec: MeshSpec, support: str, n_modes: int,
-                 fields: list | None = None) -> _LevelRun:
+def _holed_level(panel: Panel, material: Material, remote: np.ndarray, cutout: Cutout, spec: MeshSpec, support: str,
+                 n_modes: int, fields: list[BeamField | None] | None = None) -> _LevelRun:
     from holeshape.solve import solve_panel
 
     region = Region(panel.width, panel.height)  # the whole panel: modes need not be symmetric
@@ -306,8 +319,8 @@ def crossed_grid(width: float, height: float, nx: int, ny: int) -> tuple[np.ndar
     cx, cy = np.meshgrid(0.5 * (xs[1:] + xs[:-1]), 0.5 * (ys[1:] + ys[:-1]), indexing="ij")
     centres = np.vstack([cx.ravel(), cy.ravel()])
     p = np.hstack([corners, centres])
-    i, j = np.meshgrid(np.arange(nx), np.arange(ny), indexing="ij")
-    i, j = i.ravel(), j.ravel()
+    gi, gj = np.meshgrid(np.arange(nx), np.arange(ny), indexing="ij")
+    i, j = gi.ravel(), gj.ravel()
     a, b = i * (ny + 1) + j, (i + 1) * (ny + 1) + j  # lower-left, lower-right
     c, d = b + 1, a + 1  # upper-right, upper-left
     m = corners.shape[1] + i * ny + j
@@ -315,8 +328,8 @@ def crossed_grid(width: float, height: float, nx: int, ny: int) -> tuple[np.ndar
     return p, t
 
 
-def _plain_level(panel, material, remote: np.ndarray, n_short: int, support: str, n_modes: int,
-                 fields: list | None = None) -> _LevelRun:
+def _plain_level(panel: Panel, material: Material, remote: np.ndarray, n_short: int, support: str, n_modes: int,
+                 fields: list[BeamField | None] | None = None) -> _LevelRun:
     """The unperforated panel: a crossed structured mesh and the uniform remote stress (exact for both in-plane
     edge conditions when there is no cutout), or a beam case's own field (exact for an unperforated web)."""
     from skfem import MeshTri1
@@ -334,7 +347,13 @@ def _plain_level(panel, material, remote: np.ndarray, n_short: int, support: str
     return _LevelRun(facs, int(pb.N), p, t)
 
 
-def _converged(run_at, coarse, fine, refine, level: StabilityLevel, n_cases: int, out_of_time=lambda: False):
+# the levels run, (factor, estimate) per load case, and the number of refinements
+Converged = tuple[list[_LevelRun], list[tuple[float | None, float | None]], int]
+
+
+def _converged(run_at: Callable[[Size], _LevelRun], coarse: Size, fine: Size,
+               refine: Callable[[Size], tuple[Size, float]], level: StabilityLevel, n_cases: int,
+               out_of_time: Callable[[], bool] = lambda: False) -> Converged:
     """Plate levels from ``coarse`` and ``fine`` (sizes 2:1), then ``refine(size) -> (finer size, ratio)`` while an
     estimate exceeds the level's target (at most MAX_REFINEMENTS, none once ``out_of_time()``). Returns the runs,
     (factor, estimate) per case from the last two, and the number of refinements."""
@@ -350,12 +369,13 @@ def _converged(run_at, coarse, fine, refine, level: StabilityLevel, n_cases: int
     return runs, [_combine(runs, ratios, j, level.floor_pct) for j in range(n_cases)], len(runs) - 2
 
 
-def _plain_panel(panel, material, remote, level: StabilityLevel, support: str, n_modes: int, fields=None):
+def _plain_panel(panel: Panel, material: Material, remote: np.ndarray, level: StabilityLevel, support: str,
+                 n_modes: int, fields: list[BeamField | None] | None = None) -> Converged:
     """The unperforated panel: nested structured meshes with an exact size ratio of 2 (then about 1.5 per
     refinement, the exact ratio of the cell counts)."""
     n = int(math.ceil(1.0 / level.spec.max_fraction / 2.0)) * 2
 
-    def refine(k):
+    def refine(k: int) -> tuple[int, float]:
         finer = int(round(k * REFINE_RATIO))
         return finer, finer / k
 
@@ -378,7 +398,8 @@ def _combine(runs: list[_LevelRun], ratios: list[float], j: int, floor_pct: floa
     return estimate_pct(fc, ff, ratios[-1], floor_pct)
 
 
-def buckling(panel, material, load_cases, cutout, settings: StabilitySettings, accuracy: str = "standard",
+def buckling(panel: Panel, material: Material, load_cases: Sequence[LoadCase], cutout: Cutout | None,
+             settings: StabilitySettings, accuracy: str = "standard",
              time_limit_s: float | None = None, keep_fields: bool = False, cache: dict | None = None
              ) -> StabilityResult:
     """Buckling load factor of every load case for the panel with ``cutout`` (or without one: ``cutout=None``), and
@@ -393,11 +414,12 @@ def buckling(panel, material, load_cases, cutout, settings: StabilitySettings, a
     fields = load_fields(panel, load_cases)
     support, n_modes = settings.edge_support, max(1, settings.modes if keep_fields else 1)
 
-    def check_time():
+    def check_time() -> None:
         if time_limit_s is not None and time.perf_counter() - t0 > time_limit_s:
             raise SolveError(f"the buckling check exceeded its time limit of {time_limit_s:g} s")
 
-    def holed(spec):
+    def holed(spec: MeshSpec) -> _LevelRun:
+        assert cutout is not None  # run only for a panel with its cutout
         check_time()
         return _holed_level(panel, material, remote, cutout, spec, support, n_modes, fields)
 

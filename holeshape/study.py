@@ -7,7 +7,7 @@ a :class:`Study` (or its parts), never a dictionary from the file.
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from holeshape.elastic import Elastic
 from holeshape.parameters import (  # noqa: F401 - the study's parts, re-exported
@@ -18,6 +18,9 @@ from holeshape.parameters import (  # noqa: F401 - the study's parts, re-exporte
     Param,
     Range,
 )
+
+if TYPE_CHECKING:
+    from holeshape.geometry import Cutout
 
 EDGES = ("traction", "displacement")
 SHEAR_DISTRIBUTIONS = ("uniform", "parabolic")
@@ -108,7 +111,7 @@ class Access:
     center: tuple[float, float] | None = None
     rotation: float = 0.0
 
-    def polygon(self, default_center: tuple[float, float], clearance: float = 0.0):
+    def polygon(self, default_center: tuple[float, float], clearance: float = 0.0) -> Any:
         """Shapely polygon of the envelope grown by ``clearance`` (mm)."""
         from shapely import affinity
         from shapely.geometry import Point, box
@@ -116,6 +119,7 @@ class Access:
         cx, cy = self.center if self.center is not None else default_center
         if self.diameter is not None:
             return Point(cx, cy).buffer(self.diameter / 2 + clearance, quad_segs=64)
+        assert self.width is not None and self.height is not None  # the parser gives a diameter or both sizes
         env = box(cx - self.width / 2, cy - self.height / 2, cx + self.width / 2, cy + self.height / 2)
         env = affinity.rotate(env, self.rotation, origin=(cx, cy))
         return env.buffer(clearance, quad_segs=16, join_style="round") if clearance > 0 else env
@@ -124,6 +128,7 @@ class Access:
     def half_sizes(self) -> tuple[float, float]:
         if self.diameter is not None:
             return self.diameter / 2, self.diameter / 2
+        assert self.width is not None and self.height is not None  # the parser gives a diameter or both sizes
         return self.width / 2, self.height / 2
 
 
@@ -186,7 +191,7 @@ class Study:
     tables: tuple[tuple[str, Any], ...] = ()  # the parsed tables of registered checks that read one (by check name)
 
     @classmethod
-    def of(cls, panel: Panel, material: Material, load_cases: tuple[LoadCase, ...], cutout, *,
+    def of(cls, panel: Panel, material: Material, load_cases: tuple[LoadCase, ...], cutout: Cutout, *,
            title: str = "study", measure: Measure = Measure(), constraints: Constraints = Constraints(),
            stability: StabilitySettings | None = None) -> Study:
         """A study built in code around a placed :class:`~holeshape.geometry.Cutout` (the Python API)."""

@@ -7,6 +7,7 @@ one is never meshed), then those that read the solved design. Adding a check is 
 from __future__ import annotations
 
 import time
+from typing import TYPE_CHECKING
 
 from holeshape.checks.access import AccessCheck
 from holeshape.checks.area import AreaCheck
@@ -32,6 +33,11 @@ from holeshape.checks.stiffness import StiffnessCheck
 from holeshape.checks.stress import StressCheck
 from holeshape.checks.tees import TeeCheck
 
+if TYPE_CHECKING:
+    from holeshape.evaluate import Evaluation
+    from holeshape.geometry import Cutout
+    from holeshape.study import Study
+
 CHECKS: tuple[type[Check], ...] = (
     OutlineCheck, AccessCheck, AreaCheck, ReinforcementGeometryCheck,
     StressCheck, NetSectionCheck, TeeCheck, ReinforcementCheck, BucklingCheck, StiffnessCheck,
@@ -43,9 +49,9 @@ def registered(stage: str | None = None) -> list[type[Check]]:
     return [c for c in CHECKS if stage is None or c.stage == stage]
 
 
-def assess(study, cutout, evaluation=None, *, accuracy: str = "standard", purpose: str = "final",
-           cache: dict | None = None, time_limit_s: float | None = None, keep_fields: bool = False,
-           checks: tuple[type[Check], ...] | None = None) -> Assessment:
+def assess(study: Study, cutout: Cutout, evaluation: Evaluation | None = None, *, accuracy: str = "standard",
+           purpose: str = "final", cache: dict | None = None, time_limit_s: float | None = None,
+           keep_fields: bool = False, checks: tuple[type[Check], ...] | None = None) -> Assessment:
     """Run every check that applies to ``study`` on one design: the geometric ones alone when ``evaluation`` is
     None, every stage otherwise. ``purpose="search"`` runs only the checks a search trial steers by.
     ``checks`` replaces the registry (a test's own check)."""
@@ -64,7 +70,7 @@ def assess(study, cutout, evaluation=None, *, accuracy: str = "standard", purpos
     return Assessment(results=tuple(results), stage="geometry" if evaluation is None else "solved")
 
 
-def absent_sections(study) -> list[Section]:
+def absent_sections(study: Study) -> list[Section]:
     """What the outputs say of the checks a reader looks for that do not apply ("not assessed", and how to ask)."""
     out = []
     for cls in CHECKS:

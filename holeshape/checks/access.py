@@ -5,20 +5,26 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
 from holeshape.checks.base import Check, CheckResult, Design, requirement
 
+if TYPE_CHECKING:
+    from holeshape.geometry import Cutout
+    from holeshape.study import Constraints, Study
+
 ADVICE = "to clear the access envelope: a larger opening round it, or search within the ranges"
 
 
-def access_margin(cutout, cons, poly=None) -> float:
+def access_margin(cutout: Cutout, cons: Constraints, poly: Any = None) -> float:
     """Signed margin (mm) by which the outline clears the access envelope grown by the clearance:
     >= 0 the envelope is inside with that much to spare; < 0 the envelope pokes out by that much."""
     from shapely.geometry import Point, Polygon
 
     poly = poly if poly is not None else Polygon(cutout.polygon(720))
+    assert cons.access is not None  # the check applies with an access envelope only
     env = cons.access.polygon(cutout.center, cons.clearance)
     if poly.contains(env):
         return float(poly.exterior.distance(env))
@@ -26,7 +32,7 @@ def access_margin(cutout, cons, poly=None) -> float:
     return -max(float(poly.distance(Point(*p))) for p in ring)
 
 
-def access_tolerance(cutout, n: int = 720) -> float:
+def access_tolerance(cutout: Cutout, n: int = 720) -> float:
     """How far (mm) the ``n``-gon of an outline falls inside the curve between its vertices (the chord sagitta on
     the smallest radius): an envelope touching the true outline is accepted to this much."""
     perimeter = cutout.sampling.perimeter
@@ -48,7 +54,7 @@ class AccessCheck(Check):
     stage = "geometry"
 
     @classmethod
-    def applies(cls, study) -> bool:
+    def applies(cls, study: Study) -> bool:
         return study.constraints.access is not None
 
     def run(self, design: Design) -> AccessResult:
@@ -64,7 +70,7 @@ class AccessCheck(Check):
                             required_clearance_mm=cons.clearance)
 
     @classmethod
-    def linear_rows(cls, study, cutout):
+    def linear_rows(cls, study: Study, cutout: Cutout) -> np.ndarray | None:
         """The access envelope's points inside the outline, radially (an outline star-shaped about its centre, as
         the free-form spline is), in outline sizes."""
         if not hasattr(cutout.shape, "radius_at"):
@@ -72,6 +78,7 @@ class AccessCheck(Check):
         import shapely
 
         cons = study.constraints
+        assert cons.access is not None  # the check applies with an access envelope only
         size = math.sqrt(max(cutout.area, 1e-12))
         env = cons.access.polygon(cutout.center, cons.clearance)
         q = np.asarray(shapely.segmentize(env, max(env.length / 128.0, 1e-9)).exterior.coords).T

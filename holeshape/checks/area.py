@@ -3,10 +3,15 @@
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import TYPE_CHECKING
 
 import numpy as np
 
 from holeshape.checks.base import Check, CheckResult, Design, requirement
+
+if TYPE_CHECKING:
+    from holeshape.geometry import Cutout
+    from holeshape.study import Study
 
 ADVICE = "to meet the area requirement: change the design or search within the ranges"
 
@@ -23,7 +28,7 @@ class AreaCheck(Check):
     stage = "geometry"
 
     @classmethod
-    def applies(cls, study) -> bool:
+    def applies(cls, study: Study) -> bool:
         c = study.constraints
         return c.area is not None or c.min_area is not None or c.max_area is not None
 
@@ -42,7 +47,7 @@ class AreaCheck(Check):
         return AreaResult(requirements=tuple(reqs), area_mm2=a)
 
     @classmethod
-    def linear_rows(cls, study, cutout):
+    def linear_rows(cls, study: Study, cutout: Cutout) -> np.ndarray | None:
         c, a = study.constraints, cutout.area
         rows = []
         if c.min_area is not None:

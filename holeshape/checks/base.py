@@ -18,7 +18,15 @@ from __future__ import annotations
 import math
 from abc import ABC, abstractmethod
 from dataclasses import asdict, dataclass, field
-from typing import Any, ClassVar
+from typing import TYPE_CHECKING, Any, ClassVar
+
+if TYPE_CHECKING:
+    from collections.abc import Iterable
+
+    import numpy as np
+
+    from holeshape.geometry import Cutout
+    from holeshape.study import Study
 
 RELATIONS = (">=", "<=", "=")
 
@@ -134,12 +142,12 @@ class Verdict:
                 "advice": list(self.advice)}
 
 
-def meets_every_requirement(requirements) -> bool:
+def meets_every_requirement(requirements: Iterable[Requirement]) -> bool:
     """The one definition of a design that passes: every requirement met."""
     return all(r.met for r in requirements)
 
 
-def verdict(requirements, load_case: str | None = None) -> Verdict:
+def verdict(requirements: Iterable[Requirement], load_case: str | None = None) -> Verdict:
     """The verdict over ``requirements`` (those of one load case with ``load_case``)."""
     sel = [r for r in requirements if load_case is None or r.load_case == load_case]
     failed = [r for r in sel if not r.met]
@@ -147,7 +155,7 @@ def verdict(requirements, load_case: str | None = None) -> Verdict:
                    advice=tuple(dict.fromkeys(r.advice for r in failed if r.advice)))
 
 
-def constraint_values(requirements) -> dict[str, float]:
+def constraint_values(requirements: Iterable[Requirement]) -> dict[str, float]:
     """The scaled constraint values the search records, by name (the worst row of each name)."""
     out: dict[str, float] = {}
     for r in requirements:
@@ -202,8 +210,9 @@ class CheckResult:
     requirements: tuple[Requirement, ...] = ()
     warnings: tuple[str, ...] = ()
 
-    def to_dict(self) -> dict[str, Any]:
-        """The result's own block of the JSON (its numbers; the requirements are listed once, with the others)."""
+    def to_dict(self) -> dict[str, Any] | None:
+        """The result's own block of the JSON (its numbers; the requirements are listed once, with the others), or
+        None when the check has no block of its own."""
         d = asdict(self)
         d.pop("requirements")
         d.pop("warnings")
@@ -256,7 +265,7 @@ class Check(ABC):
     table: ClassVar[str | None] = None
 
     @classmethod
-    def applies(cls, study) -> bool:
+    def applies(cls, study: Study) -> bool:
         """Whether the check has anything to say about this study."""
         return True
 
@@ -266,7 +275,7 @@ class Check(ABC):
         return self.applies(design.study)
 
     @classmethod
-    def in_search(cls, study) -> bool:
+    def in_search(cls, study: Study) -> bool:
         """Whether a search trial runs it: it sets a requirement the search must respect."""
         return cls.applies(study)
 
@@ -275,7 +284,7 @@ class Check(ABC):
         """Assess one design."""
 
     @classmethod
-    def absent(cls, study) -> Section | None:
+    def absent(cls, study: Study) -> Section | None:
         """What the outputs say when the check does not apply (a check a reader would look for: "not
         assessed", and how to ask for it). None: nothing."""
         return None
@@ -287,7 +296,7 @@ class Check(ABC):
         raise NotImplementedError
 
     @classmethod
-    def linear_rows(cls, study, cutout):
+    def linear_rows(cls, study: Study, cutout: Cutout) -> np.ndarray | None:
         """Smooth geometric constraint rows (an array, each <= 0 met) for the gradient refinement, or None: the
         same requirements as :meth:`run`, resolved point by point so a linearisation sees every one."""
         return None

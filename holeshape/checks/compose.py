@@ -4,9 +4,13 @@ reader looks for them). No output format is made here; this is the plain data ev
 
 from __future__ import annotations
 
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from holeshape.checks.base import Assessment, Section
+
+if TYPE_CHECKING:
+    from holeshape.evaluate import Evaluation
+    from holeshape.study import Study
 
 
 def blocks(assessment: Assessment) -> dict[str, Any]:
@@ -33,7 +37,7 @@ def case_fields(assessment: Assessment, load_case: str) -> dict[str, Any]:
     return out
 
 
-def sections(assessment: Assessment, study) -> list[Section]:
+def sections(assessment: Assessment, study: Study) -> list[Section]:
     """The sections of every result, then those of the checks a reader looks for that do not apply."""
     from holeshape.checks import absent_sections
 
@@ -41,7 +45,7 @@ def sections(assessment: Assessment, study) -> list[Section]:
     return out + absent_sections(study)
 
 
-def design_json(evaluation, assessment: Assessment, study) -> dict[str, Any]:
+def design_json(evaluation: Evaluation, assessment: Assessment, study: Study) -> dict[str, Any]:
     """The JSON of one checked design: the evaluation, every check's block and fields, the requirement rows, the
     verdict overall and per load case."""
     d = evaluation.to_dict()

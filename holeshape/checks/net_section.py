@@ -18,10 +18,16 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
 from holeshape.checks.base import Check, CheckResult, Design, Section, Table, requirement
+
+if TYPE_CHECKING:
+    from holeshape.geometry import Cutout
+    from holeshape.solve import BeamField
+    from holeshape.study import LoadCase, Panel, Study
 
 GAUSS = 16  # points along each piece of web a cut leaves (the field is smooth there)
 ADVICE = ("to raise the net-section margin: a smaller opening across the load, a thicker web, or a reinforcement that"
@@ -119,7 +125,7 @@ class NetSectionResult(CheckResult):
             f" peak by fatigue. {allow[0].upper() + allow[1:]}.",), (Table(tuple(cols), tuple(rows)),))
 
 
-def _directions(case, field, center) -> list[float]:
+def _directions(case: LoadCase, field: BeamField | None, center: tuple[float, float]) -> list[float]:
     """Section normals (radians) for one load case: the principal directions of the remote stress (at the centre
     for a beam case), then the panel axes; duplicates within 0.01 degree dropped."""
     if field is None:
@@ -135,7 +141,7 @@ def _directions(case, field, center) -> list[float]:
     return out
 
 
-def _cut(center, normal: float, panel, holes):
+def _cut(center: tuple[float, float], normal: float, panel: Panel, holes: Any) -> tuple[list[Any], float]:
     """The pieces of web (a list of ((x0, y0), (x1, y1))) a straight cut through ``center`` normal to ``normal``
     leaves across the panel, and its gross length (mm)."""
     from shapely.geometry import LineString, box
@@ -154,7 +160,7 @@ class NetSectionCheck(Check):
     title = "Net section"
 
     @classmethod
-    def in_search(cls, study) -> bool:
+    def in_search(cls, study: Study) -> bool:
         return study.material.net_section_allowable is not None
 
     def run(self, design: Design) -> NetSectionResult:
@@ -194,13 +200,16 @@ class NetSectionCheck(Check):
             wanted.append(mine)
         g, w = np.polynomial.legendre.leggauss(GAUSS)
         t = 0.5 * (g + 1.0)
-        pts, index = [], {}
+        pts: list[np.ndarray] = []
+        index: dict[tuple, int] = {}
         for key, (_, _, pieces, _) in cuts.items():
             for p, (a, b) in enumerate(pieces):
                 index[(key, p)] = len(pts)
                 pts.append(np.array([a[0] + t * (b[0] - a[0]), a[1] + t * (b[1] - a[1])]))
         sig = stress_at_points(f.panel_mesh, f.solution, np.concatenate(pts, axis=1)) if pts else None
-        sections, governing, margins = [], {}, {}
+        sections: list[NetSection] = []
+        governing: dict[str, int] = {}
+        margins: dict[str, float | None] = {}
         allow = study.material.net_section_allowable
         limit = study.constraints.min_margin if study.constraints.min_margin is not None else 0.0
         reqs = []
@@ -212,6 +221,7 @@ class NetSectionCheck(Check):
                 tt = np.array([-n[1], n[0]])
                 force_n = force_t = length = 0.0
                 for p, (x0, x1) in enumerate(pieces):
+                    assert sig is not None  # a piece of web has its points
                     i0 = index[(key, p)] * GAUSS
                     s = sig[:, i0:i0 + GAUSS, j]  # (3, GAUSS)
                     sn = s[0] * n[0] ** 2 + s[1] * n[1] ** 2 + 2 * s[2] * n[0] * n[1]
@@ -227,6 +237,7 @@ class NetSectionCheck(Check):
                 sections.append(sec)
                 if best is None or sec.equivalent_mpa > sections[best].equivalent_mpa:
                     best = len(sections) - 1
+            assert best is not None  # a cut through an opening inside the panel leaves web beside it
             governing[lc.name] = best
             eq = sections[best].equivalent_mpa
             margins[lc.name] = None if allow is None else (allow / eq - 1.0 if eq > 0 else math.inf)
@@ -240,7 +251,7 @@ class NetSectionCheck(Check):
                                 allowable_mpa=allow, margins=margins, ligament=narrowest_ligament(design))
 
 
-def _post(m0, m1, holes):
+def _post(m0: Cutout, m1: Cutout, holes: Any) -> tuple[Any, Any] | None:
     """The web post between two neighbouring openings: the segment of the line joining their centres outside
     both, as ((x0, y0), (x1, y1)), or None when they touch."""
     from shapely.geometry import LineString

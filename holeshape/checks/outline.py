@@ -5,16 +5,21 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from typing import TYPE_CHECKING
 
 import numpy as np
 
 from holeshape.checks.base import Check, CheckResult, Design, Requirement, Section, Table, requirement
 
+if TYPE_CHECKING:
+    from holeshape.geometry import Cutout
+    from holeshape.study import Study
+
 ADVICE = "to meet the geometric requirements: change the design or search within the ranges"
 INSIDE = 1e-3  # the web left to a panel edge must be at least this share of the smaller panel side (to mesh it)
 
 
-def neighbour_gaps(cutout) -> tuple[float, ...]:
+def neighbour_gaps(cutout: Cutout) -> tuple[float, ...]:
     """The width of web (mm) between each pair of neighbouring openings of a row, or from each of several separate
     openings to its nearest neighbour (empty for one opening)."""
     from shapely.geometry import Polygon
@@ -27,7 +32,7 @@ def neighbour_gaps(cutout) -> tuple[float, ...]:
     return tuple(float(a.distance(b)) for a, b in zip(polys, polys[1:]))
 
 
-def min_radius_at(cutout) -> tuple[float, float]:
+def min_radius_at(cutout: Cutout) -> tuple[float, float]:
     """Panel coordinates (mm) of the point of smallest radius of curvature on the outline."""
     smp = cutout.sampling
     i = int(np.argmax(np.abs(smp.curvature)))
@@ -112,7 +117,7 @@ class OutlineCheck(Check):
                              min_radius_at_mm=min_radius_at(cutout), simple=simple)
 
     @classmethod
-    def linear_rows(cls, study, cutout):
+    def linear_rows(cls, study: Study, cutout: Cutout) -> np.ndarray | None:
         """The distance of every outline point to every panel edge against the ligament, and the curvature against
         the smallest radius (in outline sizes and relative: smooth in the shape's parameters)."""
         panel, cons = study.panel, study.constraints

@@ -5,8 +5,12 @@ peak at each place it names. mm, mm^2, kg, MPa."""
 from __future__ import annotations
 
 from dataclasses import asdict, dataclass
+from typing import TYPE_CHECKING
 
 from holeshape.checks.base import Check, CheckResult, Design, Section, Table, requirement
+
+if TYPE_CHECKING:
+    from holeshape.study import Study
 
 ADVICE_GEOMETRY = "to fit the reinforcement: a narrower ring, or search its sizes within their ranges"
 ADVICE_MASS = "to lighten the reinforcement: a smaller flange or ring, or search its sizes (ranges in [reinforcement])"
@@ -18,7 +22,7 @@ class ReinforcementGeometry(CheckResult):
     cross_section_mm2: float | None
     added_mass_kg: float | None
 
-    def to_dict(self):
+    def to_dict(self) -> None:
         return None
 
 
@@ -28,7 +32,7 @@ class ReinforcementGeometryCheck(Check):
     stage = "geometry"
 
     @classmethod
-    def applies(cls, study) -> bool:
+    def applies(cls, study: Study) -> bool:
         return study.cutout.reinforcement is not None
 
     def relevant(self, design: Design) -> bool:
@@ -116,11 +120,11 @@ class ReinforcementCheck(Check):
     title = "Reinforcement"
 
     @classmethod
-    def applies(cls, study) -> bool:
+    def applies(cls, study: Study) -> bool:
         return study.cutout.reinforcement is not None
 
     @classmethod
-    def in_search(cls, study) -> bool:
+    def in_search(cls, study: Study) -> bool:
         return False  # its stresses are among the evaluation's locations; its limits are geometric
 
     def relevant(self, design: Design) -> bool:

@@ -7,10 +7,14 @@ sheet for each: t E_x / E, t E_y / E, t G_xy / G. Reported, not a requirement.""
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import TYPE_CHECKING
 
 import numpy as np
 
 from holeshape.checks.base import Check, CheckResult, Design, Section, Table
+
+if TYPE_CHECKING:
+    from holeshape.study import Study
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -56,7 +60,7 @@ class StiffnessCheck(Check):
     title = "Effective stiffness"
 
     @classmethod
-    def in_search(cls, study) -> bool:
+    def in_search(cls, study: Study) -> bool:
         return False  # reported for the global model, not a requirement
 
     def run(self, design: Design) -> StiffnessResult:

@@ -5,10 +5,14 @@ Read from the solved field with Gauss points along each section."""
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import TYPE_CHECKING
 
 import numpy as np
 
 from holeshape.checks.base import Check, CheckResult, Design, Section, Table
+
+if TYPE_CHECKING:
+    from holeshape.study import Study
 
 GAUSS = 24  # points along each section (exact for the field's polynomial degree many times over)
 
@@ -39,11 +43,11 @@ class TeeCheck(Check):
     title = "Tee sections"
 
     @classmethod
-    def applies(cls, study) -> bool:
+    def applies(cls, study: Study) -> bool:
         return any(lc.is_beam for lc in study.load_cases)
 
     @classmethod
-    def in_search(cls, study) -> bool:
+    def in_search(cls, study: Study) -> bool:
         return False  # reported, not a requirement
 
     def run(self, design: Design) -> TeeResult:

@@ -9,13 +9,17 @@ half boundaries for reduced models.
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
 from dataclasses import dataclass, field
 from functools import cached_property
-from typing import ClassVar
+from typing import TYPE_CHECKING, Any, ClassVar
 
 import numpy as np
 
 from holeshape.errors import GeometryError
+
+if TYPE_CHECKING:
+    from holeshape.geometry.reinforcement import Reinforcement
 
 TWO_PI = 2.0 * math.pi
 
@@ -40,7 +44,7 @@ class Shape:
         """Closed-form area in mm^2 where one exists (the contract tests compare it with the sampled area)."""
         return None
 
-    def parameters(self) -> dict[str, object]:
+    def parameters(self) -> dict[str, Any]:
         """The family's parameters by their study-file names."""
         from dataclasses import fields
 
@@ -85,10 +89,10 @@ class BoundarySampling:
     points: np.ndarray
     s: np.ndarray
     curvature: np.ndarray
-    xy: object = field(repr=False, compare=False)
+    xy: Callable[[np.ndarray], np.ndarray] = field(repr=False, compare=False)
 
     @classmethod
-    def of(cls, xy, n: int = 8192) -> BoundarySampling:
+    def of(cls, xy: Callable[[np.ndarray], np.ndarray], n: int = 8192) -> BoundarySampling:
         t = np.linspace(0.0, TWO_PI, n, endpoint=False)
         p = np.asarray(xy(t), dtype=float)
         d = 1e-5
@@ -136,7 +140,7 @@ class BoundarySampling:
         return np.asarray(self.xy(self.t_at_arclength(s)))
 
 
-def quadrant_mirror(quarter, t: np.ndarray) -> np.ndarray:
+def quadrant_mirror(quarter: Callable[[np.ndarray], tuple[np.ndarray, np.ndarray]], t: np.ndarray) -> np.ndarray:
     """Build a doubly symmetric closed curve from its first-quadrant arc.
 
     ``quarter(u)`` maps u in [0, 1] from a point on the +x axis to a point on the +y axis. Returns (2, n).
@@ -180,9 +184,9 @@ class Cutout:
     shape: Shape
     center: tuple[float, float]
     rotation: float = 0.0
-    reinforcement: object = None
+    reinforcement: Reinforcement | None = None
     row: Row | None = None  # several openings at a pitch (None: one opening)
-    others: tuple = ()  # further openings of their own shapes (separate [[cutout]] tables), each a Cutout
+    others: tuple[Cutout, ...] = ()  # further openings of their own shapes (separate [[cutout]] tables), each a Cutout
 
     @property
     def members(self) -> list[Cutout]:
@@ -253,7 +257,7 @@ class Cutout:
         """(n, 2) points evenly spaced in arc length, counter-clockwise, panel coordinates."""
         return self.sampling.even_points(n).T
 
-    def parameters(self) -> dict[str, object]:
+    def parameters(self) -> dict[str, Any]:
         out = dict(self.shape.parameters())
         out["center"] = list(self.center)
         out["rotation"] = self.rotation

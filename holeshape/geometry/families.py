@@ -22,10 +22,10 @@ class Circle(Shape):
     def check(self) -> None:
         require_positive("radius", self.radius)
 
-    def local_xy(self, t):
+    def local_xy(self, t: np.ndarray) -> np.ndarray:
         return np.array([self.radius * np.cos(t), self.radius * np.sin(t)])
 
-    def exact_area(self):
+    def exact_area(self) -> float:
         return math.pi * self.radius**2
 
     @property
@@ -45,10 +45,10 @@ class Ellipse(Shape):
         require_positive("a", self.a)
         require_positive("b", self.b)
 
-    def local_xy(self, t):
+    def local_xy(self, t: np.ndarray) -> np.ndarray:
         return np.array([self.a * np.cos(t), self.b * np.sin(t)])
 
-    def exact_area(self):
+    def exact_area(self) -> float:
         return math.pi * self.a * self.b
 
     @property
@@ -81,13 +81,13 @@ class Superellipse(Shape):
                 f" (2 = ellipse, larger = squarer), got {n!r}"
             )
 
-    def local_xy(self, t):
+    def local_xy(self, t: np.ndarray) -> np.ndarray:
         n = self.exponent
         c, s = np.cos(t), np.sin(t)
         r = (np.abs(c / self.a) ** n + np.abs(s / self.b) ** n) ** (-1.0 / n)
         return np.array([r * c, r * s])
 
-    def exact_area(self):
+    def exact_area(self) -> float:
         n = self.exponent
         return 4.0 * self.a * self.b * math.gamma(1 + 1 / n) ** 2 / math.gamma(1 + 2 / n)
 
@@ -115,7 +115,7 @@ class Slot(Shape):
                 f" (use a circle for equal sizes), got {self.length!r}"
             )
 
-    def _quarter(self, u):
+    def _quarter(self, u: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         r = self.width / 2
         c = (self.length - self.width) / 2
         arc = math.pi * r / 2
@@ -126,10 +126,10 @@ class Slot(Shape):
         y = np.where(on_arc, r * np.sin(phi), r)
         return x, y
 
-    def local_xy(self, t):
+    def local_xy(self, t: np.ndarray) -> np.ndarray:
         return quadrant_mirror(self._quarter, t)
 
-    def exact_area(self):
+    def exact_area(self) -> float:
         r = self.width / 2
         return math.pi * r**2 + (self.length - self.width) * self.width
 
@@ -156,7 +156,7 @@ class RoundedRectangle(Shape):
                 f"cutout.corner_radius must be <= min(a, b) = {min(self.a, self.b)!r} mm, got {self.corner_radius!r}"
             )
 
-    def _quarter(self, u):
+    def _quarter(self, u: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         a, b, rc = self.a, self.b, self.corner_radius
         l1, arc, l2 = b - rc, math.pi * rc / 2, a - rc
         s = u * (l1 + arc + l2)
@@ -165,10 +165,10 @@ class RoundedRectangle(Shape):
         y = np.where(s <= l1, s, np.where(s <= l1 + arc, b - rc + rc * np.sin(phi), b))
         return x, y
 
-    def local_xy(self, t):
+    def local_xy(self, t: np.ndarray) -> np.ndarray:
         return quadrant_mirror(self._quarter, t)
 
-    def exact_area(self):
+    def exact_area(self) -> float:
         return 4 * self.a * self.b - (4 - math.pi) * self.corner_radius**2
 
     @property

@@ -21,12 +21,12 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, fields, replace
-from typing import ClassVar
+from typing import Any, ClassVar
 
 import numpy as np
 
 from holeshape.errors import GeometryError
-from holeshape.geometry.base import Shape
+from holeshape.geometry.base import Cutout, Shape
 
 # a flange is formed by stretching the sheet round the hole: its free edge stretches by height / radius. The
 # outline's smallest radius of curvature must be at least this many flange heights (a stretch of at most 25 %;
@@ -115,8 +115,8 @@ class Reinforcement:
         """Area of the reinforcement's cross-section normal to the outline, mm^2."""
         return float(self.size) * self.member_thickness(web_thickness)
 
-    def parameters(self) -> dict[str, object]:
-        out: dict[str, object] = {"kind": self.kind}
+    def parameters(self) -> dict[str, Any]:
+        out: dict[str, Any] = {"kind": self.kind}
         for name in self.keys():
             v = getattr(self, name)
             if v is not None:
@@ -128,7 +128,7 @@ class Reinforcement:
         return replace(self, **{n: float(getattr(self, n)) * factor for n in names if getattr(self, n) is not None})
 
     # ----- what the lower layers ask (defaults: a kind that adds nothing of that sort) -----------------------------
-    def interior_outline(self, cutout):
+    def interior_outline(self, cutout: Cutout) -> Cutout | None:
         """The placed outline the mesh must follow inside the web (the edge of the reinforced region), or None."""
         return None
 
@@ -152,10 +152,10 @@ class Reinforcement:
         """Where the reinforcement's own stress, or the web's beside it, is read (besides the cutout edge)."""
         return ()
 
-    def check_on(self, cutout) -> None:
+    def check_on(self, cutout: Cutout) -> None:
         """Raise :class:`GeometryError` when the kind cannot be made on this outline."""
 
-    def sizes(self, cutout, web_thickness: float) -> ReinforcedSizes:
+    def sizes(self, cutout: Cutout, web_thickness: float) -> ReinforcedSizes:
         raise NotImplementedError
 
     def label(self) -> str:
@@ -187,32 +187,34 @@ class Flange(Reinforcement):
     def size(self) -> float:
         return float(self.height or 0.0)
 
-    def edge_axial_stiffness(self, web_modulus, web_thickness):
+    def edge_axial_stiffness(self, web_modulus: float, web_thickness: float) -> float:
         return self.modulus(web_modulus) * self.cross_section_mm2(web_thickness) / web_thickness
 
-    def edge_beam(self, web_modulus, web_thickness):
+    def edge_beam(self, web_modulus: float, web_thickness: float) -> tuple[float, float] | None:
         """E t_f h^3 / 12 about the flange's own centroid, bending in its own plane (normal to the web along the
         edge; the web's share is ignored, which errs low), and E A."""
         e, t_f = self.modulus(web_modulus), self.member_thickness(web_thickness)
+        assert self.height is not None  # a required size: check() refuses None
         return e * t_f * float(self.height) ** 3 / 12.0, e * self.cross_section_mm2(web_thickness)
 
-    def stress_locations(self, web_modulus):
+    def stress_locations(self, web_modulus: float) -> tuple[StressLocation, ...]:
         return (StressLocation(FLANGE, "edge_member", modulus=self.modulus(web_modulus)),)
 
-    def check_on(self, cutout) -> None:
+    def check_on(self, cutout: Cutout) -> None:
         """A flange needs a convex outline whose radii are all at least FLANGE_RADIUS_PER_HEIGHT flange heights."""
         curv = cutout.sampling.curvature
         if np.any(curv < -1e-9):
             raise GeometryError(f"reinforcement.kind = \"flange\" needs a convex outline; this {cutout.family} is"
                                 f" concave in places (radius {1.0 / float(-curv.min()):.3g} mm): use a ring instead")
         rmin = cutout.min_radius
+        assert self.height is not None  # a required size: check() refuses None
         if rmin < FLANGE_RADIUS_PER_HEIGHT * float(self.height):
             raise GeometryError(
                 f"reinforcement.height = {self.height:g} mm cannot be formed round a {rmin:.3g} mm radius of the"
                 f" outline: every radius must be at least {FLANGE_RADIUS_PER_HEIGHT:g} x the flange height (a"
                 f" free-edge stretch of at most 25 %), i.e. height <= {rmin / FLANGE_RADIUS_PER_HEIGHT:.3g} mm here")
 
-    def sizes(self, cutout, web_thickness):
+    def sizes(self, cutout: Cutout, web_thickness: float) -> ReinforcedSizes:
         perimeter = cutout.sampling.perimeter
         a = self.cross_section_mm2(web_thickness)
         return ReinforcedSizes(a, a * perimeter, 0.0, perimeter)
@@ -220,7 +222,7 @@ class Flange(Reinforcement):
     def label(self) -> str:
         return f"flange {self.size:.1f} mm"
 
-    def drawing_note(self, web_thickness):
+    def drawing_note(self, web_thickness: float | None) -> str:
         t = self.thickness if self.thickness is not None else web_thickness
         t_text = "the web's thickness" if t is None else f"{t:g} mm thick"
         return (f"formed flange {self.height:g} mm high, {t_text}, standing on the whole cutout edge (not drawn in the"
@@ -248,13 +250,14 @@ class Ring(Reinforcement):
     def size(self) -> float:
         return float(self.width or 0.0)
 
-    def interior_outline(self, cutout):
+    def interior_outline(self, cutout: Cutout) -> Cutout | None:
+        assert self.width is not None  # a required size: check() refuses None
         return ring_outline(cutout, float(self.width))
 
-    def region_stiffness_ratio(self, web_modulus, web_thickness):
+    def region_stiffness_ratio(self, web_modulus: float, web_thickness: float) -> float:
         return 1.0 + self.modulus(web_modulus) * self.member_thickness(web_thickness) / (web_modulus * web_thickness)
 
-    def region_bending_ratio(self, web_modulus, web_thickness):
+    def region_bending_ratio(self, web_modulus: float, web_thickness: float) -> float:
         """Bending stiffness of web plus a doubler on one face over the web's alone, about the stack's own neutral
         plane (the membrane-bending coupling of the eccentric doubler is neglected)."""
         e_r, t_r = self.modulus(web_modulus), self.member_thickness(web_thickness)
@@ -264,16 +267,17 @@ class Ring(Reinforcement):
         d = sum(e * (h ** 3 / 12.0 + h * (z - z0) ** 2) for e, h, z in layers)
         return d / (web_modulus * t ** 3 / 12.0)
 
-    def stress_locations(self, web_modulus):
+    def stress_locations(self, web_modulus: float) -> tuple[StressLocation, ...]:
         out = [StressLocation(RING_EDGE, "interior_edge")]
         e_r = self.modulus(web_modulus)
         if e_r != web_modulus:
             out.append(StressLocation(DOUBLER, "cutout_scaled", factor=e_r / web_modulus))
         return tuple(out)
 
-    def sizes(self, cutout, web_thickness):
+    def sizes(self, cutout: Cutout, web_thickness: float) -> ReinforcedSizes:
         perimeter = cutout.sampling.perimeter
         a = self.cross_section_mm2(web_thickness)
+        assert self.width is not None  # a required size: check() refuses None
         outer = ring_outline(cutout, float(self.width))
         ring_area = outer.sampling.area - cutout.sampling.area
         return ReinforcedSizes(a, ring_area * self.member_thickness(web_thickness), ring_area, perimeter)
@@ -281,7 +285,7 @@ class Ring(Reinforcement):
     def label(self) -> str:
         return f"doubler ring {self.size:.1f} mm wide"
 
-    def drawing_note(self, web_thickness):
+    def drawing_note(self, web_thickness: float | None) -> str:
         t = self.thickness if self.thickness is not None else web_thickness
         t_text = "the web's thickness" if t is None else f"{t:g} mm thick"
         return f"doubler ring {self.width:g} mm wide, {t_text}: outer edge on layer {self.drawing_layer}"
@@ -317,11 +321,11 @@ class OffsetShape(Shape):
         # outward normal of a counter-clockwise curve: the tangent turned clockwise
         return p + self.distance * np.array([dp[1], -dp[0]]) / speed
 
-    def parameters(self) -> dict[str, object]:
+    def parameters(self) -> dict[str, Any]:
         return {"distance": self.distance}
 
 
-def ring_outline(cutout, width: float):
+def ring_outline(cutout: Cutout, width: float) -> Cutout:
     """The placed outer edge of a ring of ``width`` round ``cutout`` (a ``Cutout`` of an :class:`OffsetShape`).
 
     Raises :class:`GeometryError` when the offset would fold over itself (a concave part of the outline with a
@@ -335,12 +339,12 @@ def ring_outline(cutout, width: float):
     return replace(cutout, shape=OffsetShape(base=cutout.shape, distance=float(width)), reinforcement=None)
 
 
-def reinforced_sizes(cutout, web_thickness: float) -> ReinforcedSizes | None:
+def reinforced_sizes(cutout: Cutout, web_thickness: float) -> ReinforcedSizes | None:
     r = cutout.reinforcement
     return None if r is None else r.sizes(cutout, web_thickness)
 
 
-def check_formable(cutout) -> None:
+def check_formable(cutout: Cutout) -> None:
     """Raise :class:`GeometryError` when the cutout's reinforcement cannot be made on its outline."""
     if cutout.reinforcement is not None:
         cutout.reinforcement.check_on(cutout)

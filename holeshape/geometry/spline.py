@@ -5,7 +5,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 from functools import cached_property
-from typing import ClassVar
+from typing import Any, ClassVar
 
 import numpy as np
 
@@ -47,15 +47,15 @@ class Spline(Shape):
         for i, r in enumerate(self.radii):
             if not (isinstance(r, (int, float)) and math.isfinite(r) and r > 0):
                 raise GeometryError(f"cutout.radii[{i}] must be a finite number > 0 mm, got {r!r}")
-        r = self.radius_at(np.linspace(0, 2 * math.pi, 4096, endpoint=False))
-        if r.min() <= 1e-3 * max(self.radii):
+        radius = self.radius_at(np.linspace(0, 2 * math.pi, 4096, endpoint=False))
+        if radius.min() <= 1e-3 * max(self.radii):
             raise GeometryError(
                 f"cutout.radii {list(self.radii)} give a self-crossing spline (the curve passes through its centre);"
                 " use radii that vary more gently"
             )
 
     @cached_property
-    def _spline(self):
+    def _spline(self) -> Any:
         from scipy.interpolate import CubicSpline
 
         r = np.asarray(self.radii, dtype=float)
@@ -66,13 +66,13 @@ class Spline(Shape):
         theta = np.linspace(0.0, 2 * math.pi, len(r) + 1)
         return CubicSpline(theta, np.concatenate([r, r[:1]]), bc_type="periodic")
 
-    def radius_at(self, t):
+    def radius_at(self, t: np.ndarray) -> np.ndarray:
         """The polar radius (mm) at angle ``t`` (radians, the shape's own frame): the spline is star-shaped."""
         return self._spline(np.mod(t, 2 * math.pi))
 
-    def local_xy(self, t):
+    def local_xy(self, t: np.ndarray) -> np.ndarray:
         r = self.radius_at(t)
         return np.array([r * np.cos(t), r * np.sin(t)])
 
-    def parameters(self) -> dict[str, object]:
+    def parameters(self) -> dict[str, Any]:
         return {"radii": list(self.radii), "symmetry": self.symmetry}

@@ -9,11 +9,15 @@ import os
 import re
 import tempfile
 from pathlib import Path
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
 from holeshape.errors import HoleshapeError
 from holeshape.geometry import Cutout
+
+if TYPE_CHECKING:
+    from holeshape.evaluate import EvaluationFields
 
 CUTOUT_LAYER = "CUTOUT_PROFILE"
 PANEL_LAYER = "PANEL_OUTLINE"
@@ -61,7 +65,7 @@ def atomic_write(path: Path, data: bytes | str) -> Path:
     return path
 
 
-def write_json(path: Path, obj) -> Path:
+def write_json(path: Path, obj: Any) -> Path:
     return atomic_write(path, json.dumps(obj, indent=2, allow_nan=False) + "\n")
 
 
@@ -126,7 +130,7 @@ def write_dxf(path: Path, cutout: Cutout, panel_size: tuple[float, float] | None
     ring_pts = None
     r = cutout.reinforcement
     outer = None if r is None else r.interior_outline(cutout)
-    if outer is not None:
+    if r is not None and outer is not None:
         ring_pts = profile_points(outer)
         if chord_error(outer, ring_pts) > CHORD_TOLERANCE_MM:
             raise HoleshapeError(f"the {r.kind}'s outer edge cannot be written within the chord tolerance; not"
@@ -143,11 +147,12 @@ def write_dxf(path: Path, cutout: Cutout, panel_size: tuple[float, float] | None
         w, h = panel_size
         msp.add_lwpolyline([(0.0, 0.0), (w, 0.0), (w, h), (0.0, h)], close=True, dxfattribs={"layer": PANEL_LAYER})
     if ring_pts is not None:
+        assert r is not None and r.drawing_layer is not None  # a kind with an outer edge names its layer
         doc.layers.add(r.drawing_layer, color=5)
         msp.add_lwpolyline([tuple(map(float, p)) for p in ring_pts], format="xy", close=True,
                            dxfattribs={"layer": r.drawing_layer})
     note = reinforcement_note(cutout, web_thickness)
-    if note is not None:
+    if r is not None and note is not None:
         doc.header.custom_vars.append("HOLESHAPE_REINFORCEMENT", note)
         for k, v in r.parameters().items():
             doc.header.custom_vars.append(f"HOLESHAPE_REINFORCEMENT_{k.upper()}", str(v))
@@ -185,7 +190,7 @@ def write_csv(path: Path, cutout: Cutout) -> Path:
     return atomic_write(path, "\n".join(rows) + "\n")
 
 
-def write_vtk(path: Path, fields, load_case_names: list[str]) -> Path:
+def write_vtk(path: Path, fields: EvaluationFields, load_case_names: list[str]) -> Path:
     """The stress field of a design as VTK XML (.vtu) for any open-source field viewer: vertex values of
     sxx, syy, sxy and von Mises per load case (MPa); a reduced model is mirrored to the whole panel. Written
     atomically."""
@@ -205,6 +210,7 @@ def write_vtk(path: Path, fields, load_case_names: list[str]) -> Path:
         for label, v in (("sxx", sxx), ("syy", syy), ("sxy", sxy), ("von_mises", vm)):
             p, t, vals = mirrored_triangulation(fields, v[:nv], odd=label == "sxy")
             data[f"{key}_{label}_MPa"] = vals
+    assert p is not None and t is not None  # a design has at least one load case
     pts = np.column_stack([p.T, np.zeros(p.shape[1])])
     tmp = path.with_name(f".{path.stem}.tmp{path.suffix}")
     meshio.write_points_cells(str(tmp), pts, [("triangle", t.T.astype(np.int64))], point_data=data)

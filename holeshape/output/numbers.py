@@ -4,7 +4,10 @@ report, so a stress reads the same everywhere."""
 from __future__ import annotations
 
 import math
-from typing import Any
+from typing import TYPE_CHECKING, Any
+
+if TYPE_CHECKING:
+    from holeshape.checks import Requirement
 
 
 def sig(v: float, figures: int = 2) -> str:
@@ -62,7 +65,7 @@ def _fmt(key: str, v: Any) -> str:
     return f"{v:.4g}"
 
 
-def requirement_value(r) -> str:
+def requirement_value(r: Requirement) -> str:
     """A requirement row's value for people, by its kind: margins signed to 3 decimals, factors to 3 decimals,
     error estimates to 2 significant figures, lengths to 0.1 mm, areas to 1 mm^2, masses to 3 figures; with its
     unit. ``r``: a :class:`~holeshape.checks.Requirement`."""
@@ -86,7 +89,7 @@ def requirement_value(r) -> str:
     return f"{v:.4g} {unit}".strip()
 
 
-def limit_value(r) -> str:
+def limit_value(r: Requirement) -> str:
     """What a requirement asks for, with its unit."""
     unit = {"": "", "%": " %"}.get(r.unit, f" {r.unit}")
     if r.kind == "margin":
@@ -96,7 +99,7 @@ def limit_value(r) -> str:
     return f"{r.relation} {r.limit:g}{unit}"
 
 
-def stored_value(row: dict, v, limit: bool = False) -> str:
+def stored_value(row: dict, v: float | None, limit: bool = False) -> str:
     """A value of a stored requirement row (a dict with its ``kind`` and ``unit``), as :func:`requirement_value`
     reads a live one; ``limit`` for the required value (as the study gave it)."""
     if v is None:

@@ -6,9 +6,13 @@ from __future__ import annotations
 import base64
 import html
 from pathlib import Path
+from typing import TYPE_CHECKING, Any
 
 from holeshape.output.files import atomic_write
 from holeshape.output.numbers import fmt
+
+if TYPE_CHECKING:
+    from holeshape.checks.base import Section
 
 CSS = """body{font-family:sans-serif;max-width:60em;margin:2em auto;color:#111;line-height:1.4}
 h1{font-size:1.6em}h2{font-size:1.25em;border-bottom:1px solid #888;margin-top:1.6em}
@@ -25,7 +29,7 @@ LOAD_CHECK = ("<script>window.addEventListener('load',function(){var n=0;documen
 
 
 def render_table(rows: list[dict], cols: list[tuple[str, str]], md: bool) -> str:
-    def cell_of(r, k):
+    def cell_of(r: dict, k: str) -> str:
         return fmt(k, r.get(k))
 
     if md:
@@ -42,7 +46,7 @@ LENGTH_KEYS = ("radius", "a", "b", "length", "width", "corner_radius", "radii", 
 
 def describe_params(params: dict) -> str:
     """Shape parameters for people: lengths to 0.1 mm, angles to 0.1 degree, the exponent to 3 figures."""
-    def one(k, v):
+    def one(k: str, v: Any) -> str:
         if k.startswith("reinforcement."):
             return f"{v:.1f} mm" if isinstance(v, float) and not k.endswith("youngs_modulus") else f"{v}"
         if isinstance(v, list):
@@ -60,7 +64,7 @@ def describe_params(params: dict) -> str:
         return f"{v:.1f} mm" if k in LENGTH_KEYS and k != "center" else f"{v:.1f}"
     kind = params.get("reinforcement.kind")
 
-    def label(k):
+    def label(k: str) -> str:
         if k.startswith("reinforcement."):
             return f"{kind} {k.split('.', 1)[1].replace('_', ' ')}"
         return k.replace("_", " ")
@@ -68,7 +72,7 @@ def describe_params(params: dict) -> str:
                      for k, v in params.items() if k != "reinforcement.kind")
 
 
-def describe_value(v) -> str:
+def describe_value(v: Any) -> str:
     if isinstance(v, dict):
         out = f"searched from {v['min']:g} to {v['max']:g}"
         return out + (f" (current design {v['value']:g})" if v.get("value") is not None else "")
@@ -105,7 +109,9 @@ def describe_constraints(cons: dict) -> list[dict]:
 class Page:
     """The report being written: HTML or Markdown blocks in order, images embedded (HTML) or beside it (Markdown)."""
 
-    def __init__(self, run: Path, md: bool):
+    parts: list[str]
+
+    def __init__(self, run: Path, md: bool) -> None:
         self.run, self.md, self.parts = run, md, []
 
     def h2(self, t: str) -> None:
@@ -132,7 +138,7 @@ class Page:
             data = base64.b64encode(p.read_bytes()).decode()
             self.parts.append(f'<img alt="{html.escape(alt)}" src="data:image/png;base64,{data}">')
 
-    def section(self, s, heading: bool = True) -> None:
+    def section(self, s: Section | dict, heading: bool = True) -> None:
         """A check's section (:class:`~holeshape.checks.Section` or its dict): heading, paragraphs, tables, images."""
         from holeshape.checks.base import Section
 

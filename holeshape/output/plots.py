@@ -5,18 +5,27 @@ All axes in mm or MPa. Written as PNG. matplotlib is imported here only.
 
 from __future__ import annotations
 
+from collections.abc import Sequence
 from pathlib import Path
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
 from holeshape.evaluate import STRESS_LABELS, Evaluation, EvaluationFields, measure_values
 from holeshape.solve import principal_stresses, von_mises
 
+if TYPE_CHECKING:
+    from holeshape.stability import StabilityFields, StabilityResult
+    from holeshape.study import Panel
+
+# matplotlib's figures and axes are typed Any; an outline to draw is one (2, n) array or a list of them
+Outlines = np.ndarray | Sequence[np.ndarray]
+
 PLOT_CAUTION = ("holeshape: linear-elastic plane stress, linear buckling only where stated; no fatigue or fracture "
                 "assessment; review by a qualified engineer; applicable codes govern")
 
 
-def pyplot():
+def pyplot() -> Any:
     """matplotlib's pyplot, imported on first use. The backend is the caller's choice (the command line sets the
     non-interactive one); figures are always closed after saving, so nothing is shown."""
     import matplotlib.pyplot as plt
@@ -24,7 +33,7 @@ def pyplot():
     return plt
 
 
-def save(fig, path: Path) -> Path:
+def save(fig: Any, path: Path) -> Path:
     """Save with the caution at the foot (wrapped to the figure's width, the plot lifted clear of it), atomically
     (temporary file, then rename). Every plot function lays itself out first; this only makes room at the foot."""
     import os
@@ -69,7 +78,8 @@ def vertex_stress(fields: EvaluationFields) -> np.ndarray:
     return out / count[None, :, None]
 
 
-def mirrored_triangulation(fields: EvaluationFields, values: np.ndarray, odd: bool = False):
+def mirrored_triangulation(fields: EvaluationFields, values: np.ndarray, odd: bool = False
+                           ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """Triangles and values of the whole panel from a reduced model (for display). ``odd``: the value changes sign
     in a mirror image (the shear stress sxy)."""
     mesh, region = fields.panel_mesh.mesh, fields.panel_mesh.region
@@ -91,19 +101,19 @@ def field_values(stress: np.ndarray, measure: str, tangent_free: bool = False) -
     return principal_stresses(*stress)[0]
 
 
-def _warn(fig, ev: Evaluation) -> None:
+def _warn(fig: Any, ev: Evaluation) -> None:
     """Numerical warnings go on the picture too, not only in the text."""
     if ev.warnings:
         fig.text(0.01, 0.985, "WARNING: " + ev.warnings[0], fontsize=7.5, color="red", ha="left", va="top",
                  wrap=True)
 
 
-def outline_list(cutout_xy) -> list[np.ndarray]:
+def outline_list(cutout_xy: Outlines) -> list[np.ndarray]:
     """Outlines (2, n) to draw: one array, or a list of them (a row of openings)."""
     return [cutout_xy] if isinstance(cutout_xy, np.ndarray) and cutout_xy.ndim == 2 else list(cutout_xy)
 
 
-def plot_stress_field(path: Path, ev: Evaluation, fields: EvaluationFields, cutout_xy,
+def plot_stress_field(path: Path, ev: Evaluation, fields: EvaluationFields, cutout_xy: Outlines,
                       case_index: int, panel_size: tuple[float, float], title: str) -> Path:
     plt = pyplot()
     measure = ev.stress_measure if ev.stress_measure != "hoop" else "von_mises"
@@ -213,7 +223,8 @@ def plot_mesh(path: Path, fields: EvaluationFields, cutout_bounds: tuple[float, 
     return save(fig, path)
 
 
-def plot_buckling_mode(path: Path, stability, fields, cutout_xy, panel, title: str) -> Path:
+def plot_buckling_mode(path: Path, stability: StabilityResult, fields: StabilityFields | None, cutout_xy: Outlines,
+                       panel: Panel, title: str) -> Path:
     """Out-of-plane deflection contours of the lowest buckling mode(s) of the governing load case (largest
     deflection scaled to 1), cutout drawn, panel edges labelled with their support."""
     plt = pyplot()
@@ -229,7 +240,7 @@ def plot_buckling_mode(path: Path, stability, fields, cutout_xy, panel, title: s
         for xy in outline_list(cutout_xy):
             ax.fill(*xy, color="white", zorder=3)
             ax.plot(*np.concatenate([xy, xy[:, :1]], axis=1), color="black", lw=1.2, zorder=4)
-        if modes:
+        if fields is not None and modes:  # modes come with their plate mesh
             factor, w = modes[k]
             levels = np.linspace(-1.0, 1.0, 21)
             cs = ax.tricontourf(fields.p[0], fields.p[1], fields.t.T, w, levels=levels, cmap="RdBu_r")

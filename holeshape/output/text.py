@@ -5,6 +5,8 @@ check's own section is printed the same way, from its plain-data :class:`~holesh
 from __future__ import annotations
 
 import textwrap
+from collections.abc import Sequence
+from typing import Any
 
 from holeshape import cautions
 from holeshape.checks.base import Requirement, Section, verdict
@@ -28,7 +30,8 @@ def wrap(head: str, text: str) -> list[str]:
     return textwrap.wrap(text, WIDTH, initial_indent=f"  {head:<14}", subsequent_indent=INDENT) or [f"  {head}"]
 
 
-def table_lines(columns, rows, indent: str = "    ") -> list[str]:
+def table_lines(columns: Sequence[tuple[str, str]], rows: Sequence[dict[str, Any]], indent: str = "    "
+                ) -> list[str]:
     """A fixed-width table: headings, then each row's cells formatted by their column key."""
     cells = [[fmt(k, r.get(k)) for k, _ in columns] for r in rows]
     widths = [max([len(h)] + [len(c[i]) for c in cells]) for i, (_, h) in enumerate(columns)]
@@ -74,8 +77,8 @@ def _fmt_mos(m: float | None) -> str:
     return "n/a (no allowable given)" if m is None else f"{m:+.3f}{'  << NEGATIVE' if m < 0 else ''}"
 
 
-def check_summary(result, edges_note: str) -> str:
-    """The text of ``holeshape check``: one :class:`~holeshape.checkrun.DesignResult`."""
+def check_summary(result: Any, edges_note: str) -> str:
+    """The text of ``holeshape check``: one :class:`~holeshape.checkrun.DesignResult` (a higher layer: Any)."""
     ev, a, study, cutout = result.evaluation, result.assessment, result.study, result.cutout
     label = STRESS_LABELS[ev.stress_measure]
     stress = a.result("stress")
@@ -194,6 +197,7 @@ def comparison_lines(rec: RunRecord) -> list[str]:
 
     goal = GOALS.get(rec.goal, GOALS["lowest_peak"])
     b = rec.best
+    assert b is not None  # only a run that recommends a design is compared
     mine = {"peak_stress_mpa": b.peak_stress_mpa, "area_mm2": b.area_mm2, "reinforcement": b.reinforcement}
     if rec.family_best is None or rec.family_best.get("recommended"):
         if not rec.baselines:
@@ -281,7 +285,7 @@ def sweep_lines(res: dict) -> list[str]:
     return lines
 
 
-def _num(v) -> str:
+def _num(v: Any) -> str:
     if isinstance(v, list):
         return "[" + ", ".join(_num(x) for x in v) + "]"
     return f"{v:.4g}" if isinstance(v, float) else str(v)

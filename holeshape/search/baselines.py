@@ -5,12 +5,16 @@ and is never reported worse than the best of them. Lengths mm."""
 from __future__ import annotations
 
 import math
+from typing import TYPE_CHECKING, Any
 
 from holeshape.errors import GeometryError
 from holeshape.geometry import Circle, Cutout, Ellipse, RoundedRectangle
 from holeshape.parameters import CutoutSpec, Param, Range
 from holeshape.search.space import DesignSpace, scaled_to_area
-from holeshape.study import Constraints, Panel
+from holeshape.study import Constraints, Panel, Study
+
+if TYPE_CHECKING:
+    from holeshape.geometry import Shape
 
 
 def baseline_center(spec: CutoutSpec, panel: Panel, cons: Constraints) -> tuple[float, float]:
@@ -20,7 +24,7 @@ def baseline_center(spec: CutoutSpec, panel: Panel, cons: Constraints) -> tuple[
     return c if c is not None else (panel.width / 2, panel.height / 2)
 
 
-def standard_shapes(study) -> list[tuple[str, Cutout | None, str]]:
+def standard_shapes(study: Study) -> list[tuple[str, Cutout | None, str]]:
     """(family, cutout or None, note) for circle, ellipse and rounded rectangle; None with the reason when the
     family cannot meet the geometric requirements. With a [reinforcement] the shapes carry it at its nominal sizes
     (``CutoutSpec.nominal_reinforcement``)."""
@@ -34,7 +38,7 @@ def standard_shapes(study) -> list[tuple[str, Cutout | None, str]]:
     count = 1 if row is None else row.count
     center = baseline_center(spec, panel, cons)
     rot = cons.access.rotation if cons.access is not None else 0.0
-    shapes: list[tuple[str, object]] = []
+    shapes: list[tuple[str, Shape]] = []
     if cons.access is not None:
         c = cons.clearance
         if cons.access.diameter is not None:
@@ -42,6 +46,7 @@ def standard_shapes(study) -> list[tuple[str, Cutout | None, str]]:
             shapes = [("circle", Circle(r)), ("ellipse", Ellipse(r, r)),
                       ("rounded_rectangle", RoundedRectangle(r, r, max(cons.min_radius or 0.0, 0.5 * r)))]
         else:
+            assert cons.access.width is not None and cons.access.height is not None  # a diameter or both sizes
             p, q = cons.access.width / 2 + c, cons.access.height / 2 + c
             rc = min(max(cons.min_radius or 0.0, 0.2 * min(p, q)), min(p, q))
             grow = rc * (1 - 1 / math.sqrt(2))  # the corner arc must pass outside the envelope's corner
@@ -79,7 +84,7 @@ def family_point(base_family: str, cut: Cutout, space: DesignSpace) -> dict[str,
     when the family cannot represent it within the ranges (and the study's fixed values)."""
     spec = space.spec
     family = spec.shape
-    sh = cut.shape
+    sh: Any = cut.shape  # of the family base_family names: its own parameters are read below
     own: dict[str, float] = {}
     if family == base_family:
         own = {k: v for k, v in sh.parameters().items() if not isinstance(v, (tuple, list, str))}
@@ -132,8 +137,9 @@ def _spline_radii(cut: Cutout, spec: CutoutSpec, rotation: float) -> dict[Param,
     import numpy as np
 
     op = spec.openings[0]
-    n = len(op.value("radii"))
-    sym = op.value("symmetry")
+    radii, sym = op.value("radii"), op.value("symmetry")
+    assert isinstance(radii, tuple) and isinstance(sym, str)  # a spline table's values
+    n = len(radii)
     span = {"none": 2 * math.pi * (n - 1) / n, "x": math.pi, "xy": math.pi / 2}[sym]
     theta = np.linspace(0.0, span, n) + math.radians(rotation)
     p = cut.sampling.points

@@ -23,13 +23,19 @@ from __future__ import annotations
 import math
 from collections.abc import Callable
 from dataclasses import dataclass, replace
+from typing import TYPE_CHECKING
 
 import numpy as np
 
 from holeshape.errors import HoleshapeError
-from holeshape.geometry import Cutout
+from holeshape.geometry import Cutout, Spline
 from holeshape.search.trial import TrialRecord
 from holeshape.study import Panel, Study
+
+if TYPE_CHECKING:
+    from holeshape.mesh import PanelMesh
+    from holeshape.search.runner import Objective
+    from holeshape.search.space import DesignSpace
 
 FD_STEP = 2.0e-3  # forward-difference step in the unit cube (0.05 mm on a 24 mm radius range)
 TRUST_START = 0.08  # first trust-region half-width in the unit cube
@@ -83,7 +89,7 @@ def blend_length(cutout: Cutout, panel: Panel) -> float:
     return max(1e-6, min(2.0 * math.sqrt(cutout.area), 0.9 * gap))
 
 
-def moved_mesh(pm, base: Cutout, new: Cutout, panel: Panel):
+def moved_mesh(pm: PanelMesh, base: Cutout, new: Cutout, panel: Panel) -> PanelMesh:
     """The panel mesh of ``base`` with its nodes moved so the cutout edge lies on ``new`` (both splines): the
     node at local polar angle phi on the edge goes to ``new``'s point of the same parameter, and a node off the
     edge by the same displacement times a smooth weight falling from 1 on the edge to 0 at
@@ -95,6 +101,7 @@ def moved_mesh(pm, base: Cutout, new: Cutout, panel: Panel):
     lx, ly = c * dx + s * dy, -s * dx + c * dy
     phi = np.mod(np.arctan2(ly, lx), 2 * math.pi)
     rho = np.hypot(lx, ly)
+    assert isinstance(base.shape, Spline)  # the refinement moves free-form outlines only
     r_old = base.shape.radius_at(phi)
     u = np.clip((rho - r_old) / blend_length(base, panel), 0.0, 1.0)
     w = (1.0 - u) ** 2 * (1.0 + 2.0 * u)
@@ -103,7 +110,7 @@ def moved_mesh(pm, base: Cutout, new: Cutout, panel: Panel):
     return replace(pm, mesh=replace(mesh, doflocs=moved), cutout_s=s_nodes - s_nodes[0])
 
 
-def sample_stress(pm, study: Study, cutout: Cutout) -> tuple[np.ndarray, float]:
+def sample_stress(pm: PanelMesh, study: Study, cutout: Cutout) -> tuple[np.ndarray, float]:
     """(stress of the study's measure at the cutout's sample points, (n, m) MPa over the load cases; the peak
     refined between them) on the panel mesh ``pm``."""
     from holeshape.evaluate import measure_values
@@ -114,6 +121,7 @@ def sample_stress(pm, study: Study, cutout: Cutout) -> tuple[np.ndarray, float]:
     sol = solve_panel(pm, study.material.elastic, remote, panel.edges,
                       panel.width, panel.height, thickness=panel.thickness,
                       fields=load_fields(panel, study.load_cases))
+    assert sol.cutout is not None  # solved with the cutout stress recovered
     vals = measure_values(sol.cutout, study.measure.stress)
     peak = max(peak_along(sol.cutout.s, v, pm.closed)[0] for v in vals.T)
     return vals, float(peak)
@@ -161,11 +169,11 @@ class Point:
     """A design fully evaluated: its unit coordinates, parameters, record, mesh and sample stresses."""
 
     x: np.ndarray
-    params: dict
+    params: dict[str, float]
     rec: TrialRecord
-    cutout: Cutout
-    pm: object
-    stress: np.ndarray  # (n, m) MPa
+    cutout: Cutout | None  # None (and no mesh or stresses) for a design that was not solved
+    pm: PanelMesh | None
+    stress: np.ndarray | None  # (n, m) MPa
     peak: float  # the objective value (refined peak, MPa)
 
     @property
@@ -181,8 +189,8 @@ class Refinement:
     searched dimensions, in order. Chains restart from the best design with a smaller trust region once they
     converge, so the whole budget is used."""
 
-    def __init__(self, study: Study, space, objective, record: Callable[[TrialRecord], bool], names: list[str],
-                 seed: int = 0):
+    def __init__(self, study: Study, space: DesignSpace, objective: Objective, record: Callable[[TrialRecord], bool],
+                 names: list[str], seed: int = 0) -> None:
         self.study, self.space, self.objective, self.record = study, space, objective, record
         self.names = names
         self.rng = np.random.default_rng(seed)
@@ -190,12 +198,12 @@ class Refinement:
         self.chains = 0
 
     # evaluations -------------------------------------------------------------------------------------------------
-    def _params(self, x: np.ndarray, base: dict) -> dict:
+    def _params(self, x: np.ndarray, base: dict[str, float]) -> dict[str, float]:
         p = dict(base)
         p.update(self.space.from_unit(list(np.clip(x, 0.0, 1.0)), self.names))
         return p
 
-    def full(self, x: np.ndarray, base_params: dict) -> Point | None:
+    def full(self, x: np.ndarray, base_params: dict[str, float]) -> Point | None:
         """Evaluate a design in full and record it; None when the budget is spent."""
         params = self._params(x, base_params)
         rec, ev = self.objective.evaluate(params)
@@ -207,6 +215,7 @@ class Refinement:
         from holeshape.evaluate import measure_values
 
         fields = ev.fields
+        assert fields is not None and fields.solution.cutout is not None  # a fresh evaluation keeps its fields
         stress = measure_values(fields.solution.cutout, self.study.measure.stress)
         pt = Point(np.asarray(x, float), params, rec, cutout, fields.panel_mesh, stress, rec.sampler_value)
         if pt.acceptable and (self.best is None or pt.peak < self.best.peak):
@@ -218,6 +227,7 @@ class Refinement:
         the probe is infeasible or failed), or None when the budget is spent."""
         from holeshape.checks import assess
 
+        assert base.pm is not None and base.cutout is not None  # probes are made round a solved design
         params = self._params(x, base.params)
         note = {"probe": True, "note": PROBE_NOTE}
         stress = None
@@ -242,6 +252,7 @@ class Refinement:
     # the chain ---------------------------------------------------------------------------------------------------
     def gradients(self, base: Point) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray] | None:
         """(stress rows, their Jacobian, geometric rows and their Jacobian) at ``base``, scaled by its peak."""
+        assert base.stress is not None and base.cutout is not None  # a solved design
         n = len(self.names)
         ref = float(base.stress.max())
         s0 = base.stress.ravel() / ref
@@ -268,7 +279,7 @@ class Refinement:
         keep_g = g0 >= GEOMETRY_ROWS_FROM
         return s0[keep_s], js[keep_s], g0[keep_g], jg[keep_g]
 
-    def run(self, start: dict) -> None:
+    def run(self, start: dict[str, float]) -> None:
         """Refine from the parameters ``start`` (a feasible design) until the budget is spent."""
         x0 = np.array(self.space.to_unit(start, self.names))
         delta = TRUST_START

@@ -6,12 +6,13 @@ few percent of peak stress), which a global sampler polishes slowly and a simple
 
 from __future__ import annotations
 
-from collections.abc import Generator
+from collections.abc import Generator, Sequence
 
 import numpy as np
 
 
-def nelder_mead(x0: np.ndarray, step: float = 0.08, signs=None) -> Generator[np.ndarray, float, None]:
+def nelder_mead(x0: np.ndarray, step: float = 0.08, signs: Sequence[float] | np.ndarray | None = None
+                ) -> Generator[np.ndarray, float, None]:
     """Yields points in [0, 1]^n to evaluate; receive each point's value by ``send``. Runs until closed.
     ``signs`` (n,) of +-1 choose the direction of each start vertex (default all +, turned back at the bounds)."""
     n = len(x0)

@@ -12,8 +12,10 @@ import hashlib
 import logging
 import math
 import time
+from collections.abc import Callable, Generator
 from dataclasses import dataclass, field
 from pathlib import Path
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
@@ -25,6 +27,11 @@ from holeshape.search.trial import TrialRecord, compact
 from holeshape.study import ACCURACIES, Measure, Study
 from holeshape.studyfile import load_study
 
+if TYPE_CHECKING:
+    from holeshape.evaluate import Evaluation
+
+# optuna's studies, trials and storages are typed Any (``study`` below is an optuna study, ``t`` a trial)
+
 log = logging.getLogger("holeshape.search")
 
 SEARCH_ACCURACY = ACCURACIES[0]  # trials are screened at the coarsest level
@@ -35,7 +42,7 @@ def study_fingerprint(path: str | Path) -> str:
     return hashlib.sha256(Path(path).read_bytes()).hexdigest()[:16]
 
 
-def storage_for(out_dir: Path, url: str | None):
+def storage_for(out_dir: Path, url: str | None) -> tuple[Any, str]:
     """Optuna storage: a journal file in the output folder (robust for several processes on one machine) or the
     database at ``url`` (PostgreSQL for several machines). A trial left running by a worker that died is ignored
     by the budget after STALE_AFTER_S (ask/tell studies get no heartbeat retry)."""
@@ -84,9 +91,11 @@ class Objective:
     def __call__(self, params: dict[str, float]) -> TrialRecord:
         return self.evaluate(params)[0]
 
-    def evaluate(self, params: dict[str, float]):
+    def evaluate(self, params: dict[str, float]) -> tuple[TrialRecord, Evaluation | None]:
         """(the record, the draft evaluation with its fields when the design was solved, else None)."""
         from holeshape.checks import assess
+        from holeshape.checks.stability import BucklingResult
+        from holeshape.checks.stress import StressResult
         from holeshape.evaluate import evaluate
 
         t0 = time.perf_counter()
@@ -117,10 +126,10 @@ class Objective:
                      governing=ev.governing_load_case, dofs=ev.dofs, seconds=time.perf_counter() - t0,
                      requirements=compact(full.requirements))
         stress = full.result("stress")
-        if stress is not None and stress.lowest_margin is not None:
+        if isinstance(stress, StressResult) and stress.lowest_margin is not None:
             attrs["margin_of_safety"] = stress.lowest_margin
         stab = full.result("stability")
-        if stab is not None:
+        if isinstance(stab, BucklingResult):
             attrs["buckling_load_factor"] = stab.stability.load_factor
         if not full.meets_every_requirement:
             attrs["reason"] = "; ".join(full.reasons())
@@ -134,12 +143,12 @@ def shown_value(value: float, goal: str) -> str:
     return GOALS[goal].shown(value)
 
 
-def _values(rec: TrialRecord, trade_off: bool):
+def _values(rec: TrialRecord, trade_off: bool) -> float | list[float]:
     v = rec.sampler_value
     return [v, rec.attrs.get("area_mm2", 0.0)] if trade_off else v
 
 
-def _record(study, trial, rec: TrialRecord, trade_off: bool) -> None:
+def _record(study: Any, trial: Any, rec: TrialRecord, trade_off: bool) -> None:
     """Tell the study the outcome of an asked trial."""
     from optuna.trial import TrialState
 
@@ -153,20 +162,20 @@ def _record(study, trial, rec: TrialRecord, trade_off: bool) -> None:
         study.tell(trial, _values(rec, trade_off))
 
 
-def add_record(study, space: DesignSpace, rec: TrialRecord, trade_off: bool) -> None:
+def add_record(study: Any, space: DesignSpace, rec: TrialRecord, trade_off: bool) -> None:
     """Record an evaluation made outside the sampler (standard shapes, simplex steps) as a finished trial."""
     from optuna.trial import TrialState, create_trial
 
     failed = rec.state == "failed"
     v = None if failed else _values(rec, trade_off)
-    study.add_trial(create_trial(
+    study.add_trial(create_trial(  # v: None (failed), one value (a float), or the trade-off's pair (a list)
         state=TrialState.FAIL if failed else TrialState.COMPLETE,
-        value=None if (failed or trade_off) else v, values=v if (trade_off and not failed) else None,
+        value=v if isinstance(v, float) else None, values=v if isinstance(v, list) else None,
         params=rec.params, distributions=space.distributions(), user_attrs=rec.user_attrs(),
         constraints=rec.constraints or None))
 
 
-def finished(study) -> list:
+def finished(study: Any) -> list:
     """Trials that count towards the budget: complete, or failed for a reason of their own (a trial cut short by a
     killed run does not count; it is re-run)."""
     from optuna.trial import TrialState
@@ -178,7 +187,7 @@ def finished(study) -> list:
 STALE_AFTER_S = 600.0  # a trial running this long belongs to a worker that died (an evaluation takes seconds)
 
 
-def started(study) -> int:
+def started(study: Any) -> int:
     """Finished trials plus those running now (not counting ones abandoned by a worker that died)."""
     import datetime
 
@@ -190,7 +199,7 @@ def started(study) -> int:
     return len(finished(study)) + len(running)
 
 
-def is_feasible(t) -> bool:
+def is_feasible(t: Any) -> bool:
     """A candidate: complete, meeting every constraint, and a full evaluation (not a gradient probe)."""
     from optuna.trial import TrialState
 
@@ -198,7 +207,7 @@ def is_feasible(t) -> bool:
         not t.user_attrs.get("probe", False) and all(v <= 0 for v in t.constraints.values())
 
 
-def best_feasible(study):
+def best_feasible(study: Any) -> Any:
     cands = [t for t in finished(study) if is_feasible(t)]
     if not cands:
         return None
@@ -210,17 +219,17 @@ class BudgetGate:
     """Serialises 'is there budget left? then record' between the worker processes of one machine, so several
     workers never record more trials than the study asks for. (Across machines the window is milliseconds.)"""
 
-    def __init__(self, out_dir: str):
+    def __init__(self, out_dir: str) -> None:
         self.path = Path(out_dir) / ".holeshape.budget"
 
-    def __enter__(self):
+    def __enter__(self) -> BudgetGate:
         import fcntl
 
         self.fh = open(self.path, "a")
         fcntl.flock(self.fh, fcntl.LOCK_EX)
         return self
 
-    def __exit__(self, *exc):
+    def __exit__(self, *exc: object) -> None:
         import fcntl
 
         fcntl.flock(self.fh, fcntl.LOCK_UN)
@@ -240,7 +249,7 @@ def _penalised(rec: TrialRecord, reference: float) -> float:
 
 
 def run_worker(study_path: str, storage_url: str | None, out_dir: str, study_name: str, worker: int,
-               trade_off: bool, on_trial=None) -> None:
+               trade_off: bool, on_trial: Callable[[Any], None] | None = None) -> None:
     """One search process: asks, evaluates and records trials until the study holds ``trials`` finished ones.
 
     Raises whatever is not one of the project's own errors (a bug), after giving back the trial in hand."""
@@ -304,6 +313,7 @@ def run_worker(study_path: str, storage_url: str | None, out_dir: str, study_nam
             reference = best.value
             point = simplex.send(reference)
         else:
+            assert pending is not None  # the previous step's value, set below before the simplex is asked again
             point = simplex.send(pending)
         params = dict(base)
         params.update(space.from_unit(list(point), names))
@@ -317,8 +327,8 @@ def run_worker(study_path: str, storage_url: str | None, out_dir: str, study_nam
             reference = min(reference, rec.sampler_value)
 
 
-def _refine(study, study_def: Study, space: DesignSpace, objective: Objective, gate: BudgetGate, worker: int,
-            seed: int, on_trial=None) -> None:
+def _refine(study: Any, study_def: Study, space: DesignSpace, objective: Objective, gate: BudgetGate, worker: int,
+            seed: int, on_trial: Callable[[Any], None] | None = None) -> None:
     """The gradient refinement (holeshape.search.gradient) from a feasible design: worker k starts from the k-th
     best distinct one (the standard shapes and any sampled design), so two workers do not walk the same path."""
     from holeshape.search.gradient import Refinement
@@ -380,7 +390,8 @@ def local_dimensions(space: DesignSpace) -> list[str]:
     return names
 
 
-def _start_simplex(x0: np.ndarray, worker: int, shared_seed: int | None = None):
+def _start_simplex(x0: np.ndarray, worker: int, shared_seed: int | None = None
+                   ) -> Generator[np.ndarray, float, None]:
     """The local workers of one machine differ by step size; processes sharing a database also by a random
     turn of the start simplex (else two machines would walk the same points)."""
     from holeshape.search.local import nelder_mead

@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from typing import Any
 
 from holeshape.errors import StudyError
 from holeshape.geometry import Cutout
@@ -36,7 +37,7 @@ class DesignSpace:
             raise StudyError("the [cutout] table has no ranges to search: give at least one parameter as "
                              "{min = ..., max = ...}")
 
-    def distributions(self):
+    def distributions(self) -> dict[str, Any]:
         from optuna.distributions import FloatDistribution
 
         return {k: FloatDistribution(r.min, r.max, log=r.log) for k, r in self.dimensions.items()}

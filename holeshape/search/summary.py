@@ -5,24 +5,32 @@ these, and a rerun reads them again without solving anything."""
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING, Any
+
 from holeshape.search.runner import finished, is_feasible
+
+if TYPE_CHECKING:
+    from holeshape.search.space import DesignSpace
+
+# ``study`` below is an optuna study and ``t`` an optuna trial: typed Any
 
 NEAREST = 3  # nearest misses reported
 
 
-def _searched(study) -> list:
+def _searched(study: Any) -> list:
     """Finished trials that are designs of their own (not gradient probes)."""
     return [t for t in finished(study) if not t.user_attrs.get("probe")]
 
 
-def violation(t) -> float:
+def violation(t: Any) -> float:
     """How far a trial misses: the sum of its positive scaled constraint values (0 for a feasible one)."""
     return float(sum(max(0.0, v) for v in (t.constraints or {}).values()))
 
 
-def trial_reasons(study) -> list[dict]:
+def trial_reasons(study: Any) -> list[dict]:
     """Every requirement that refused designs: how many trials it refused, and the range of their values."""
     groups: dict[tuple, dict] = {}
+    key: tuple[Any, ...]
     for t in _searched(study):
         if is_feasible(t) or t.state.name != "COMPLETE":
             continue
@@ -50,7 +58,7 @@ def trial_reasons(study) -> list[dict]:
     return sorted(out, key=lambda g: -g["trials"])
 
 
-def failure_reasons(study) -> list[dict]:
+def failure_reasons(study: Any) -> list[dict]:
     """Trials the mesher or solver gave up on, by the kind of failure."""
     counts: dict[str, int] = {}
     for t in _searched(study):
@@ -60,7 +68,7 @@ def failure_reasons(study) -> list[dict]:
     return [{"failure": k, "trials": n} for k, n in sorted(counts.items(), key=lambda kv: -kv[1])]
 
 
-def bound_advice(misses: list[dict], space) -> list[str]:
+def bound_advice(misses: list[dict], space: DesignSpace) -> list[str]:
     """Where the nearest misses sit at the end of a searched range: the way to a design that passes may lie beyond
     it."""
     out = []
@@ -78,7 +86,7 @@ def bound_advice(misses: list[dict], space) -> list[str]:
     return out
 
 
-def nearest_misses(study, n: int = NEAREST) -> list[dict]:
+def nearest_misses(study: Any, n: int = NEAREST) -> list[dict]:
     """The ``n`` designs nearest to meeting every requirement (least summed scaled violation; solved ones first at
     equal violation), each with its parameters and every requirement it misses, value against limit."""
     cands = [t for t in _searched(study) if t.state.name == "COMPLETE" and not is_feasible(t)]

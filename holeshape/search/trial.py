@@ -5,13 +5,18 @@ constraints and value (area, peak, reasons, the requirement rows that decided, a
 from __future__ import annotations
 
 from dataclasses import dataclass, field, replace
-from typing import Any
+from typing import TYPE_CHECKING, Any
+
+if TYPE_CHECKING:
+    from collections.abc import Iterable
+
+    from holeshape.checks import Requirement
 
 INFEASIBLE_VALUE = 1.0e9  # objective recorded for infeasible designs (never solved); samplers rank them by constraints
 STATES = ("complete", "infeasible", "failed")
 
 
-def compact(requirements) -> list[dict[str, Any]]:
+def compact(requirements: Iterable[Requirement]) -> list[dict[str, Any]]:
     """The requirement rows as the journal keeps them (enough to name the nearest misses of a run later)."""
     return [{"name": r.name, "label": r.label, "value": r.value, "limit": r.limit, "relation": r.relation,
              "met": r.met, "unit": r.unit, "kind": r.kind, "load_case": r.load_case} for r in requirements]
@@ -31,7 +36,7 @@ class TrialRecord:
     feasible: bool = False
     attrs: dict[str, Any] = field(default_factory=dict)
 
-    def __post_init__(self):
+    def __post_init__(self) -> None:
         if self.state not in STATES:
             raise ValueError(f"state must be one of {STATES}, got {self.state!r}")
 
