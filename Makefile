@@ -35,7 +35,7 @@ lint: $(STAMP)
 	$(VENV)/bin/mypy
 
 validate: $(STAMP)
-	$(PY) benchmarks/validation.py standard
+	$(PY) benchmarks/validation.py standard --write docs/verification.md
 
 bench: $(STAMP)
 	$(PY) benchmarks/speed.py

@@ -11,14 +11,20 @@ import multiprocessing
 import time
 from dataclasses import asdict
 from pathlib import Path
+from typing import TYPE_CHECKING, Any, NoReturn
 
 from holeshape import __version__, cautions
 from holeshape.checks.compose import case_fields, sections
+from holeshape.checks.outline import OutlineResult
+from holeshape.checks.reinforcement import ReinforcementResult
+from holeshape.checks.stability import BucklingResult
+from holeshape.checks.stress import StressResult
 from holeshape.errors import NoDesignError
 from holeshape.final import (
     FINAL_ACCURACY,
     FINAL_TRIES,
     Checked,
+    Choice,
     FinalChecks,
     check_standard_shapes,
     choose,
@@ -28,10 +34,23 @@ from holeshape.progress import QUIET, Progress
 from holeshape.record import CaseCheck, DesignCheck, LevelCheck, RunInputs, RunRecord, TrialCounts
 from holeshape.search.runner import SEARCH_ACCURACY, finished, is_feasible
 from holeshape.search.summary import bound_advice, failure_reasons, nearest_misses, trial_reasons
-from holeshape.study import ACCURACIES, Measure
+from holeshape.study import ACCURACIES, Measure, Study
+
+if TYPE_CHECKING:
+    from concurrent.futures import Future
+
+    from holeshape.evaluate import Evaluation
+    from holeshape.geometry import Cutout
+    from holeshape.parameters import Param
+    from holeshape.progress import Bar
+    from holeshape.record import Baseline
+    from holeshape.search.space import DesignSpace
+
+# ``study`` below is the optuna study of the run (``study_def`` the holeshape Study), its trials optuna's: Any
+Baselines = list[tuple[str, "Cutout | None", str]]  # standard_shapes: (family, cutout or None, note)
 
 
-def trial_counts(study) -> TrialCounts:
+def trial_counts(study: Any) -> TrialCounts:
     """The trials of a study by outcome, as the summary reports them."""
     from optuna.trial import TrialState
 
@@ -48,7 +67,7 @@ def trial_counts(study) -> TrialCounts:
                        failures=tuple(sorted({str(t.user_attrs.get("failure")) for t in failed})[:10]))
 
 
-def write_profiles(out_dir: Path, study_def, best: Checked, own: Checked | None) -> tuple[dict, dict | None]:
+def write_profiles(out_dir: Path, study_def: Study, best: Checked, own: Checked | None) -> tuple[dict, dict | None]:
     """best.dxf / best.csv (and the family's own best when a standard shape won): (DXF info, its files)."""
     from holeshape.output import files
 
@@ -74,7 +93,7 @@ def family_block(c: Checked | None, files: dict | None, chosen: bool) -> dict | 
            "area_mm2": e.area_mm2, "error_estimate_pct": e.error_estimate_pct,
            "params": _jsonable(c.cutout.parameters()),
            "governing_load_case": e.governing_load_case, "margin_of_safety": s["margin_of_safety"],
-           "buckling_load_factor": None if st is None else st.stability.load_factor,
+           "buckling_load_factor": st.stability.load_factor if isinstance(st, BucklingResult) else None,
            "reinforcement": s["reinforcement"], "meets_every_requirement": c.passes,
            "verdict_reasons": s["verdict_reasons"], "recommended": chosen, "moved": c.moved}
     if files:
@@ -82,18 +101,23 @@ def family_block(c: Checked | None, files: dict | None, chosen: bool) -> dict | 
     return out
 
 
-def write_plots(out_dir: Path, study_def, trials, best: Checked, usable: list[Checked], goal: str) -> list[Path]:
+def write_plots(out_dir: Path, study_def: Study, trials: list[Any], best: Checked, usable: list[Checked], goal: str,
+                own: Checked | None = None) -> list[Path]:
     """Search history, the shape over the standard shapes, stress field, edge stress, buckling mode, VTK field."""
     from holeshape.output import files, plots, search_plots
 
     ev, cut = best.evaluation, best.cutout
     fields = ev.fields
+    assert fields is not None  # the recommendation is checked with its fields (finish_run)
     size = (study_def.panel.width, study_def.panel.height)
     paths = [
         search_plots.plot_history(out_dir / "search_history.png", trials, study_def.title, goal),
-        search_plots.plot_shapes(out_dir / "best_shape.png", cut, [(c.family, c.cutout) for c in usable],
+        search_plots.plot_shapes(out_dir / "best_shape.png", cut,
+                                 [(c.family, c.cutout) for c in usable if c.cutout is not cut],
                                  study_def.panel, study_def.constraints, study_def.title, ev.peak_stress_mpa,
-                                 {c.family: c.evaluation.peak_stress_mpa for c in usable}),
+                                 {c.family: c.evaluation.peak_stress_mpa for c in usable},
+                                 searched=None if own is None or own.trial == best.trial and own.family == best.family
+                                 else (own.family, own.cutout, own.evaluation.peak_stress_mpa)),
     ]
     if study_def.cutout.shape == "spline":
         radii = search_plots.plot_radii_history(out_dir / "search_outlines.png", trials, study_def.title)
@@ -105,7 +129,7 @@ def write_plots(out_dir: Path, study_def, trials, best: Checked, usable: list[Ch
     paths.append(plots.plot_boundary_stress(out_dir / "best_boundary_stress.png", ev, fields,
                                             study_def.material.allowable_stress, study_def.title))
     st = best.assessment.result("stability")
-    if st is not None:
+    if isinstance(st, BucklingResult):
         paths.append(plots.plot_buckling_mode(out_dir / "best_buckling_mode.png", st.stability, st.fields,
                                               outlines, study_def.panel, study_def.title))
     files.write_vtk(out_dir / "best_stress_field.vtu", fields, [r.name for r in ev.load_cases])
@@ -116,7 +140,7 @@ def bare_comparison(checks: FinalChecks, best: Checked) -> dict | None:
     """The reinforcement block of the recommendation with the same outline checked bare at the final level (what
     the reinforcement buys). None for a bare opening."""
     rf = best.assessment.result("reinforcement")
-    if rf is None:
+    if not isinstance(rf, ReinforcementResult):
         return None
     bare = checks.check(best.cutout.bare, best.family, None)
     st = bare.assessment.result("stability")
@@ -125,14 +149,14 @@ def bare_comparison(checks: FinalChecks, best: Checked) -> dict | None:
     out = rf.to_dict()
     out["bare_opening"] = {
         "peak_stress_mpa": bare.evaluation.peak_stress_mpa,
-        "margin_of_safety": None if stress is None else stress.lowest_margin,
-        "buckling_load_factor": None if st is None else st.stability.load_factor,
+        "margin_of_safety": stress.lowest_margin if isinstance(stress, StressResult) else None,
+        "buckling_load_factor": st.stability.load_factor if isinstance(st, BucklingResult) else None,
         "governing_load_case": bare.evaluation.governing_load_case, "verdict": "pass" if v.passed else "fail",
         "verdict_reasons": list(v.reasons), "error_estimate_pct": bare.evaluation.error_estimate_pct}
     return out
 
 
-def design_check(study_def, best: Checked, out_dir: Path, dxf_info: dict, warnings: list[str],
+def design_check(study_def: Study, best: Checked, out_dir: Path, dxf_info: dict, warnings: list[str],
                  reinforcement: dict | None = None, levels: list[dict] | None = None) -> DesignCheck:
     """The typed ``best`` block: the recommended design at the final level with its evidence and verdicts;
     ``reinforcement`` the block :func:`bare_comparison` gives, ``levels`` the evidence table."""
@@ -141,6 +165,7 @@ def design_check(study_def, best: Checked, out_dir: Path, dxf_info: dict, warnin
     stab = a.result("stability")
     stress = a.result("stress")
     outline = a.result("outline")
+    assert isinstance(outline, OutlineResult)  # the outline check runs on every design
     cases = []
     for r in ev.load_cases:
         v = a.verdict(r.name)
@@ -162,19 +187,20 @@ def design_check(study_def, best: Checked, out_dir: Path, dxf_info: dict, warnin
         peak_stress_mpa=ev.peak_stress_mpa, kt=ev.kt, kt_reference=ev.kt_reference, area_mm2=ev.area_mm2,
         error_estimate_pct=ev.error_estimate_pct, params=_jsonable(cut.parameters()), shape=best.family,
         dxf=str(out_dir / "best.dxf"), trial=best.trial,
-        margin_of_safety=None if stress is None else stress.margin_of_safety,
+        margin_of_safety=stress.margin_of_safety if isinstance(stress, StressResult) else None,
         accuracy=FINAL_ACCURACY, min_radius_mm=cut.min_radius, min_radius_at_mm=outline.min_radius_at_mm,
-        bounds_mm=tuple(cut.bounds), load_cases=tuple(cases), dxf_vertices=dxf_info["vertices"],
+        bounds_mm=cut.bounds, load_cases=tuple(cases), dxf_vertices=dxf_info["vertices"],
         dxf_chord_error_mm=dxf_info["chord_error_mm"], warnings=tuple(warnings),
         levels=tuple(LevelCheck(**row) for row in (levels or [])), ligaments_mm=dict(outline.ligaments_mm),
         mass_saved_kg=density * ev.area_mm2 * study_def.panel.thickness * 1e-9 if density else None,
         vtk=str(out_dir / "best_stress_field.vtu"), requirements=reqs,
-        stability=None if stab is None else stab.stability.to_dict(), reinforcement=reinforcement,
+        stability=stab.stability.to_dict() if isinstance(stab, BucklingResult) else None, reinforcement=reinforcement,
         assessments={k: v for k, v in blocks(a).items() if k not in ("stability", "reinforcement")},
         sections=tuple(s.to_dict() for s in sections(a, study_def)), moved=best.moved)
 
 
-def side_checks(study_def, baselines, validate: bool):
+def side_checks(study_def: Study, baselines: Baselines, validate: bool
+                ) -> tuple[list[Baseline], list[Checked], list[dict] | None]:
     """The final checks that do not depend on the search's winner, run in a process of their own when the study has
     several workers: the standard shapes at the final level, and the validation appendix."""
     from holeshape.validation import run_validation
@@ -184,9 +210,9 @@ def side_checks(study_def, baselines, validate: bool):
         if validate else None
 
 
-def finish_run(study_def, study, space, baselines, out_dir: Path, storage_name: str, trade_off: bool, t0: float,
-               cache: dict, workers: int = 1, progress: Progress = QUIET, fingerprint: str = "",
-               method: str = "") -> dict:
+def finish_run(study_def: Study, study: Any, space: DesignSpace, baselines: Baselines, out_dir: Path, storage_name: str,
+               trade_off: bool, t0: float, cache: dict, workers: int = 1, progress: Progress = QUIET,
+               fingerprint: str = "", method: str = "") -> dict:
     """The end of a run, in named steps: final checks, choice, profiles, plots, the typed record, the files.
     With several workers the standard shapes and the validation appendix are checked in a second process while
     this one checks the search's best designs. Raises :class:`~holeshape.errors.NoDesignError` (after writing the
@@ -197,7 +223,7 @@ def finish_run(study_def, study, space, baselines, out_dir: Path, storage_name: 
     goal = study_def.search.goal
     trials = study.get_trials(deepcopy=False)
     validate = not (out_dir / "validation.json").exists()
-    side = None
+    side: Future | None = None
     cached = all(c is None or standard_key(study_def, c) in cache for _, c, _ in baselines)
     if workers > 1 and not (cached and not validate):
         from concurrent.futures import ProcessPoolExecutor
@@ -209,7 +235,8 @@ def finish_run(study_def, study, space, baselines, out_dir: Path, storage_name: 
     n_feasible = min(FINAL_TRIES, len([t for t in finished(study) if is_feasible(t)]))
     bar = progress.open(n_feasible + (len(baselines) if side is None else 0) + 4, "finish", "check")
     try:
-        def side_result():
+        def side_result() -> list[Checked]:
+            assert side is not None  # asked for only when the second process runs
             if "rows" not in got:
                 bar.note("standard shapes and validation (second process)")
                 rows, usable, valid = side.result()
@@ -235,10 +262,11 @@ def finish_run(study_def, study, space, baselines, out_dir: Path, storage_name: 
             files.write_json(out_dir / "validation.json",
                              run_validation(FINAL_ACCURACY, stability=study_def.stability is not None))
         bar.update()
-        common = dict(goal=goal, trials=trial_counts(study), storage=storage_name, study=study_def.title,
-                      search_accuracy=SEARCH_ACCURACY, holeshape_version=__version__, study_fingerprint=fingerprint,
-                      trials_finished=len(finished(study)), warnings=study_def.warnings,
-                      trial_reasons=tuple(trial_reasons(study)) + tuple(failure_reasons(study)))
+        common: dict[str, Any] = dict(
+            goal=goal, trials=trial_counts(study), storage=storage_name, study=study_def.title,
+            search_accuracy=SEARCH_ACCURACY, holeshape_version=__version__, study_fingerprint=fingerprint,
+            trials_finished=len(finished(study)), warnings=study_def.warnings,
+            trial_reasons=tuple(trial_reasons(study)) + tuple(failure_reasons(study)))
         if choice.best is None:
             return _no_design(study_def, study, space, choice, base_rows, out_dir, t0, common, bar)
         best = choice.best
@@ -249,7 +277,8 @@ def finish_run(study_def, study, space, baselines, out_dir: Path, storage_name: 
             bar.update()
         bar.note("profiles and plots")
         dxf_info, fam_files = write_profiles(out_dir, study_def, best, choice.own)
-        plot_paths = write_plots(out_dir, study_def, trials, best, usable, "lowest_peak" if trade_off else goal)
+        plot_paths = write_plots(out_dir, study_def, trials, best, usable, "lowest_peak" if trade_off else goal,
+                                 choice.own)
         front = None
         if trade_off:
             from holeshape.output import search_plots
@@ -272,7 +301,7 @@ def finish_run(study_def, study, space, baselines, out_dir: Path, storage_name: 
                               levels),
             family_best=family_block(fam, fam_files, fam is best), baselines=tuple(base_rows),
             improvement_over_baselines_pct={b.shape: 100.0 * (1 - ev.peak_stress_mpa / b.peak_stress_mpa)
-                                            for b in base_rows if b.feasible},
+                                            for b in base_rows if b.feasible and b.peak_stress_mpa is not None},
             elapsed_s=time.perf_counter() - t0, plots=tuple(str(p) for p in plot_paths),
             cautions=cautions(best.assessment.result("stability") is not None,
                               best.assessment.result("reinforcement") is not None),
@@ -284,7 +313,7 @@ def finish_run(study_def, study, space, baselines, out_dir: Path, storage_name: 
         bar.close()
 
 
-def _write(record: RunRecord, out_dir: Path, bar) -> dict:
+def _write(record: RunRecord, out_dir: Path, bar: Bar) -> dict:
     """summary.json, summary.txt and the report of a run."""
     from holeshape.output import files
     from holeshape.output.report import build_report
@@ -299,7 +328,8 @@ def _write(record: RunRecord, out_dir: Path, bar) -> dict:
     return summary
 
 
-def _no_design(study_def, study, space, choice, base_rows, out_dir: Path, t0: float, common: dict, bar) -> dict:
+def _no_design(study_def: Study, study: Any, space: DesignSpace, choice: Choice, base_rows: list[Baseline],
+               out_dir: Path, t0: float, common: dict, bar: Bar) -> NoReturn:
     """The record of a run with no answer: written in full, then NoDesignError."""
     misses = [{**_checked_miss(c), "level": FINAL_ACCURACY} for c in choice.misses]
     misses += nearest_misses(study)
@@ -345,7 +375,7 @@ def _advice_for(group: dict) -> list[str]:
     return []
 
 
-def bound_warnings(study_def, best: Checked) -> list[str]:
+def bound_warnings(study_def: Study, best: Checked) -> list[str]:
     """A searched parameter of the recommendation at the end of its range: the optimum may lie beyond it."""
     if best.trial is None or best.moved is not None:
         return []
@@ -364,14 +394,14 @@ def bound_warnings(study_def, best: Checked) -> list[str]:
     return out
 
 
-def _value_of(params: dict, p) -> float | None:
+def _value_of(params: dict, p: Param) -> float | None:
     v = params.get(p.flat.split("[")[0] if p.index is not None else p.flat)
     if isinstance(v, (list, tuple)):
         return float(v[p.index]) if p.index is not None and p.index < len(v) else None
     return float(v) if isinstance(v, (int, float)) else None
 
 
-def _refused_after_solve(complete) -> dict:
+def _refused_after_solve(complete: list[Any]) -> dict:
     """How many solved designs that met every geometric constraint were refused for each solved requirement: the
     evidence that (for instance) the buckling check changed the answer."""
     out = {"buckling": 0, "margin": 0}
@@ -384,7 +414,7 @@ def _refused_after_solve(complete) -> dict:
     return out
 
 
-def _levels(study_def, cut, ev_fine) -> list[dict]:
+def _levels(study_def: Study, cut: Cutout, ev_fine: Evaluation) -> list[dict]:
     """The recommended design at the three accuracy levels (evidence for the reviewer)."""
     from holeshape.evaluate import evaluate
 
@@ -400,7 +430,7 @@ def _levels(study_def, cut, ev_fine) -> list[dict]:
             for a, e in rows]
 
 
-def _front(study, space, study_def, out_dir: Path) -> list[dict]:
+def _front(study: Any, space: DesignSpace, study_def: Study, out_dir: Path) -> list[dict]:
     from holeshape.output import files
 
     front = [t for t in study.best_trials if is_feasible(t)]

@@ -9,8 +9,24 @@ volume (mm^3).
 from __future__ import annotations
 
 from abc import ABC, abstractmethod
-from typing import Any, ClassVar
+from typing import TYPE_CHECKING, Any, ClassVar
 
+if TYPE_CHECKING:
+    from holeshape.geometry import Cutout
+    from holeshape.parameters import CutoutSpec, Param, Range
+    from holeshape.study import Study
+
+# ``evaluation`` below is a holeshape.evaluate.Evaluation: a higher layer, so typed Any here
+
+
+
+def structural_limits(study: Study) -> list[str]:
+    """The structural requirements a study sets (each bounds how far a goal may push the design): the margin of
+    safety with an allowable stress, the net section with a net-section allowable, buckling with [stability]."""
+    m = study.material
+    return [name for name, on in (("margin", m.allowable_stress is not None),
+                                  ("net_section", m.net_section_allowable is not None),
+                                  ("buckling", study.stability is not None)) if on]
 
 class Goal(ABC):
     name: ClassVar[str] = ""
@@ -22,7 +38,7 @@ class Goal(ABC):
     retreat_note: ClassVar[str] = ""  # how a design is moved back along the goal
 
     @abstractmethod
-    def objective(self, evaluation, cutout, study) -> float:
+    def objective(self, evaluation: Any, cutout: Cutout, study: Study) -> float:
         """The number the search minimises for one solved design."""
 
     def readable(self, value: float) -> float:
@@ -33,11 +49,12 @@ class Goal(ABC):
     def shown(self, value: float) -> str:
         """An objective value as a person reads it, with its unit."""
 
-    def requires(self, study) -> str | None:
+    def requires(self, study: Study) -> str | None:
         """Why this goal cannot be used by the study (None: it can)."""
         return None
 
-    def retreat(self, spec, point: dict, t: float, ranges: dict) -> tuple[dict, float] | None:
+    def retreat(self, spec: CutoutSpec, point: dict[Param, float], t: float,
+                ranges: dict[Param, Range]) -> tuple[dict[Param, float], float] | None:
         """The search point (typed :class:`~holeshape.parameters.Param` keys) moved back along the goal by ``t``
         in (0, 1] (1: as far as the goal allows) and the scale of the outline's lengths that goes with it, or
         None where the ranges end first. None for a goal whose optimum does not sit on a requirement by
@@ -76,7 +93,7 @@ class LowestPeak(Goal):
     label = "lowest peak stress within every constraint"
     axis_label = "peak stress over all load cases (MPa)"
 
-    def objective(self, evaluation, cutout, study) -> float:
+    def objective(self, evaluation: Any, cutout: Cutout, study: Study) -> float:
         return evaluation.peak_stress_mpa
 
     def shown(self, value: float) -> str:
@@ -92,7 +109,7 @@ class LargestOpening(Goal):
     retreat_note = "the opening scaled down about its centre (every length of the outline; a row keeps its pitch)"
     SPAN = 0.25  # t = 1 scales the outline to 75 % of its size
 
-    def objective(self, evaluation, cutout, study) -> float:
+    def objective(self, evaluation: Any, cutout: Cutout, study: Study) -> float:
         return -cutout.area
 
     def readable(self, value: float) -> float:
@@ -101,30 +118,32 @@ class LargestOpening(Goal):
     def shown(self, value: float) -> str:
         return f"{-value:.0f} mm^2 removed"
 
-    def requires(self, study) -> str | None:
+    def requires(self, study: Study) -> str | None:
         c = study.constraints
         if c.area is not None:
             return (f'search.goal = "largest_opening" cannot be combined with constraints.area = {c.area!r} (a fixed'
                     " area leaves nothing to enlarge); use min_area / max_area")
-        if c.min_margin is None and c.min_buckling_factor is None:
+        if not structural_limits(study):
             return ('search.goal = "largest_opening" needs a structural limit that bounds the opening: give'
-                    " constraints.min_margin (against material.allowable_stress) and/or"
-                    " constraints.min_buckling_factor (with [stability])")
+                    " material.allowable_stress (the margin of safety must then reach constraints.min_margin,"
+                    " default 0), material.net_section_allowable, and/or a [stability] table (the buckling factor"
+                    " must reach its required_factor)")
         return None
 
-    def retreat(self, spec, point: dict, t: float, ranges: dict) -> tuple[dict, float] | None:
+    def retreat(self, spec: CutoutSpec, point: dict[Param, float], t: float,
+                ranges: dict[Param, Range]) -> tuple[dict[Param, float], float] | None:
         k = 1.0 - self.SPAN * t
         if any(p.is_length and point[p] * k < r.min for p, r in ranges.items()):
             return None
         return dict(point), k  # every length of the outline, searched or fixed, times k
 
-    def rank_key(self, row) -> tuple:
+    def rank_key(self, row: dict[str, Any]) -> tuple:
         return (-row["area_mm2"],)
 
-    def improvement_pct(self, a, b) -> float:
+    def improvement_pct(self, a: dict[str, Any], b: dict[str, Any]) -> float:
         return 100.0 * (a["area_mm2"] / b["area_mm2"] - 1.0)
 
-    def better(self, a, b) -> str:
+    def better(self, a: dict[str, Any], b: dict[str, Any]) -> str:
         return relative(a["area_mm2"], b["area_mm2"], "area removed", "less", "more")
 
 
@@ -136,7 +155,7 @@ class LightestReinforcement(Goal):
     retreat_note = "every searched size of the reinforcement enlarged in proportion"
     SPAN = 1.0  # t = 1 doubles the searched sizes
 
-    def objective(self, evaluation, cutout, study) -> float:
+    def objective(self, evaluation: Any, cutout: Cutout, study: Study) -> float:
         r = cutout.reinforcement
         return 0.0 if r is None else r.sizes(cutout, study.panel.thickness).volume_mm3
 
@@ -146,17 +165,18 @@ class LightestReinforcement(Goal):
     def shown(self, value: float) -> str:
         return f"{value / 1000.0:.2f} cm^3 of reinforcement"
 
-    def requires(self, study) -> str | None:
-        c = study.constraints
+    def requires(self, study: Study) -> str | None:
         if study.cutout.reinforcement is None or not any(p.part == "reinforcement" for p in study.cutout.ranges):
             return ('search.goal = "lightest_reinforcement" needs a [reinforcement] table with at least one size'
                     " given as a range ({min = ..., max = ...}) to search")
-        if c.min_margin is None and c.min_buckling_factor is None:
+        if not structural_limits(study):
             return ('search.goal = "lightest_reinforcement" needs a requirement the reinforcement must meet: give'
-                    " constraints.min_margin and/or constraints.min_buckling_factor")
+                    " material.allowable_stress (the margin of safety must then reach constraints.min_margin,"
+                    " default 0), material.net_section_allowable, and/or a [stability] table")
         return None
 
-    def retreat(self, spec, point: dict, t: float, ranges: dict) -> tuple[dict, float] | None:
+    def retreat(self, spec: CutoutSpec, point: dict[Param, float], t: float,
+                ranges: dict[Param, Range]) -> tuple[dict[Param, float], float] | None:
         k = 1.0 + self.SPAN * t
         out = dict(point)
         for p, r in ranges.items():
@@ -166,11 +186,11 @@ class LightestReinforcement(Goal):
                 out[p] = point[p] * k
         return out, 1.0
 
-    def rank_key(self, row) -> tuple:
+    def rank_key(self, row: dict[str, Any]) -> tuple:
         # no reinforcement at all (a bare opening that passes) first, then by volume, then by peak
         return ((row.get("reinforcement") or {}).get("added_volume_mm3", 0.0), row["peak_stress_mpa"])
 
-    def better(self, a, b) -> str:
+    def better(self, a: dict[str, Any], b: dict[str, Any]) -> str:
         va = (a.get("reinforcement") or {}).get("added_volume_mm3", 0.0)
         vb = (b.get("reinforcement") or {}).get("added_volume_mm3", 0.0)
         return relative(va, vb, "reinforcement", "less", "more") if vb else super().better(a, b)

@@ -9,10 +9,10 @@ from __future__ import annotations
 
 import difflib
 import math
-from collections.abc import Callable
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
+import holeshape.checks as checks_registry
 from holeshape.elastic import ELASTIC_KINDS, Isotropic
 from holeshape.errors import GeometryError, StudyError
 from holeshape.goals import GOALS
@@ -39,6 +39,10 @@ from holeshape.study import (
     StabilitySettings,
     Study,
 )
+
+if TYPE_CHECKING:
+    from holeshape.checks import Check
+    from holeshape.geometry import Cutout
 
 
 def _unknown(table: dict, allowed: tuple[str, ...], where: str) -> None:
@@ -106,6 +110,9 @@ def _table(doc: dict, key: str, required: bool = True) -> dict:
             raise StudyError(f"[{key}] table is missing")
         return {}
     v = doc[key]
+    if isinstance(v, list) and v and all(isinstance(t, dict) for t in v):
+        raise StudyError(f"{key} must be one table, written [{key}], got [[{key}]] ({len(v)} of them): a study has"
+                         f" one {key} table")
     if not isinstance(v, dict):
         raise StudyError(f"{key} must be a table ([{key}]), got {_shown(v)}")
     return v
@@ -113,15 +120,19 @@ def _table(doc: dict, key: str, required: bool = True) -> dict:
 
 TOP_KEYS = ("title", "panel", "material", "load_case", "cutout", "measure", "constraints", "search", "stability",
             "reinforcement")
-# the tables of registered checks that read one of their own (holeshape.checks): table name -> (the check's name,
-# the function that reads the table into the check's frozen settings, raising StudyError naming the field; it also
-# gets the parsed panel, material and load cases by name)
-CHECK_TABLES: dict[str, tuple[str, Callable[[dict, dict], Any]]] = {}
+
+
+def check_tables() -> dict[str, type[Check]]:
+    """The study-file tables the registered checks read, by table name (``Check.table``; each parsed by the
+    check's ``parse_table`` into ``Study.tables``). Read from the registry at each parse, so a check registered
+    after import (a test's, a plug-in's) is seen."""
+    return {c.table: c for c in checks_registry.CHECKS if c.table is not None}
 
 
 def parse_study(doc: dict, source: str = "") -> Study:
     """Validate a decoded TOML document and build the :class:`Study`."""
-    _unknown(doc, TOP_KEYS + tuple(CHECK_TABLES), "")
+    own_tables = check_tables()
+    _unknown(doc, TOP_KEYS + tuple(own_tables), "")
     title = doc.get("title", Path(source).stem if source else "untitled study")
     if not isinstance(title, str):
         raise StudyError(f"title must be a string, got {title!r}")
@@ -207,7 +218,7 @@ def parse_study(doc: dict, source: str = "") -> Study:
         raise StudyError(f"constraints.max_added_mass = {constraints.max_added_mass!r} kg needs material.density"
                          " (kg/m^3) to weigh the reinforcement")
     parts = {"panel": panel, "material": material, "load_cases": tuple(load_cases), "cutout": cutout}
-    tables = tuple((check, read(_table(doc, name), parts)) for name, (check, read) in CHECK_TABLES.items()
+    tables = tuple((cls.name, cls.parse_table(_table(doc, name), parts)) for name, cls in own_tables.items()
                    if name in doc)
     study = Study(title=title, panel=panel, material=material, load_cases=tuple(load_cases), cutout=cutout,
                   measure=measure, constraints=constraints, search=search, source=source, stability=stability,
@@ -522,7 +533,7 @@ def _shown(v: Any) -> str:
     return repr(v)
 
 
-def check_cutout_in_panel(cutout, panel: Panel) -> None:
+def check_cutout_in_panel(cutout: Cutout, panel: Panel) -> None:
     """Raise :class:`GeometryError` unless every opening is a simple closed curve strictly inside the panel, with web
     between openings; the message names the table and the value that put it there."""
     from shapely.geometry import Polygon
@@ -546,6 +557,7 @@ def check_cutout_in_panel(cutout, panel: Panel) -> None:
                     raise GeometryError(f"cutout[{i}] overlaps or touches cutout[{j}] (web between them {gap:.3g} mm);"
                                         " separate openings need web between them")
     elif cutout.count > 1:
+        assert cutout.row is not None  # one table of several openings: a row
         gap = min(a.distance(b) for a, b in zip(polys, polys[1:]))
         b = polys[0].bounds
         size = max(b[2] - b[0], b[3] - b[1])
@@ -559,12 +571,12 @@ def check_cutout_in_panel(cutout, panel: Panel) -> None:
         if gap >= least:
             continue
         if cutout.row is not None:
-            r = cutout.row
-            span = (r.count - 1) * r.pitch
+            row = cutout.row
+            span = (row.count - 1) * row.pitch
             raise GeometryError(
-                f"cutout.count = {r.count} at cutout.pitch = {r.pitch:g} mm (a row {span:g} mm long between its end"
-                f" centres, direction {r.direction:g} deg) runs opening {k + 1} "
-                + ("across" if gap <= 0 else "to within {gap:.3g} mm of") + f" the {edge} panel edge (ligament"
+                f"cutout.count = {row.count} at cutout.pitch = {row.pitch:g} mm (a row {span:g} mm long between its end"
+                f" centres, direction {row.direction:g} deg) runs opening {k + 1} "
+                + ("across" if gap <= 0 else f"to within {gap:.3g} mm of") + f" the {edge} panel edge (ligament"
                 f" {gap:.3g} mm) of the {panel.width:g} x {panel.height:g} mm panel: fewer openings, a smaller pitch"
                 " or a centre further from that edge")
         where = f"{table(k)}.center {[round(c, 6) for c in m.center]}"
@@ -577,7 +589,7 @@ def check_cutout_in_panel(cutout, panel: Panel) -> None:
             " the panel) is needed to mesh it")
     r = cutout.reinforcement
     outer = None if r is None else r.interior_outline(cutout)
-    if outer is not None:
+    if r is not None and outer is not None:
         size = f"reinforcement.{r.keys()[0]} = {r.size:g} mm"
         if not Polygon(outer.polygon(720)).is_valid:
             raise GeometryError(f"{size} makes the {r.kind}'s outer edge cross itself")
@@ -591,7 +603,7 @@ def check_cutout_in_panel(cutout, panel: Panel) -> None:
 def dump_toml(doc: dict) -> str:
     """A small TOML writer for these documents (tables, arrays of tables, inline tables, floats incl. nan/inf)."""
 
-    def val(v):
+    def val(v: Any) -> str:
         if isinstance(v, bool):
             return "true" if v else "false"
         if isinstance(v, float):
@@ -610,7 +622,7 @@ def dump_toml(doc: dict) -> str:
             return "{" + ", ".join(f"{key(k)} = {val(x)}" for k, x in v.items()) + "}"
         raise TypeError(v)
 
-    def key(k):
+    def key(k: str) -> str:
         return k if k.replace("_", "").isalnum() else val(k)
 
     lines = [f"{key(k)} = {val(v)}" for k, v in doc.items() if not isinstance(v, (dict, list)) or

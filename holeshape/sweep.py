@@ -6,13 +6,22 @@ from __future__ import annotations
 
 import re
 import time
+from collections.abc import Callable
 from dataclasses import dataclass
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 import numpy as np
 
+from holeshape.checks.stability import required_factor
 from holeshape.errors import GeometryError, HoleshapeError, StudyError
 from holeshape.studyfile import load_study
+
+if TYPE_CHECKING:
+    from holeshape.checks import Assessment
+    from holeshape.evaluate import Evaluation
+    from holeshape.parameters import CutoutSpec, Param
+    from holeshape.study import Study
 
 MAX_POINTS = 400
 
@@ -88,8 +97,7 @@ def run_sweep(study_path: str, out: str, vary_texts: list[str], progress: bool =
         record = SweepRecord(
             study=study.title, vary=tuple(dict(v.__dict__) for v in varies), points=tuple(points),
             accuracy=study.measure.accuracy, elapsed_s=time.perf_counter() - t0,
-            required_buckling_factor=None if study.stability is None else max(
-                study.stability.required_factor, study.constraints.min_buckling_factor or 0.0))
+            required_buckling_factor=None if study.stability is None else required_factor(study))
         result = record.to_dict()
         files.write_json(out_dir / "sweep.json", result)
         plot_sweep(out_dir / "sweep.png", result, study.material.allowable_stress)
@@ -104,8 +112,12 @@ def run_sweep(study_path: str, out: str, vary_texts: list[str], progress: bool =
     return result
 
 
-def _point(study, spec, point, coords, cache, assess, evaluate) -> dict:
+def _point(study: Study, spec: CutoutSpec, point: dict[Param, float], coords: dict[str, float], cache: dict,
+           assess: Callable[..., Assessment], evaluate: Callable[..., Evaluation]) -> dict:
     """One point of a sweep: its geometry checked, then (where it can be meshed) solved and assessed."""
+    from holeshape.checks.stability import BucklingResult
+    from holeshape.checks.stress import StressResult
+
     row: dict = {"coords": coords, "feasible": False}
     try:
         cut = spec.build(point)
@@ -124,12 +136,12 @@ def _point(study, spec, point, coords, cache, assess, evaluate) -> dict:
                        kt=ev.kt, error_estimate_pct=ev.error_estimate_pct,
                        governing_load_case=ev.governing_load_case, warnings=list(ev.warnings))
             st = full.result("stability")
-            if st is not None:
+            if isinstance(st, BucklingResult):
                 row.update(buckling_load_factor=st.stability.load_factor,
                            buckling_governing_load_case=getattr(st.stability.governing, "name", None),
                            buckling_error_estimate_pct=st.stability.error_estimate_pct)
             stress = full.result("stress")
-            if stress is not None and stress.lowest_margin is not None:
+            if isinstance(stress, StressResult) and stress.lowest_margin is not None:
                 row["margin_of_safety"] = stress.lowest_margin
     except (GeometryError, StudyError) as err:
         row["reason"] = " ".join(str(err).split())

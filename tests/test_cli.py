@@ -67,6 +67,8 @@ BAD = [
     ("sigma_x = -80.0", "sigma_x = nan", r"load_case\[1\]\.sigma_x must be finite, got nan"),
     ("[cutout]\nshape = \"superellipse\"", "[cutout]\nshape = \"spline\"\nradii = [40.0, 40.0, 4.0, 4.0, 40.0, 40.0,"
      " 40.0, 40.0]", r"cutout\.a is not a known key"),
+    ("[measure]", "[[stability]]\nedge_support = \"clamped\"\n[measure]",
+     r"stability must be one table, written \[stability\], got \[\[stability\]\]"),
 ]
 
 
@@ -80,6 +82,18 @@ def test_bad_input_is_one_line_exit_2(tmp_path, capsys, old, new, message):
     assert "Traceback" not in cap.err
     assert re.search(message, lines[0]), lines[0]
     assert cap.out == ""
+
+
+def test_a_modulus_given_in_gpa_is_flagged_in_every_output(tmp_path, capsys):
+    # 70 "MPa" is an aluminium modulus typed in GPa (about 70 GPa, from memory): the run goes on (the stress field of
+    # a single isotropic material under applied stresses does not depend on E) but every output says so
+    path = _variant(tmp_path, "youngs_modulus = 71000.0", "youngs_modulus = 70.0")
+    assert main(["check", str(path), "--json", "--accuracy", "draft"]) == 0
+    d = json.loads(capsys.readouterr().out)
+    assert any("material.youngs_modulus = 70 MPa is outside 1 to 1000 GPa" in w and "did you mean 70000 MPa" in w
+               for w in d["warnings"])
+    assert main(["check", str(path), "--accuracy", "draft"]) == 0
+    assert "WARNING       material.youngs_modulus = 70 MPa" in capsys.readouterr().out
 
 
 def test_self_crossing_spline(tmp_path, capsys):

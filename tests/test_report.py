@@ -181,3 +181,20 @@ def test_report_reads_like_a_design_note(run_dir):
     assert "Verdict:" in text.split("The job")[0]  # the one-screen summary comes first
     # stresses to 0.1 MPa, no long decimal tails anywhere
     assert not re.search(r"\d\.\d{5,}", text)
+
+
+def test_the_evidence_says_in_words_which_way_the_peak_moves():
+    # the words follow the table: a rise with shrinking steps reads as converged; a step that grows asks for the
+    # estimate to be read instead (common practice, no source: a converging sequence has shrinking steps)
+    from holeshape.output.report import convergence_words
+    from holeshape.record import LevelCheck
+
+    def levels(*peaks):
+        return tuple(LevelCheck(accuracy=a, dofs=d, peak_stress_mpa=p, change_pct=100 * (p / peaks[-1] - 1),
+                                error_estimate_pct=0.1) for a, d, p in zip(("draft", "standard", "fine"),
+                                                                              (1000, 2000, 4000), peaks))
+
+    text = convergence_words(levels(100.0, 101.0, 101.2))
+    assert "rises by 1.2 % in all" in text and "+1 % then +0.2 %" in text and "shrinking" in text
+    text = convergence_words(levels(101.2, 101.0, 100.0))
+    assert "falls by 1.2 % in all" in text and "not shrinking steadily" in text

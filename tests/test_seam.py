@@ -1,5 +1,5 @@
-"""The check seam: a new check lands as one module (here, one class in this file), one registry line and one entry in
-the study parser's table registry, and every output carries it; the net section and the effective stiffness
+"""The check seam: a new check lands as one module (here, one class in this file) and one registry line (its study
+table read through its own parser), and every output carries it; the net section and the effective stiffness
 (the two checks built on the seam) against statics and the dilute-hole result derived from Kirsch's solution."""
 
 from __future__ import annotations
@@ -12,7 +12,6 @@ import pytest
 from conftest import checked
 
 import holeshape.checks as checks_module
-import holeshape.studyfile as studyfile_module
 from holeshape.checks import Check, CheckResult, Section, Table, requirement
 from holeshape.cli import main
 from holeshape.errors import StudyError
@@ -26,13 +25,6 @@ from holeshape.study import LoadCase, Panel
 @dataclass(frozen=True)
 class EdgeLengthSettings:
     max_perimeter_mm: float
-
-
-def parse_edge_length(table: dict, parts: dict) -> EdgeLengthSettings:
-    v = table.get("max_perimeter")
-    if not isinstance(v, (int, float)) or isinstance(v, bool) or v <= 0:
-        raise StudyError(f"edge_length.max_perimeter must be a number > 0 mm, got {v!r}")
-    return EdgeLengthSettings(float(v))
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -55,6 +47,13 @@ class EdgeLengthCheck(Check):
     table = "edge_length"
 
     @classmethod
+    def parse_table(cls, table: dict, study_parts: dict) -> EdgeLengthSettings:
+        v = table.get("max_perimeter")
+        if not isinstance(v, (int, float)) or isinstance(v, bool) or v <= 0:
+            raise StudyError(f"edge_length.max_perimeter must be a number > 0 mm, got {v!r}")
+        return EdgeLengthSettings(float(v))
+
+    @classmethod
     def applies(cls, study) -> bool:
         return study.table(cls.name) is not None
 
@@ -68,9 +67,9 @@ class EdgeLengthCheck(Check):
 
 @pytest.fixture
 def toy_check(monkeypatch):
-    """The toy check registered: its module (this file), the registry line, the parser's table entry."""
+    """The toy check registered: its module (this file) and the registry line; the study parser finds its table
+    through ``Check.table`` and reads it with the check's own ``parse_table``."""
     monkeypatch.setattr(checks_module, "CHECKS", checks_module.CHECKS + (EdgeLengthCheck,))
-    monkeypatch.setitem(studyfile_module.CHECK_TABLES, "edge_length", ("edge_length", parse_edge_length))
 
 
 BASE = """

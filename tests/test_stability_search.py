@@ -153,11 +153,30 @@ BAD = [
     ('[stability]\nedge_support = "simply_supported"\nrequired_factor = 1.5\n', "",
      r"constraints\.min_buckling_factor = 1\.5 needs a \[stability\] table"),
     ("allowable_stress = 280.0\n", "", r"constraints\.min_margin = 0\.0 needs material\.allowable_stress"),
-    ("min_margin = 0.0\nmin_buckling_factor = 1.5\n", "",
-     r'search\.goal = "largest_opening" needs a structural limit that bounds the opening'),
     ('goal = "largest_opening"', 'goal = "lightest"', r"search\.goal must be one of lowest_peak, largest_opening"),
     ("min_margin = 0.0", "min_margin = -2.0", r"constraints\.min_margin must lie in \(-1, 10\]"),
 ]
+
+
+def test_largest_opening_without_any_structural_limit_is_refused(tmp_path, capsys):
+    # no allowable stress, no net-section allowable and no [stability]: nothing bounds the opening's growth
+    text = (LIGHTENING.replace("allowable_stress = 280.0\n", "")
+            .replace("min_margin = 0.0\nmin_buckling_factor = 1.5\n", "")
+            .replace('[stability]\nedge_support = "simply_supported"\nrequired_factor = 1.5\n', ""))
+    assert main(["optimise", str(_study(tmp_path, text)), "--out", str(tmp_path / "run")]) == 2
+    line = capsys.readouterr().err.strip()
+    assert re.fullmatch(r'holeshape: error: search\.goal = "largest_opening" needs a structural limit that bounds'
+                        r" the opening.*material\.allowable_stress.*\[stability\].*", line), line
+
+
+def test_an_allowable_alone_bounds_the_largest_opening(tmp_path):
+    # allowable_stress without min_margin: the margin must reach 0 (one definition: the stress check's own rule)
+    from holeshape.studyfile import load_study
+
+    text = LIGHTENING.replace("min_margin = 0.0\nmin_buckling_factor = 1.5\n", "").replace(
+        '[stability]\nedge_support = "simply_supported"\nrequired_factor = 1.5\n', "")
+    study = load_study(_study(tmp_path, text))
+    assert study.search.goal == "largest_opening" and study.constraints.min_margin is None
 
 
 @pytest.mark.parametrize("old,new,message", BAD, ids=[b[2][:40] for b in BAD])

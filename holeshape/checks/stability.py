@@ -3,22 +3,28 @@ factor, with its error estimate (holeshape.stability does the plate analysis).""
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
+from typing import TYPE_CHECKING
 
 from holeshape.checks.base import Check, CheckResult, Design, Section, Table, requirement
+
+if TYPE_CHECKING:
+    from holeshape.stability import StabilityFields, StabilityResult
+    from holeshape.study import Study
 
 ADVICE = ("to raise the buckling factor: a smaller or better-shaped opening (search with"
           " constraints.min_buckling_factor), a thicker web, stiffeners, or a flanged or reinforced opening")
 ADVICE_ACCURACY = "to meet the accuracy target: use a finer accuracy level (--accuracy fine)"
 
 
-def _factor(f) -> str:
+def _factor(f: float | None) -> str:
     return "does not buckle" if f is None else f"{f:.3f}"
 
 
-def required_factor(study) -> float:
+def required_factor(study: Study) -> float:
     """The buckling factor every load case must reach: the larger of [stability] required_factor and
     constraints.min_buckling_factor."""
+    assert study.stability is not None  # the check applies with a [stability] table only
     return max(study.stability.required_factor, study.constraints.min_buckling_factor or 0.0)
 
 
@@ -27,8 +33,8 @@ class BucklingResult(CheckResult):
     """The :class:`~holeshape.stability.StabilityResult` of the design, and the mode shapes for the plots."""
 
     check = "stability"
-    stability: object
-    fields: object = field(default=None, compare=False, repr=False)
+    stability: StabilityResult
+    fields: StabilityFields | None = field(default=None, compare=False, repr=False)
 
     def to_dict(self) -> dict:
         return self.stability.to_dict()
@@ -82,20 +88,22 @@ class BucklingResult(CheckResult):
 class BucklingCheck(Check):
     name = "stability"
     title = "Stability"
-    table = "stability"
+    # [stability] is a table of the study itself (Study.stability: the buckling solver and the sweep read it), not
+    # one parsed through ``Check.table``
 
     @classmethod
-    def applies(cls, study) -> bool:
+    def applies(cls, study: Study) -> bool:
         return study.stability is not None
 
     def run(self, design: Design) -> BucklingResult:
         from holeshape.stability import buckling
 
         study = design.study
-        st = buckling(study.panel, study.material, study.load_cases, design.cutout, study.stability,
-                              design.accuracy, time_limit_s=design.time_left_s, keep_fields=design.keep_fields,
-                              cache=design.cache)
         need = required_factor(study)
+        assert study.stability is not None  # the check applies with a [stability] table only
+        settings = replace(study.stability, required_factor=need)  # one required factor: reserve, text and verdict
+        st = buckling(study.panel, study.material, study.load_cases, design.cutout, settings, design.accuracy,
+                      time_limit_s=design.time_left_s, keep_fields=design.keep_fields, cache=design.cache)
         reqs = [requirement("buckling", f"buckling load factor, {c.name}", c.load_factor, need, ">=", scale=need,
                             kind="buckling", load_case=c.name, advice=ADVICE, check=self.name,
                             reason=f"buckling load factor {c.load_factor or 0:.3g} < {need:g} ({c.name})")
@@ -107,7 +115,7 @@ class BucklingCheck(Check):
         return BucklingResult(requirements=tuple(reqs), warnings=st.warnings, stability=st, fields=st.fields)
 
     @classmethod
-    def absent(cls, study) -> Section:
+    def absent(cls, study: Study) -> Section:
         return Section("Stability", ("Not assessed: the study has no [stability] table, so whether the web buckles"
                                      " under these loads is not checked here. In a thin web the opening often governs"
                                      " through buckling before the peak stress reaches the allowable: add [stability]"

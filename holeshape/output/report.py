@@ -7,6 +7,7 @@ from __future__ import annotations
 
 import html
 import json
+from collections.abc import Sequence
 from pathlib import Path
 
 from holeshape.goals import GOALS
@@ -137,7 +138,7 @@ def _sizes(sizes: dict) -> str:
                      for k, v in sizes.items())
 
 
-def load_case_rows(cases) -> tuple[list[dict], list[tuple[str, str]]]:
+def load_case_rows(cases: Sequence[dict]) -> tuple[list[dict], list[tuple[str, str]]]:
     """The load-case table: remote stresses for remote-stress cases, beam forces (N, N mm) for beam cases; a value
     that does not belong to the case's kind is left blank rather than shown as zero."""
     beam = any(c.get("shear_force") is not None or c.get("bending_moment") is not None for c in cases)
@@ -352,7 +353,7 @@ def section_comparison(page: Page, rec: RunRecord) -> None:
     for r in rec.baselines:
         other = {"peak_stress_mpa": r.peak_stress_mpa, "area_mm2": r.area_mm2,
                  "reinforcement": None if r.added_volume_mm3 is None else {"added_volume_mm3": r.added_volume_mm3}}
-        note = "" if mine is None or r.peak_stress_mpa is None else \
+        note = "" if b is None or mine is None or r.peak_stress_mpa is None else \
             "the recommended design" if b.trial is None and r.shape == b.shape and r.params == b.params else \
             f"the recommended design has {goal.better(mine, other)} it"
         rows.append({"shape": f"standard {r.shape.replace('_', ' ')}", "peak_stress_mpa": r.peak_stress_mpa,
@@ -388,8 +389,30 @@ def section_evidence(page: Page, b: DesignCheck | None) -> None:
     page.table([asdict(x) for x in b.levels], [
         ("accuracy", "accuracy level"), ("dofs", "DOFs"), ("peak_stress_mpa", "peak (MPa)"),
         ("change_pct", "change from finest (%)"), ("error_estimate_pct", "error estimate (%)")])
+    page.para(convergence_words(b.levels))
     page.para(f"Reported figures are at the {b.accuracy} level; error estimate {sig(b.error_estimate_pct)} % "
               "(change of the peak to a mesh with every element size doubled, plus the measured scatter floor).")
+
+
+def convergence_words(levels: tuple) -> str:
+    """What the table of mesh levels says, in words: which way the peak moves as the mesh is refined, and whether
+    the steps shrink (the evidence that the finest figure is converged, not merely the last one computed)."""
+    peaks = [lv.peak_stress_mpa for lv in levels]
+    if len(peaks) < 2:
+        return "Only one mesh level was solved: there is no second level to compare it with."
+    steps = [100.0 * (b / a - 1.0) for a, b in zip(peaks, peaks[1:])]
+    way = "rises" if peaks[-1] > peaks[0] else "falls"
+    text = (f"As the mesh is refined ({', '.join(str(lv.dofs) for lv in levels)} DOFs) the peak {way} by"
+            f" {abs(100.0 * (peaks[-1] / peaks[0] - 1.0)):.2g} % in all")
+    if len(steps) >= 2:
+        shrinking = all(abs(b) <= abs(a) for a, b in zip(steps, steps[1:]))
+        text += (f"; the step between levels goes {' then '.join(f'{x:+.2g} %' for x in steps)}"
+                 + (", shrinking as the mesh refines: the finest figure is converged to about its last step."
+                    if shrinking else ", not shrinking steadily: take the error estimate, not the last step, as the"
+                    " measure of accuracy, and consider a finer level."))
+    else:
+        text += "."
+    return text
 
 
 def section_validation(page: Page, validation: list[dict]) -> None:

@@ -4,14 +4,21 @@ envelope, and the trade-off front. mm and MPa on every axis."""
 from __future__ import annotations
 
 from pathlib import Path
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
 from holeshape.output.plots import pyplot, save
 from holeshape.record import folder_name
 
+if TYPE_CHECKING:
+    from holeshape.geometry import Cutout
+    from holeshape.study import Constraints, Panel, Study
 
-def plot_history(path: Path, trials, title: str, goal: str = "lowest_peak") -> Path:
+# ``trials`` below are optuna trials, and matplotlib's figures and axes: typed Any
+
+
+def plot_history(path: Path, trials: list[Any], title: str, goal: str = "lowest_peak") -> Path:
     """The goal's quantity for every feasible design against the trial number, with the best so far (the goal's
     own reading of its objective: the peak, the removed area (the best is the largest), the reinforcement's volume
     in cm^3)."""
@@ -62,7 +69,7 @@ def plot_history(path: Path, trials, title: str, goal: str = "lowest_peak") -> P
     return save(fig, path)
 
 
-def plot_radii_history(path: Path, trials, title: str) -> Path | None:
+def plot_radii_history(path: Path, trials: list[Any], title: str) -> Path | None:
     """The outline of every new best design of a free-form (spline) search, overlaid about its centre and coloured
     by trial (late = dark), the final one in black: how the shape evolved, in one panel. None when the study has
     no spline designs."""
@@ -103,8 +110,11 @@ def plot_radii_history(path: Path, trials, title: str) -> Path | None:
     return save(fig, path)
 
 
-def plot_shapes(path: Path, best, baselines, panel, constraints, title: str, best_peak: float,
-                base_peaks: dict) -> Path:
+def plot_shapes(path: Path, best: Cutout, baselines: list[tuple[str, Cutout]], panel: Panel, constraints: Constraints,
+                title: str, best_peak: float, base_peaks: dict,
+                searched: tuple[str, Cutout, float] | None = None) -> Path:
+    """The recommended outline over the standard shapes (and, when a standard shape is recommended, over the
+    searched family's best: ``searched`` its family, outline and peak)."""
     plt = pyplot()
     fig, ax = plt.subplots(figsize=(8, 8 * panel.height / panel.width + 0.8))
     ax.plot([0, panel.width, panel.width, 0, 0], [0, 0, panel.height, panel.height, 0], color="black", lw=1.2)
@@ -113,18 +123,23 @@ def plot_shapes(path: Path, best, baselines, panel, constraints, title: str, bes
         for k, p in enumerate(cut.outlines(720)):
             ax.plot(*np.vstack([p, p[:1]]).T, styles[i % 3], color="0.45", lw=1.2,
                     label=f"{family.replace('_', ' ')}: {base_peaks[family]:.1f} MPa" if k == 0 else None)
+    if searched is not None:
+        family, cut, peak = searched
+        for k, p in enumerate(cut.outlines(720)):
+            ax.plot(*np.vstack([p, p[:1]]).T, "--", color="C3", lw=1.6,
+                    label=f"searched {family.replace('_', ' ')}'s best: {peak:.1f} MPa" if k == 0 else None)
     for p in best.outlines(720)[1:]:  # the other openings of a row
         ax.fill(*p.T, color="C0", alpha=0.15)
         ax.plot(*np.vstack([p, p[:1]]).T, color="C0", lw=2.2)
     p = best.polygon(720) if best.count == 1 else best.outlines(720)[0]
     r = best.reinforcement
     region = None if r is None else r.interior_outline(best)
-    if region is not None:  # the reinforced region (a doubler ring) drawn round the opening
+    if r is not None and region is not None:  # the reinforced region (a doubler ring) drawn round the opening
         q = region.polygon(720)
         ax.fill(*q.T, color="C1", alpha=0.25, label=r.label())
     ax.fill(*p.T, color="white" if region is not None else "C0", alpha=1.0 if region is not None else 0.15)
     extra = f", {r.label()}" if r is not None and region is None else ""
-    ax.plot(*np.vstack([p, p[:1]]).T, color="C0", lw=2.2, label=f"best {best.family.replace('_', ' ')}{extra}: "
+    ax.plot(*np.vstack([p, p[:1]]).T, color="C0", lw=2.2, label=f"recommended {best.family.replace('_', ' ')}{extra}: "
             f"{best_peak:.1f} MPa")
     if constraints.access is not None:
         env = constraints.access.polygon(best.center, 0.0)
@@ -132,10 +147,11 @@ def plot_shapes(path: Path, best, baselines, panel, constraints, title: str, bes
         if constraints.clearance > 0:
             ax.plot(*constraints.access.polygon(best.center, constraints.clearance).exterior.xy, color="C2",
                     lw=0.8, label=f"with {constraints.clearance:g} mm clearance")
-    return _finish_plan(fig, ax, path, f"{title}\nbest shape against the standard shapes (peak, fine level)")
+    what = "the searched best and standard shapes" if searched is not None else "the standard shapes"
+    return _finish_plan(fig, ax, path, f"{title}\nrecommended shape, {what} (peak, fine level)")
 
 
-def _finish_plan(fig, ax, path: Path, title: str) -> Path:
+def _finish_plan(fig: Any, ax: Any, path: Path, title: str) -> Path:
     """A drawing of the panel in plan: true scale, mm on both axes."""
     ax.set_aspect("equal")
     ax.set_xlabel("x (mm)")
@@ -146,7 +162,7 @@ def _finish_plan(fig, ax, path: Path, title: str) -> Path:
     return save(fig, path)
 
 
-def plot_front(path: Path, trials, front: list[dict], title: str) -> Path:
+def plot_front(path: Path, trials: list[Any], front: list[dict], title: str) -> Path:
     from optuna.trial import TrialState
 
     plt = pyplot()
@@ -174,7 +190,7 @@ def plot_front(path: Path, trials, front: list[dict], title: str) -> Path:
     return save(fig, path)
 
 
-def plot_family_overlay(path: Path, study, run_dir: Path, ranked: list[dict]) -> Path:
+def plot_family_overlay(path: Path, study: Study, run_dir: Path, ranked: list[dict]) -> Path:
     """Every family's best outline in one figure, from their written profiles (mm)."""
     plt = pyplot()
     panel = study.panel
