@@ -24,11 +24,15 @@ demo: $(STAMP)
 	$(VENV)/bin/holeshape optimise studies/deck-girder-cable-row.toml --out runs/deck-girder-cable-row
 	$(VENV)/bin/holeshape optimise studies/bulkhead-cable-transit.toml --out runs/bulkhead-cable-transit
 
+# one pytest worker per core and one more: several tests spend part of their time waiting on processes of their own
+# (killed and resumed runs, several search workers, the database), and the extra worker fills those waits
+JOBS ?= $(shell echo $$(( $$(nproc 2>/dev/null || echo 2) + 1 )))
+
 test: $(STAMP)
-	$(PY) -m pytest -n auto --dist worksteal
+	$(PY) -m pytest -n $(JOBS) --dist worksteal
 
 quick: $(STAMP)
-	$(PY) -m pytest -n auto --dist worksteal -m "not slow"
+	$(PY) -m pytest -n $(JOBS) --dist worksteal -m "not slow"
 
 lint: $(STAMP)
 	$(VENV)/bin/ruff check holeshape tests benchmarks examples

@@ -3,7 +3,8 @@
 Every layer that needs the material's stiffness (the plane-stress solve, the stress recovery, the plate bending
 stiffness, the imposed strain of displacement edges) asks an :class:`Elastic` object; nothing below the study
 parser reads Young's modulus and Poisson's ratio as loose numbers. A new kind of material (a laminate) is one
-subclass and one line in :data:`ELASTIC_KINDS`.
+subclass (its keys, how it reads them from [material], its checks) and one line in :data:`ELASTIC_KINDS`; the study
+parser asks the kind for its keys and its values.
 
 Conventions: stresses MPa, strains dimensionless with the *tensor* shear strain e_xy = gamma_xy / 2, components
 ordered (xx, yy, xy); arrays of any shape broadcast element by element.
@@ -13,7 +14,8 @@ from __future__ import annotations
 
 import math
 from abc import ABC, abstractmethod
-from dataclasses import dataclass
+from collections.abc import Callable
+from dataclasses import dataclass, fields
 from typing import Any, ClassVar
 
 # Plausible Young's moduli of structural materials in MPa (N/mm^2): foams and elastomers sit below, nothing
@@ -52,6 +54,24 @@ class Elastic(ABC):
     @abstractmethod
     def parameters(self) -> dict[str, float]:
         """The study-file values of this kind (for inputs.json and the report)."""
+
+    @classmethod
+    def keys(cls) -> tuple[str, ...]:
+        """The kind's own keys in [material] (default: its dataclass fields)."""
+        return tuple(f.name for f in fields(cls))  # type: ignore[arg-type]  # every kind is a dataclass
+
+    @classmethod
+    def from_table(cls, table: dict[str, Any], number: Callable[[str], float]) -> Elastic:
+        """The kind built from its [material] table; ``number(key)`` reads one required finite number and raises
+        the study's one-line error. Default: every key a number, then :meth:`check` (a kind with other values, a
+        laminate's plies, overrides this)."""
+        made = cls(**{k: number(k) for k in cls.keys()})
+        made.check()
+        return made
+
+    @abstractmethod
+    def check(self) -> None:
+        """Raise ``ValueError`` naming the field (``material.<key>``) when the constants are not a valid material."""
 
     def plausibility(self) -> list[str]:
         """One-line warnings when a value looks like a unit slip (never an error: the user may mean it)."""

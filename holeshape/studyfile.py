@@ -13,7 +13,7 @@ from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
 import holeshape.checks as checks_registry
-from holeshape.elastic import ELASTIC_KINDS, Isotropic
+from holeshape.elastic import ELASTIC_KINDS
 from holeshape.errors import GeometryError, StudyError
 from holeshape.goals import GOALS
 from holeshape.parameters import OpeningSpec, ReinforcementSpec, RowSpec
@@ -247,26 +247,21 @@ def _parse_material(m: dict) -> Material:
     """[material]: the elastic kind's constants (``kind``, default "isotropic") and the allowables."""
     kind = _string(m, "kind", "material.", tuple(ELASTIC_KINDS), default="isotropic")
     common = ("name", "kind", "allowable_stress", "net_section_allowable", "density")
-    own = ELASTIC_PARSERS[kind]
-    _unknown(m, common + own[0], "material.")
+    cls = ELASTIC_KINDS[kind]
+    _unknown(m, common + cls.keys(), "material.")
+    try:
+        elastic = cls.from_table(m, lambda key: _number(m, key, "material."))
+    except StudyError:
+        raise
+    except ValueError as err:  # the kind's own check, which names the field
+        raise StudyError(str(err)) from None
     return Material(
         name=_string(m, "name", "material.", default="unnamed material"),
-        elastic=own[1](m),
+        elastic=elastic,
         allowable_stress=_number(m, "allowable_stress", "material.", default=None, positive=True),
         density=_number(m, "density", "material.", default=None, positive=True),
         net_section_allowable=_number(m, "net_section_allowable", "material.", default=None, positive=True),
     )
-
-
-def _isotropic(m: dict) -> Isotropic:
-    nu = _number(m, "poisson_ratio", "material.")
-    if not -1.0 < nu < 0.5:
-        raise StudyError(f"material.poisson_ratio must lie strictly between -1 and 0.5, got {nu!r}")
-    return Isotropic(youngs_modulus=_number(m, "youngs_modulus", "material.", positive=True), poisson_ratio=nu)
-
-
-# per elastic kind: its own keys in [material] and the function that reads them
-ELASTIC_PARSERS = {"isotropic": (("youngs_modulus", "poisson_ratio"), _isotropic)}
 
 
 def _beam_case(c: dict, i: int, where: str, panel: Panel) -> LoadCase:

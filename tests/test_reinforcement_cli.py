@@ -106,7 +106,7 @@ def test_least_flange_makes_the_failing_bare_opening_pass(tmp_path, capsys):
     # the bundled study: the bare 112 mm hole buckles below the required 1.5 (measured 0.76); the search finds the
     # smallest flange that passes, and the report compares it with the bare opening
     out = tmp_path / "run"
-    study = _variant(tmp_path, ("trials = 40", "trials = 24"))
+    study = _variant(tmp_path, ("trials = 40", "trials = 16"))  # one searched size: 16 trials land within 3 %
     assert main(["optimise", str(study), "--out", str(out), "--quiet"]) == 0
     s = json.loads((out / "summary.json").read_text())
     b = s["best"]
