@@ -31,8 +31,9 @@ def bare_document(doc: dict) -> dict:
     out = {k: v for k, v in doc.items() if k != "reinforcement"}
     if "constraints" in out:
         out["constraints"] = {k: v for k, v in out["constraints"].items() if k not in REINFORCEMENT_LIMITS}
-    if out.get("search", {}).get("goal") == "lightest_reinforcement":
-        out["search"] = {**out["search"], "goal": "lowest_peak"}
+    goal = GOALS.get(str(out.get("search", {}).get("goal", "lowest_peak")))
+    if goal is not None and goal.bare_goal is not None:
+        out["search"] = {**out["search"], "goal": goal.bare_goal}
     return out
 
 

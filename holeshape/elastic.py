@@ -27,6 +27,9 @@ class Elastic(ABC):
     """The contract of a material kind. Subclasses are frozen dataclasses whose fields are the study-file keys."""
 
     kind: ClassVar[str] = ""
+    description: ClassVar[str] = ""  # the material model in a few words, as the report's assumptions say it
+    headings: ClassVar[dict[str, str]] = {}  # the kind's own keys as the report's tables head them, with units
+    reference_key: ClassVar[str] = "modulus"  # the [material] key the reference modulus is read from (warnings)
 
     @abstractmethod
     def stress(self, exx: Any, eyy: Any, exy: Any) -> tuple[Any, Any, Any]:
@@ -80,8 +83,8 @@ class Elastic(ABC):
         if lo <= e <= hi:
             return []
         guess = e * 1000.0 if e < lo else e / 1.0e6
-        return [f"material.youngs_modulus = {e:g} MPa is outside 1 to 1000 GPa ({lo:g} to {hi:g} MPa), where every"
-                f" structural material lies: holeshape works in MPa (N/mm^2); did you mean {guess:g} MPa?"]
+        return [f"material.{self.reference_key} = {e:g} MPa is outside 1 to 1000 GPa ({lo:g} to {hi:g} MPa), where"
+                f" every structural material lies: holeshape works in MPa (N/mm^2); did you mean {guess:g} MPa?"]
 
     def to_dict(self) -> dict[str, Any]:
         return {"kind": self.kind, **self.parameters()}
@@ -92,6 +95,9 @@ class Isotropic(Elastic):
     """Linear-elastic isotropic material: Young's modulus (MPa) and Poisson's ratio."""
 
     kind: ClassVar[str] = "isotropic"
+    description: ClassVar[str] = "isotropic linear-elastic material"
+    headings: ClassVar[dict[str, str]] = {"youngs_modulus": "E (MPa)", "poisson_ratio": "Poisson's ratio"}
+    reference_key: ClassVar[str] = "youngs_modulus"
     youngs_modulus: float
     poisson_ratio: float
 

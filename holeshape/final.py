@@ -16,7 +16,7 @@ from typing import TYPE_CHECKING, Any
 from holeshape.checks import Assessment, assess
 from holeshape.checks.stability import BucklingResult
 from holeshape.checks.stress import StressResult
-from holeshape.errors import GeometryError
+from holeshape.errors import GeometryError, MeshError, SolveError
 from holeshape.evaluate import Evaluation, evaluate
 from holeshape.goals import GOALS
 from holeshape.progress import QUIET, Progress
@@ -37,12 +37,13 @@ log = logging.getLogger("holeshape.final")
 FINAL_ACCURACY = ACCURACIES[-1]  # the finest level: the reported figures
 FINAL_TRIES = 3  # best search designs checked at the final level before moving one back along the goal
 # moving back along the goal (Goal.retreat): the first step, its growth while the design still fails, the most
-# steps, and when to stop halving between the last failing and the first passing step (share of the passing step)
+# final-level checks, and when to stop halving between the last failing and the first passing step (a share of the
+# passing step, or a quarter of the first step, whichever is larger)
 RETREAT_START = 0.02
 RETREAT_GROWTH = 3.0
 RETREAT_STEPS = 7
 RETREAT_TOLERANCE = 0.25
-RETREATABLE = ("margin", "buckling")  # kinds of requirement a move along the goal addresses (not accuracy, geometry)
+RETREAT_PROBES = 12  # steps tried beyond a range's end (no check spent on them) before giving up
 
 
 @dataclass(frozen=True)
@@ -96,18 +97,31 @@ class FinalChecks:
         score = GOALS[s.search.goal].objective(ev, cut, s)
         return Checked(family, cut, ev if keep else ev.without_fields(), a, trial, score)
 
-    def standard(self, cut: Cutout, family: str) -> Checked:
-        """A standard shape, checked once per run (``compare`` checks the same ones for every family)."""
+    def attempt(self, cut: Cutout, family: str, trial: int | None, keep: bool = False) -> Checked | str:
+        """:meth:`check`, or why the design could not be checked at the final level (its outline fails a
+        requirement the mesher needs, or the mesher or solver gave up on it): one line, the run goes on."""
+        geo = assess(self.study, cut)
+        if not geo.can_mesh:
+            return "; ".join(r.reason or r.label for r in geo.failed if r.to_mesh)
+        try:
+            return self.check(cut, family, trial, keep)
+        except (MeshError, SolveError) as err:
+            return f"not solved at the {FINAL_ACCURACY} level: " + " ".join(str(err).split())
+
+    def standard(self, cut: Cutout, family: str) -> Checked | str:
+        """A standard shape, checked once per run (``compare`` checks the same ones for every family); a string
+        says why it could not be checked."""
         key = standard_key(self.study, cut)
         if key not in self.cache:
-            self.cache[key] = self.check(cut, family, None)
+            self.cache[key] = self.attempt(cut, family, None)
         return self.cache[key]
 
 
 def standard_key(study: Study, cutout: Cutout) -> tuple:
+    """What a standard shape's final check depends on (compare reuses it across families of one study)."""
     s = study
     return ("standard shape", s.panel, s.material, s.load_cases, cutout, s.measure.stress, s.stability,
-            s.constraints)
+            s.constraints, s.tables, s.search.goal)
 
 
 def check_standard_shapes(checks: FinalChecks, baselines: list[tuple[str, Cutout | None, str]], bar: Bar | None = None
@@ -125,6 +139,11 @@ def check_standard_shapes(checks: FinalChecks, baselines: list[tuple[str, Cutout
             rows.append(Baseline(shape=family, feasible=False, reason=note))
         else:
             c = checks.standard(cut, family)
+            if isinstance(c, str):
+                rows.append(Baseline(shape=family, feasible=False, reason=c, params=cut.parameters()))
+                if bar is not None:
+                    bar.update()
+                continue
             s = c.summary()
             r = s["reinforcement"] or {}
             rows.append(Baseline(shape=family, feasible=c.passes, reason="; ".join(s["verdict_reasons"]) or None,
@@ -143,13 +162,15 @@ def check_standard_shapes(checks: FinalChecks, baselines: list[tuple[str, Cutout
 @dataclass(frozen=True)
 class Choice:
     """The recommendation (None: nothing passes), the searched family's best at the final level (``own``: the best
-    that passes; ``nearest``: its best miss when none does), the misses checked, and why."""
+    that passes; ``nearest``: its best miss when none does), the misses checked, why, and the best trials the final
+    level could not check."""
 
     best: Checked | None
     own: Checked | None
     nearest: Checked | None
     misses: tuple[Checked, ...]
     reason: str
+    unsolved: tuple[tuple[int, str], ...] = ()  # best trials that could not be checked at the final level, and why
 
 
 def choose(checks: FinalChecks, study: Any, space: DesignSpace, usable: list[Checked] | Callable[[], list[Checked]],
@@ -163,17 +184,22 @@ def choose(checks: FinalChecks, study: Any, space: DesignSpace, usable: list[Che
     family = s.cutout.shape
     ranked = sorted((t for t in finished(study) if is_feasible(t)), key=lambda t: t.values[0])
     own, misses = None, []
+    unsolved: list[tuple[int, str]] = []
     for t in ranked[:FINAL_TRIES]:
         if bar is not None:
             bar.note(f"trial {t.number} at the {FINAL_ACCURACY} level")
-        c = checks.check(space.decode(t.params), family, t.number, keep=True)
+        c = checks.attempt(space.decode(t.params), family, t.number, keep=True)
         if bar is not None:
             bar.update()
+        if isinstance(c, str):  # solved at the draft level, not at the final one: a miss with its reason
+            log.warning("trial %d could not be checked at the %s level: %s", t.number, FINAL_ACCURACY, c)
+            unsolved.append((t.number, c))
+            continue
         if c.passes:
             own = c
             break
         misses.append(c)
-    if own is None and misses and all(r.kind in RETREATABLE for r in misses[0].assessment.failed):
+    if own is None and misses and all(r.structural for r in misses[0].assessment.failed):
         t0 = next(t for t in ranked if t.number == misses[0].trial)
         own = retreat(checks, goal, space, t0, misses[0], bar)
     if callable(usable):
@@ -183,10 +209,12 @@ def choose(checks: FinalChecks, study: Any, space: DesignSpace, usable: list[Che
     if not candidates:
         std = "no standard shape applies (no access envelope or area requirement to size one by)" \
             if standard_count == 0 else "none of the standard shapes meets them either"
+        lost = "" if not unsolved else "; " + "; ".join(f"trial {n}: {why}" for n, why in unsolved)
         return Choice(None, None, nearest, tuple(misses), f"nothing the search found meets every requirement at the"
-                      f" {FINAL_ACCURACY} level, and {std}")
+                      f" {FINAL_ACCURACY} level, and {std}{lost}", tuple(unsolved))
     best = min(candidates, key=lambda c: c.score)
-    return Choice(best, own, nearest, tuple(misses), _why(best, own, nearest, list(usable), goal, family))
+    return Choice(best, own, nearest, tuple(misses), _why(best, own, nearest, list(usable), goal, family),
+                  tuple(unsolved))
 
 
 def _miss_size(c: Checked) -> float:
@@ -219,40 +247,57 @@ def _why(best: Checked, own: Checked | None, nearest: Checked | None, usable: li
 def retreat(checks: FinalChecks, goal: Goal, space: DesignSpace, trial: Any, first: Checked, bar: Bar | None = None
             ) -> Checked | None:
     """Move the trial's design back along the goal (a smaller opening, a larger reinforcement) until it meets every
-    requirement at the final level: steps growing from RETREAT_START while it fails, then halving towards the
-    boundary. Returns the passing design with how far it moved, or None (the ranges end first, or the steps do)."""
+    requirement at the final level: steps growing from RETREAT_START while it fails (halving back from a range's
+    end when a step runs past one), then halving between the last failing and the first passing step. Returns the
+    passing design with how far it moved, or None (the ranges end, the geometry or the mesher refuses the moved
+    design, or the checks run out first)."""
     spec = space.spec
     point = space.point(trial.params)
     ranges = spec.ranges
     family = spec.shape
-    t, t_fail, t_pass, best = RETREAT_START, 0.0, None, None
-    for _ in range(RETREAT_STEPS):
+    t, t_fail, t_pass, t_beyond = RETREAT_START, 0.0, None, None
+    best: Checked | None = None
+    checked = probes = 0
+    close = 0.25 * RETREAT_START  # steps closer than this are the same design for the purpose
+    while checked < RETREAT_STEPS and probes < RETREAT_PROBES:
         moved = goal.retreat(spec, point, t, ranges)
-        if moved is None:
-            break
-        pt, scale = moved
-        try:
-            cut = spec.build(pt, scale=scale)
-        except GeometryError:
-            break
-        if bar is not None:
-            bar.grow(1)
-            bar.note(f"trial {trial.number} moved back along the goal")
-        c = checks.check(cut, family, trial.number, keep=True)
-        if bar is not None:
-            bar.update()
-        if c.passes:
-            t_pass, best = t, replace(c, moved=_moved(first, c, t, scale, goal, trial.number))
+        if moved is None:  # past the end of a range: no check spent; look between the last failure and here
+            probes += 1
+            t_beyond = t
         else:
-            t_fail = t
-        if t_pass is None:
-            if t >= 1.0:
+            pt, scale = moved
+            try:
+                cut = spec.build(pt, scale=scale)
+            except GeometryError:
                 break
-            t = min(1.0, t * RETREAT_GROWTH)
-        else:
-            if t_pass - t_fail <= RETREAT_TOLERANCE * t_pass:
+            if bar is not None:
+                bar.grow(1)
+                bar.note(f"trial {trial.number} moved back along the goal")
+            c = checks.attempt(cut, family, trial.number, keep=True)
+            checked += 1
+            if bar is not None:
+                bar.update()
+            if isinstance(c, str):  # moving further makes the outline or the reinforcement worse, not better
+                log.info("trial %d moved back by %.3g: %s", trial.number, t, c)
+                break
+            if c.passes:
+                t_pass, best = t, replace(c, moved=_moved(first, c, t, scale, goal, trial.number))
+            elif any(not r.structural for r in c.assessment.failed):  # the move broke a geometric requirement
+                break
+            else:
+                t_fail = t
+        if t_pass is not None:
+            if t_pass - t_fail <= max(RETREAT_TOLERANCE * t_pass, close):
                 break
             t = 0.5 * (t_fail + t_pass)
+        elif t_beyond is not None:
+            if t_beyond - t_fail <= close:  # the range ends right past the last failing step
+                break
+            t = 0.5 * (t_fail + t_beyond)
+        elif t >= 1.0:
+            break
+        else:
+            t = min(1.0, t * RETREAT_GROWTH)
     return best
 
 

@@ -294,6 +294,8 @@ def finish_run(study_def: Study, study: Any, space: DesignSpace, baselines: Base
             + bound_warnings(study_def, best)
         if best.moved is not None:
             warnings.append("the search's best sat on a requirement: " + best.moved["note"])
+        warnings += [f"trial {n}, among the search's best, could not be checked at the {FINAL_ACCURACY} level ({why})"
+                     for n, why in choice.unsolved]
         ev = best.evaluation
         fam = choice.own or choice.nearest
         record = RunRecord(
@@ -361,18 +363,9 @@ def _checked_miss(c: Checked) -> dict:
 
 
 def _advice_for(group: dict) -> list[str]:
-    """What to change for a group of refused trials, by the kind of requirement that refused them."""
-    from holeshape.checks.stability import ADVICE as BUCKLING
-    from holeshape.checks.stress import ADVICE_BARE
-
-    kind = group.get("kind", "")
-    if kind == "margin":
-        return [ADVICE_BARE]
-    if kind == "buckling":
-        return [BUCKLING]
-    if kind in ("geometry", "area", "mass"):
-        return ["widen the ranges or relax the geometric requirements (" + group["requirement"] + ")"]
-    return []
+    """What to change for a group of refused trials: the advice of the requirement that refused them, as its check
+    gave it on the trial (a group refused before any requirement row was stored has none)."""
+    return [group["advice"]] if group.get("advice") else []
 
 
 def bound_warnings(study_def: Study, best: Checked) -> list[str]:
@@ -402,15 +395,17 @@ def _value_of(params: dict, p: Param) -> float | None:
 
 
 def _refused_after_solve(complete: list[Any]) -> dict:
-    """How many solved designs that met every geometric constraint were refused for each solved requirement: the
-    evidence that (for instance) the buckling check changed the answer."""
+    """How many solved designs that met every geometric requirement were refused for each requirement of a solved
+    check (by requirement name): the evidence that (for instance) the buckling check changed the answer."""
+    from holeshape.checks import registered
+
+    solved = {c.name for c in registered("solved")}
     out = {"buckling": 0, "margin": 0}
     for t in complete:
-        c = t.constraints or {}
-        geometric_ok = all(v <= 0 for k, v in c.items() if k not in ("buckling", "margin", "net_section"))
-        for k in out:
-            if geometric_ok and c.get(k, -1.0) > 0:
-                out[k] += 1
+        failed = [r for r in t.user_attrs.get("requirements", []) if not r.get("met", True)]
+        if failed and all(r.get("check") in solved for r in failed):
+            for name in dict.fromkeys(r["name"] for r in failed):
+                out[name] = out.get(name, 0) + 1
     return out
 
 

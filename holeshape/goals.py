@@ -20,13 +20,6 @@ if TYPE_CHECKING:
 
 
 
-def structural_limits(study: Study) -> list[str]:
-    """The structural requirements a study sets (each bounds how far a goal may push the design): the margin of
-    safety with an allowable stress, the net section with a net-section allowable, buckling with [stability]."""
-    m = study.material
-    return [name for name, on in (("margin", m.allowable_stress is not None),
-                                  ("net_section", m.net_section_allowable is not None),
-                                  ("buckling", study.stability is not None)) if on]
 
 class Goal(ABC):
     name: ClassVar[str] = ""
@@ -36,6 +29,7 @@ class Goal(ABC):
     grows: ClassVar[bool] = False  # the quantity a person reads grows as the objective falls (area)
     smooth: ClassVar[bool] = False  # the free-form gradient refinement applies (it lowers the peak only)
     retreat_note: ClassVar[str] = ""  # how a design is moved back along the goal
+    bare_goal: ClassVar[str | None] = None  # the goal of the same study without a reinforcement (None: this one)
 
     @abstractmethod
     def objective(self, evaluation: Any, cutout: Cutout, study: Study) -> float:
@@ -49,8 +43,9 @@ class Goal(ABC):
     def shown(self, value: float) -> str:
         """An objective value as a person reads it, with its unit."""
 
-    def requires(self, study: Study) -> str | None:
-        """Why this goal cannot be used by the study (None: it can)."""
+    def requires(self, study: Study, limits: list[str]) -> str | None:
+        """Why this goal cannot be used by the study (None: it can); ``limits``: the registered checks that set a
+        structural requirement on it (:meth:`holeshape.checks.Check.bounds`)."""
         return None
 
     def retreat(self, spec: CutoutSpec, point: dict[Param, float], t: float,
@@ -118,12 +113,12 @@ class LargestOpening(Goal):
     def shown(self, value: float) -> str:
         return f"{-value:.0f} mm^2 removed"
 
-    def requires(self, study: Study) -> str | None:
+    def requires(self, study: Study, limits: list[str]) -> str | None:
         c = study.constraints
         if c.area is not None:
             return (f'search.goal = "largest_opening" cannot be combined with constraints.area = {c.area!r} (a fixed'
                     " area leaves nothing to enlarge); use min_area / max_area")
-        if not structural_limits(study):
+        if not limits:
             return ('search.goal = "largest_opening" needs a structural limit that bounds the opening: give'
                     " material.allowable_stress (the margin of safety must then reach constraints.min_margin,"
                     " default 0), material.net_section_allowable, and/or a [stability] table (the buckling factor"
@@ -153,6 +148,7 @@ class LightestReinforcement(Goal):
     label = "least reinforcement that meets every requirement"
     axis_label = "reinforcement volume (cm^3)"
     retreat_note = "every searched size of the reinforcement enlarged in proportion"
+    bare_goal = "lowest_peak"  # a bare opening that meets every requirement needs no reinforcement at all
     SPAN = 1.0  # t = 1 doubles the searched sizes
 
     def objective(self, evaluation: Any, cutout: Cutout, study: Study) -> float:
@@ -165,11 +161,11 @@ class LightestReinforcement(Goal):
     def shown(self, value: float) -> str:
         return f"{value / 1000.0:.2f} cm^3 of reinforcement"
 
-    def requires(self, study: Study) -> str | None:
+    def requires(self, study: Study, limits: list[str]) -> str | None:
         if study.cutout.reinforcement is None or not any(p.part == "reinforcement" for p in study.cutout.ranges):
             return ('search.goal = "lightest_reinforcement" needs a [reinforcement] table with at least one size'
                     " given as a range ({min = ..., max = ...}) to search")
-        if not structural_limits(study):
+        if not limits:
             return ('search.goal = "lightest_reinforcement" needs a requirement the reinforcement must meet: give'
                     " material.allowable_stress (the margin of safety must then reach constraints.min_margin,"
                     " default 0), material.net_section_allowable, and/or a [stability] table")
@@ -177,10 +173,12 @@ class LightestReinforcement(Goal):
 
     def retreat(self, spec: CutoutSpec, point: dict[Param, float], t: float,
                 ranges: dict[Param, Range]) -> tuple[dict[Param, float], float] | None:
+        from holeshape.geometry.reinforcement import value_unit
+
         k = 1.0 + self.SPAN * t
         out = dict(point)
         for p, r in ranges.items():
-            if p.part == "reinforcement" and p.name != "youngs_modulus":
+            if p.part == "reinforcement" and value_unit(p.name) == "mm":  # every size, not a modulus
                 if point[p] * k > r.max:
                     return None
                 out[p] = point[p] * k

@@ -115,14 +115,19 @@ def run_optimise(study_path: str, out: str, workers: int = 1, storage_url: str |
         if done is not None:
             return done
         baselines = standard_shapes(study_def)
-        if created:  # only the process that created the study seeds it: machines starting together add nothing twice
+        # the seeds (the study's own design, the standard shapes) that are not in the storage yet: all of them in a
+        # new study; on a local journal (the run lock keeps other processes out) also those a run killed while
+        # seeding never added. On a shared database only the process that created the study seeds it, so machines
+        # starting together add nothing twice
+        seeded = {t.user_attrs.get("standard_shape") for t in study.get_trials(deepcopy=False)}
+        if created or storage_url is None:
             objective = Objective(study_def, space, trade_off, cache)
             own = {k: r.value for k, r in space.dimensions.items() if r.value is not None}
-            if len(own) == len(space.dimensions):  # the study's current design first (every range has its value)
+            if len(own) == len(space.dimensions) and "study design" not in seeded:  # every range has its value
                 rec = objective(own).with_attrs(standard_shape="study design")
                 add_record(study, space, rec, trade_off)
             for family, cut, _ in baselines:
-                if cut is None:
+                if cut is None or family in seeded:
                     continue
                 params = family_point(family, cut, space)
                 if params is not None:

@@ -67,6 +67,13 @@ class Param:
     index: int | None = None
 
     @property
+    def key(self) -> str:
+        """The study-file key with its table: ``cutout.a``, ``cutout.pitch``, ``reinforcement.height``,
+        ``cutout[1].a``."""
+        flat = self.flat
+        return flat if flat.startswith(("reinforcement.", "cutout[")) else f"cutout.{flat}"
+
+    @property
     def flat(self) -> str:
         """The study file's spelling: ``a``, ``radii[2]``, ``center[0]``, ``pitch``, ``reinforcement.height``,
         ``cutout[1].a``."""
@@ -223,7 +230,7 @@ class CutoutSpec:
         for p, v in vals.items():
             if isinstance(v, Range):
                 if v.value is None and strict:
-                    raise StudyError(f"{p.flat} is a range (min = {v.min:g}, max = {v.max:g}) without a value;"
+                    raise StudyError(f"{p.key} is a range (min = {v.min:g}, max = {v.max:g}) without a value;"
                                      " give value = ... for the design to check, or run holeshape optimise")
                 vals[p] = v.nominal
             if scale != 1.0 and p.is_length:

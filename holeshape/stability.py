@@ -159,7 +159,9 @@ class StabilityResult:
 
     @property
     def meets_required(self) -> bool:
-        return self.reserve is None or self.reserve >= 1.0
+        """Every load case's factor at least the required one (a case that does not buckle meets it): the rule of
+        the buckling requirement rows, compared in the same terms (factor against factor, not the rounded ratio)."""
+        return all(c.load_factor is None or c.load_factor >= self.required_factor for c in self.cases)
 
     def to_dict(self) -> dict:
         d = asdict(replace(self, fields=None))

@@ -13,6 +13,7 @@ from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
 import holeshape.checks as checks_registry
+import holeshape.checks.outline as outline_rules
 from holeshape.elastic import ELASTIC_KINDS
 from holeshape.errors import GeometryError, StudyError
 from holeshape.goals import GOALS
@@ -222,14 +223,14 @@ def parse_study(doc: dict, source: str = "") -> Study:
                    if name in doc)
     study = Study(title=title, panel=panel, material=material, load_cases=tuple(load_cases), cutout=cutout,
                   measure=measure, constraints=constraints, search=search, source=source, stability=stability,
-                  warnings=tuple(plausibility(panel, material)), tables=tables)
-    why = GOALS[search.goal].requires(study)
+                  warnings=tuple(plausibility(panel, material, tuple(load_cases))), tables=tables)
+    why = GOALS[search.goal].requires(study, [c.name for c in checks_registry.CHECKS if c.bounds(study)])
     if why is not None:
         raise StudyError(why)
     return study
 
 
-def plausibility(panel: Panel, material: Material) -> list[str]:
+def plausibility(panel: Panel, material: Material, load_cases: tuple[LoadCase, ...] = ()) -> list[str]:
     """One-line warnings for values that are valid but look like a unit slip (the study's units are mm, N, MPa)."""
     out = material.elastic.plausibility()
     t = panel.thickness
@@ -237,10 +238,24 @@ def plausibility(panel: Panel, material: Material) -> list[str]:
         out.append(f"panel.thickness = {t:g} mm is outside {PLAUSIBLE_THICKNESS_MM[0]:g} to"
                    f" {PLAUSIBLE_THICKNESS_MM[1]:g} mm, where webs and plates lie: holeshape works in mm; check the"
                    " unit (a thickness in metres or micrometres?)")
+    lo, hi = PLAUSIBLE_STRESS_MPA
+    for key in ("allowable_stress", "net_section_allowable"):
+        v = getattr(material, key)
+        if v is not None and not lo <= v <= hi:
+            out.append(f"material.{key} = {v:g} MPa is outside {lo:g} to {hi:g} MPa, where the strengths of"
+                       " structural materials lie: holeshape works in MPa (N/mm^2); check the unit (a value in Pa"
+                       " or kPa?)")
+    for i, lc in enumerate(load_cases):
+        for key in ("sigma_x", "sigma_y", "tau_xy"):
+            v = getattr(lc, key)
+            if abs(v) > hi:
+                out.append(f"load_case[{i}].{key} = {v:g} MPa ({lc.name}) is beyond {hi:g} MPa, more than any"
+                           " structural material carries: holeshape works in MPa (N/mm^2); check the unit")
     return out
 
 
 PLAUSIBLE_THICKNESS_MM = (0.1, 100.0)  # foil to heavy plate (common practice, no source)
+PLAUSIBLE_STRESS_MPA = (1.0, 5000.0)  # soft polymers to the strongest steel wire (common practice, no source)
 
 
 def _parse_material(m: dict) -> Material:
@@ -539,7 +554,8 @@ def check_cutout_in_panel(cutout: Cutout, panel: Panel) -> None:
     def table(k: int) -> str:
         return f"cutout[{k}]" if separate else "cutout"
 
-    polys = [Polygon(p) for p in cutout.outlines(720)]
+    outlines = cutout.outlines(720)
+    polys = [Polygon(p) for p in outlines]
     for k, (m, a) in enumerate(zip(members, polys)):
         if not a.is_valid:
             raise GeometryError(f"{table(k)} ({m.family}, {m.shape.parameters()}) crosses itself; the outline must be"
@@ -548,19 +564,17 @@ def check_cutout_in_panel(cutout: Cutout, panel: Panel) -> None:
         for i, a in enumerate(polys):
             for j in range(i):
                 gap = a.distance(polys[j])
-                if gap < 1e-3 * math.sqrt(min(a.area, polys[j].area)):
+                if gap < outline_rules.least_web_between([outlines[i], outlines[j]]):
                     raise GeometryError(f"cutout[{i}] overlaps or touches cutout[{j}] (web between them {gap:.3g} mm);"
                                         " separate openings need web between them")
     elif cutout.count > 1:
         assert cutout.row is not None  # one table of several openings: a row
         gap = min(a.distance(b) for a, b in zip(polys, polys[1:]))
-        b = polys[0].bounds
-        size = max(b[2] - b[0], b[3] - b[1])
-        if gap < 1e-3 * size:
+        if gap < outline_rules.least_web_between(outlines):
             raise GeometryError(
                 f"cutout.pitch = {cutout.row.pitch:g} mm makes neighbouring openings of the row overlap or touch"
                 f" (web between them {gap:.3g} mm); the pitch must exceed the opening's size along the row")
-    least = 1e-3 * min(panel.width, panel.height)
+    least = outline_rules.INSIDE * min(panel.width, panel.height)
     for k, m in enumerate(members):
         edge, gap = min(m.edge_gaps(panel.width, panel.height).items(), key=lambda kv: kv[1])
         if gap >= least:
@@ -633,6 +647,20 @@ def dump_toml(doc: dict) -> str:
     return "\n".join(lines) + "\n"
 
 
+def toml_words(message: str) -> str:
+    """The TOML reader's message in the study file's terms: a table or a key written twice named as written."""
+    import re
+
+    m = re.match(r"Cannot declare \((.*)\) twice(.*)", message)
+    if m:
+        name = ".".join(part.strip().strip("'\"") for part in m.group(1).split(",") if part.strip())
+        return f"[{name}] is written twice{m.group(2)}; each table once (a list of tables is [[{name}]])"
+    m = re.match(r"Cannot overwrite a value(.*)", message)
+    if m:
+        return f"a key is given twice in its table{m.group(1)}; give each key once"
+    return message
+
+
 def load_study(path: str | Path) -> Study:
     """Read and validate a study file."""
     try:
@@ -653,5 +681,5 @@ def load_study(path: str | Path) -> Study:
     try:
         doc = tomllib.loads(text)
     except tomllib.TOMLDecodeError as err:
-        raise StudyError(f"study file {str(path)!r} is not valid TOML: {err}") from err
+        raise StudyError(f"study file {str(path)!r} is not valid TOML: {toml_words(str(err))}") from err
     return parse_study(doc, source=str(path))

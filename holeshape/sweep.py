@@ -76,7 +76,7 @@ def run_sweep(study_path: str, out: str, vary_texts: list[str], progress: bool =
     varied = {keys[v.name] for v in varies}
     for p, r in spec.ranges.items():
         if r.value is None and p not in varied:
-            raise StudyError(f"{p.flat} is a range without a value; give value = ... or vary it")
+            raise StudyError(f"{p.key} is a range without a value; give value = ... or vary it")
     out_dir = Path(out)
     out_dir.mkdir(parents=True, exist_ok=True)
     t0 = time.perf_counter()
@@ -126,8 +126,7 @@ def _point(study: Study, spec: CutoutSpec, point: dict[Param, float], coords: di
         row["constraints_met"] = geo.meets_every_requirement
         if not geo.meets_every_requirement:
             row["reason"] = "; ".join(geo.reasons())
-        meshable = all(r.met for r in geo.requirements if r.name in ("outline", "inside_panel"))
-        if meshable:
+        if geo.can_mesh:
             ev = evaluate(study.panel, study.material, study.load_cases, cut, study.measure)
             full = assess(study, cut, ev, accuracy=study.measure.accuracy, cache=cache)
             if not full.meets_every_requirement:

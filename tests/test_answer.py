@@ -5,6 +5,7 @@ move (the lowest peak) gives no recommendation rather than a failing one."""
 from __future__ import annotations
 
 import math
+from dataclasses import replace
 
 import pytest
 
@@ -75,3 +76,107 @@ def test_the_lowest_peak_goal_does_not_move_a_design_and_recommends_nothing_fail
     assert choice.nearest is not None and not choice.nearest.passes
     assert any(r.name == "margin" for r in choice.nearest.assessment.failed)
     assert "nothing the search found meets every requirement" in choice.reason
+
+
+def _storage(study: Study, value: float):
+    """An in-memory search holding one finished trial, at ``value`` of the study's one searched parameter, that met
+    every requirement at the draft level."""
+    import optuna
+    from optuna.trial import TrialState, create_trial
+
+    space = DesignSpace(study.cutout, study.constraints)
+    (name,) = space.distributions()
+    s = optuna.create_study()
+    s.add_trial(create_trial(state=TrialState.COMPLETE, value=0.0, params={name: value},
+                             distributions=space.distributions(), user_attrs={"feasible": True},
+                             constraints={"margin": -0.001}))
+    return s, space
+
+
+RING = """
+title = "ring retreat"
+[panel]
+width = 300.0
+height = 200.0
+thickness = 2.0
+[material]
+youngs_modulus = 71000.0
+poisson_ratio = 0.33
+allowable_stress = ALLOW
+[[load_case]]
+name = "tension"
+sigma_x = 60.0
+[cutout]
+shape = "circle"
+center = [150.0, 100.0]
+radius = 40.0
+[reinforcement]
+kind = "ring"
+width = {min = 5.0, max = 60.0, value = 20.0}
+thickness = 2.0
+[search]
+goal = "lightest_reinforcement"
+trials = 1
+"""
+
+
+def _ring_study(allowable: float) -> Study:
+    import tomllib
+
+    from holeshape.studyfile import parse_study
+
+    return parse_study(tomllib.loads(RING.replace("ALLOW", repr(allowable))))
+
+
+def test_the_least_reinforcement_on_the_margin_is_enlarged_until_it_passes():
+    # a doubler ring 20 mm wide round a 40 mm hole under 60 MPa: the allowable 0.1 % under its fine-level peak. A
+    # wider ring lowers the peak (measured: 20 -> 21 mm, -0.7 %), so the ring grows by well under 5 % to pass
+    probe = _ring_study(1000.0)
+    cut = probe.cutout.build({p: 20.0 for p in probe.cutout.ranges})
+    from holeshape.evaluate import evaluate
+
+    peak = evaluate(probe.panel, probe.material, probe.load_cases, cut, Measure("von_mises", "fine")).peak_stress_mpa
+    study = _ring_study(0.999 * peak)
+    storage, space = _storage(study, 20.0)
+    choice = choose(FinalChecks(study), storage, space, [])
+    best = choice.best
+    assert best is not None and best.passes and best.moved is not None
+    assert best.moved["length_scale"] == 1.0  # the opening keeps its size; the reinforcement moves
+    width = best.cutout.reinforcement.width
+    assert 20.0 < width < 21.0
+    assert best.evaluation.peak_stress_mpa <= 0.999 * peak
+    assert "more reinforcement volume" in best.moved["note"]
+
+
+def test_a_range_that_ends_mid_move_is_searched_back_from_its_end():
+    # the growing steps scale the radius 0.995, 0.985, 0.955, then 0.865: below the range's minimum (0.88 R0). The
+    # move looks between the last failing step and the range's end instead of giving up, and lands inside the range
+    need = _fine_peak(0.925 * R0)  # passes at 0.925 R0 or smaller (the peak falls with the radius at d/W = 0.4)
+    spec = CutoutSpec((OpeningSpec("circle", (("radius", Range(0.88 * R0, 60.0)),), (150.0, 100.0), 0.0),))
+    study = replace(_study(need, "largest_opening"), cutout=spec)
+    storage, space = _storage(study, R0)
+    best = choose(FinalChecks(study), storage, space, []).best
+    assert best is not None and best.passes
+    assert 0.88 * R0 <= best.cutout.shape.radius <= 0.925 * R0 * (1 + 1e-9)
+    assert best.evaluation.peak_stress_mpa <= need
+
+
+def test_a_best_trial_the_final_level_cannot_mesh_is_a_miss_with_its_reason_not_a_crash(monkeypatch):
+    import holeshape.final as final_module
+    from holeshape.errors import MeshError
+
+    def refuse(*args, **kwargs):
+        raise MeshError("gmsh could not mesh the outline (simulated)")
+
+    monkeypatch.setattr(final_module, "evaluate", refuse)
+    study = _study(1000.0, "lowest_peak")
+    storage, space = _storage(study, R0)
+    choice = choose(FinalChecks(study), storage, space, [])
+    assert choice.best is None and choice.unsolved == ((0, "not solved at the fine level: gmsh could not mesh the"
+                                                            " outline (simulated)"),)
+    assert "trial 0: not solved at the fine level" in choice.reason
+    # a standard shape the final level cannot solve is a failing row that says why
+    from holeshape.final import check_standard_shapes
+
+    rows, usable = check_standard_shapes(FinalChecks(study), [("circle", Cutout(Circle(R0), (150.0, 100.0)), "")])
+    assert usable == [] and not rows[0].feasible and "gmsh could not mesh" in rows[0].reason

@@ -96,6 +96,39 @@ def test_a_modulus_given_in_gpa_is_flagged_in_every_output(tmp_path, capsys):
     assert "WARNING       material.youngs_modulus = 70 MPa" in capsys.readouterr().out
 
 
+@pytest.mark.parametrize("old,new,said", [
+    ("allowable_stress = 280.0", "allowable_stress = 280.0e6", "material.allowable_stress = 2.8e+08 MPa is outside"),
+    ("sigma_x = 60.0 ", "sigma_x = 60.0e6 ", "load_case[0].sigma_x = 6e+07 MPa"),
+], ids=["allowable in Pa", "load in Pa"])
+def test_a_stress_given_in_pa_is_flagged(tmp_path, capsys, old, new, said):
+    # 280 MPa typed as Pa: the margin would read +1e6 without a word (common practice, no source: 1 to 5000 MPa)
+    path = _variant(tmp_path, old, new)
+    assert main(["check", str(path), "--json", "--accuracy", "draft"]) == 0
+    assert any(said in w and "check the unit" in w for w in json.loads(capsys.readouterr().out)["warnings"])
+
+
+def test_a_pass_inside_the_error_estimate_is_flagged(tmp_path, capsys):
+    # the allowable 0.01 % above the draft peak: the margin is met by less than the draft's error estimate
+    # (0.1-0.3 % at draft), so the pass rests on the mesh and the output says so
+    assert main(["check", str(STUDY), "--json", "--accuracy", "draft"]) == 0
+    peak = json.loads(capsys.readouterr().out)["peak_stress_mpa"]
+    path = _variant(tmp_path, "allowable_stress = 280.0", f"allowable_stress = {peak * 1.0001!r}")
+    assert main(["check", str(path), "--json", "--accuracy", "draft"]) == 0
+    d = json.loads(capsys.readouterr().out)
+    assert all(r["met"] for r in d["requirements"] if r["kind"] == "margin")  # met, but by less than the estimate
+    assert any("meets its requirement by" in w and "less than its mesh error estimate" in w for w in d["warnings"])
+
+
+def test_a_table_or_key_written_twice_is_named(tmp_path, capsys):
+    p = tmp_path / "twice.toml"
+    p.write_text(BASE.replace("[measure]", "[panel]\nwidth = 1.0\n[measure]"))
+    assert main(["check", str(p)]) == 2
+    assert "[panel] is written twice" in capsys.readouterr().err
+    p.write_text(BASE.replace("width = 300.0", "width = 300.0\nwidth = 310.0"))
+    assert main(["check", str(p)]) == 2
+    assert "a key is given twice in its table" in capsys.readouterr().err
+
+
 def test_self_crossing_spline(tmp_path, capsys):
     p = tmp_path / "spline.toml"
     radii = "[40.0, 40.0, 4.0, 4.0, 40.0, 40.0, 40.0, 40.0]"

@@ -31,6 +31,11 @@ if TYPE_CHECKING:
 RELATIONS = (">=", "<=", "=")
 
 
+# kinds of requirement on the solved design's strength or stability; a new check whose rows a goal's move can address
+# (a fatigue life read as a margin) uses one of them
+STRUCTURAL_KINDS = ("margin", "buckling")
+
+
 @dataclass(frozen=True)
 class Requirement:
     """One requirement of the study checked on one design.
@@ -57,6 +62,13 @@ class Requirement:
     advice: str | None = None
     check: str = ""
     listed: bool = True
+    to_mesh: bool = False  # the mesher needs it met: a design that misses it cannot be solved at all
+
+    @property
+    def structural(self) -> bool:
+        """A requirement on the solved design's strength or stability (a margin, a buckling factor): the kind a
+        goal's move back (a smaller opening, a larger reinforcement) addresses; not the geometry or the accuracy."""
+        return self.kind in STRUCTURAL_KINDS
 
     @property
     def limit_text(self) -> str:
@@ -96,10 +108,23 @@ class Requirement:
                    **kw)
 
 
+def within_estimate(label: str, value: float | None, limit: float, estimate_pct: float | None) -> str | None:
+    """A warning when a structural requirement is met by less than the mesh error estimate of its quantity: the
+    verdict is the mesh's, and a finer mesh could turn it. ``value`` and ``limit`` in the quantity's own terms (a
+    peak against the stress the margin allows, a factor against the required factor), larger is better."""
+    if value is None or estimate_pct is None or limit <= 0 or value < limit:
+        return None
+    headroom = 100.0 * (value / limit - 1.0)
+    if headroom >= estimate_pct:
+        return None
+    return (f"{label} meets its requirement by {headroom:.2g} %, less than its mesh error estimate of"
+            f" {estimate_pct:.2g} %: the pass rests on the mesh; check it at a finer level or keep more margin")
+
+
 def requirement(name: str, label: str, value: float | None, limit: float, relation: str, *, scale: float | None,
                 unit: str = "", kind: str = "geometry", load_case: str | None = None, advice: str | None = None,
-                check: str = "", listed: bool = True, tolerance: float = 0.0, reason: str | None = None
-                ) -> Requirement:
+                check: str = "", listed: bool = True, tolerance: float = 0.0, reason: str | None = None,
+                to_mesh: bool = False) -> Requirement:
     """A requirement row with its verdict and scaled constraint: ``value relation limit`` (``tolerance`` in the
     value's units is granted, for instance the chord sag of a sampled outline); ``scale`` divides the shortfall
     into the constraint the search records (None: not a search constraint). ``value`` None is met (the quantity
@@ -125,7 +150,7 @@ def requirement(name: str, label: str, value: float | None, limit: float, relati
     return Requirement(name=name, label=label, value=None if value is None else float(value), limit=float(limit),
                        relation=relation, met=bool(met), unit=unit, kind=kind, constraint=constraint,
                        load_case=load_case, reason=None if met else reason, advice=advice, check=check,
-                       listed=listed)
+                       listed=listed, to_mesh=to_mesh)
 
 
 @dataclass(frozen=True)
@@ -275,6 +300,12 @@ class Check(ABC):
         return self.applies(design.study)
 
     @classmethod
+    def bounds(cls, study: Study) -> bool:
+        """Whether it sets a structural requirement on this study (a limit that bounds a goal growing the opening
+        or shrinking the reinforcement: an allowable stress, a buckling factor)."""
+        return False
+
+    @classmethod
     def in_search(cls, study: Study) -> bool:
         """Whether a search trial runs it: it sets a requirement the search must respect."""
         return cls.applies(study)
@@ -320,6 +351,11 @@ class Assessment:
     @property
     def failed(self) -> tuple[Requirement, ...]:
         return tuple(r for r in self.requirements if not r.met)
+
+    @property
+    def can_mesh(self) -> bool:
+        """Every requirement the mesher needs is met (the design can be solved, whatever else it misses)."""
+        return all(r.met for r in self.requirements if r.to_mesh)
 
     @property
     def warnings(self) -> tuple[str, ...]:

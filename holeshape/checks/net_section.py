@@ -163,6 +163,10 @@ class NetSectionCheck(Check):
     def in_search(cls, study: Study) -> bool:
         return study.material.net_section_allowable is not None
 
+    @classmethod
+    def bounds(cls, study: Study) -> bool:
+        return study.material.net_section_allowable is not None
+
     def run(self, design: Design) -> NetSectionResult:
         from shapely.geometry import Polygon
         from shapely.ops import unary_union

@@ -17,6 +17,14 @@ if TYPE_CHECKING:
 
 ADVICE = "to meet the geometric requirements: change the design or search within the ranges"
 INSIDE = 1e-3  # the web left to a panel edge must be at least this share of the smaller panel side (to mesh it)
+BETWEEN = 1e-3  # the web between two openings must be at least this share of the smaller one's size (to mesh it)
+
+
+def least_web_between(outlines: list) -> float:
+    """The least web (mm) the mesher needs between two of these openings (polygons of their outlines)."""
+    from shapely.geometry import Polygon
+
+    return BETWEEN * math.sqrt(min(Polygon(p).area for p in outlines))
 
 
 def neighbour_gaps(cutout: Cutout) -> tuple[float, ...]:
@@ -85,11 +93,11 @@ class OutlineCheck(Check):
         between = neighbour_gaps(cutout)
         reqs: list[Requirement] = [
             requirement("outline", "the outline is a simple closed curve", 1.0 if simple else 0.0, 1.0, ">=",
-                        scale=1.0, unit="", advice=ADVICE, check=self.name, listed=False,
+                        scale=1.0, unit="", advice=ADVICE, check=self.name, listed=False, to_mesh=True,
                         reason=None if simple else "the outline crosses itself"),
             requirement("inside_panel", f"web from the openings to the {edge} panel edge", gap, INSIDE * short,
                         ">=", scale=short, unit="mm", advice=ADVICE, check=self.name,
-                        listed=cons.min_ligament is None,
+                        listed=cons.min_ligament is None, to_mesh=True,
                         reason=None if gap > 0 else f"the outline crosses the {edge} panel edge by {-gap:.3g} mm"),
         ]
         if cons.min_ligament is not None:
@@ -100,10 +108,12 @@ class OutlineCheck(Check):
         if between:
             least = min(between)
             pitch = f" (pitch {cutout.row.pitch:.3g} mm)" if cutout.row is not None else ""
-            reqs.append(requirement("row_overlap", "web between neighbouring openings, above none", least, 0.0, ">=",
-                                    scale=size, unit="mm", advice=ADVICE, check=self.name,
-                                    listed=cons.min_ligament is None,
-                                    reason=f"neighbouring openings overlap{pitch}" if least < 0 else None))
+            need = least_web_between(cutout.outlines(720))
+            reqs.append(requirement("row_overlap", "web between neighbouring openings, enough to mesh", least, need,
+                                    ">=", scale=size, unit="mm", advice=ADVICE, check=self.name,
+                                    listed=cons.min_ligament is None, to_mesh=True,
+                                    reason=None if least >= need else f"neighbouring openings overlap or touch{pitch}"
+                                    f" (web {least:.3g} mm)"))
             if cons.min_ligament is not None:
                 reqs.append(requirement("ligament_between", "ligament between neighbouring openings", least,
                                         cons.min_ligament, ">=", scale=cons.min_ligament, unit="mm", advice=ADVICE,

@@ -52,19 +52,19 @@ class ReinforcementGeometryCheck(Check):
             outer = r.interior_outline(cutout)
         except GeometryError as err:  # the kind cannot be made on this outline (a ring folding over itself)
             reqs.append(requirement("reinforcement_outline", "the reinforcement can be made on the outline", 0.0,
-                                    1.0, ">=", scale=1.0, advice=ADVICE_GEOMETRY, check=self.name,
+                                    1.0, ">=", scale=1.0, advice=ADVICE_GEOMETRY, check=self.name, to_mesh=True,
                                     reason=" ".join(str(err).split())))
             return ReinforcementGeometry(requirements=tuple(reqs), cross_section_mm2=None, added_mass_kg=None)
         if outer is not None:
             simple = Polygon(outer.polygon(720)).is_valid
             reqs.append(requirement("reinforcement_outline", "the reinforcement's outer edge is a simple curve",
                                     1.0 if simple else 0.0, 1.0, ">=", scale=1.0, advice=ADVICE_GEOMETRY,
-                                    check=self.name, listed=False,
+                                    check=self.name, listed=False, to_mesh=True,
                                     reason=f"the {r.kind}'s outer edge crosses itself"))
             gap = min(outer.edge_gaps(panel.width, panel.height).values())
             reqs.append(requirement("reinforcement_inside_panel", f"web beyond the {r.kind}'s outer edge", gap,
                                     1e-3 * short, ">=", scale=short, unit="mm", advice=ADVICE_GEOMETRY,
-                                    check=self.name, listed=False,
+                                    check=self.name, listed=False, to_mesh=True,
                                     reason=f"the {r.kind}'s outer edge comes within {gap:.3g} mm of a panel edge"))
         sizes = r.sizes(cutout, panel.thickness)
         mass = sizes.mass_kg(study.material.density)
@@ -102,10 +102,9 @@ class ReinforcementResult(CheckResult):
         return d
 
     def section(self) -> Section:
-        from holeshape.geometry.reinforcement import REINFORCEMENTS
+        from holeshape.geometry.reinforcement import REINFORCEMENTS, values_text
 
-        sizes = ", ".join(f"{k.replace('_', ' ')} {v:g} MPa" if k == "youngs_modulus" else f"{k} {v:.1f} mm"
-                          for k, v in self.sizes.items())
+        sizes = values_text(self.sizes)
         mass = "" if self.added_mass_kg is None else f"; added mass {self.added_mass_kg:.4f} kg"
         return Section("Reinforcement", (
             REINFORCEMENTS[self.kind].idealisation,

@@ -6,7 +6,7 @@ from __future__ import annotations
 from dataclasses import dataclass, field, replace
 from typing import TYPE_CHECKING
 
-from holeshape.checks.base import Check, CheckResult, Design, Section, Table, requirement
+from holeshape.checks.base import Check, CheckResult, Design, Section, Table, requirement, within_estimate
 
 if TYPE_CHECKING:
     from holeshape.stability import StabilityFields, StabilityResult
@@ -95,6 +95,10 @@ class BucklingCheck(Check):
     def applies(cls, study: Study) -> bool:
         return study.stability is not None
 
+    @classmethod
+    def bounds(cls, study: Study) -> bool:
+        return study.stability is not None
+
     def run(self, design: Design) -> BucklingResult:
         from holeshape.stability import buckling
 
@@ -112,7 +116,10 @@ class BucklingCheck(Check):
             reqs.append(requirement("buckling_accuracy", "mesh error estimate of the buckling factor",
                                     st.error_estimate_pct, st.accuracy_target_pct, "<=", scale=None, unit="%",
                                     kind="accuracy", advice=ADVICE_ACCURACY, check=self.name))
-        return BucklingResult(requirements=tuple(reqs), warnings=st.warnings, stability=st, fields=st.fields)
+        close = [within_estimate(f"the buckling load factor of {c.name}", c.load_factor, need, c.error_estimate_pct)
+                 for c in st.cases]
+        return BucklingResult(requirements=tuple(reqs), warnings=tuple(st.warnings) + tuple(w for w in close if w),
+                              stability=st, fields=st.fields)
 
     @classmethod
     def absent(cls, study: Study) -> Section:

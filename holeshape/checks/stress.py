@@ -4,11 +4,15 @@ resolves the peak (the error estimate against the accuracy level's target). MPa,
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import TYPE_CHECKING
 
-from holeshape.checks.base import Check, CheckResult, Design, Section, requirement
+from holeshape.checks.base import Check, CheckResult, Design, Section, requirement, within_estimate
 
-ADVICE_BARE = ("to lower the peak: search the shape (holeshape optimise), use larger radii, a thicker web, or"
-               " reinforce the opening")
+if TYPE_CHECKING:
+    from holeshape.study import Study
+
+ADVICE_BARE = ("to lower the peak: another shape or larger radii (wider ranges for the search), a thicker web, or a"
+               " reinforcement round the opening")
 ADVICE_REINFORCED = ("to lower the peak: a larger reinforcement (search its sizes: ranges in [reinforcement]), larger"
                      " radii or a thicker web; where the reinforcement's own stress governs, more cross-section")
 ADVICE_ACCURACY = "to meet the accuracy target: use a finer accuracy level (--accuracy fine)"
@@ -42,6 +46,10 @@ class StressCheck(Check):
     name = "stress"
     title = "Peak stress"
 
+    @classmethod
+    def bounds(cls, study: Study) -> bool:
+        return study.material.allowable_stress is not None
+
     def run(self, design: Design) -> StressResult:
         study, ev = design.study, design.evaluation
         allow = study.material.allowable_stress
@@ -59,6 +67,10 @@ class StressCheck(Check):
                                     ev.accuracy_target_pct, "<=", scale=None, unit="%", kind="accuracy",
                                     advice=ADVICE_ACCURACY, check=self.name))
         known = [m for m in margins.values() if m is not None]
-        return StressResult(requirements=tuple(reqs), allowable_mpa=allow, margins=margins,
+        close = [] if not allow else [within_estimate(f"the margin of safety of {c.name}", allow / (1.0 + limit),
+                                                      c.peak_stress_mpa, ev.error_estimate_pct)
+                                      for c in ev.load_cases]
+        return StressResult(requirements=tuple(reqs), warnings=tuple(w for w in close if w), allowable_mpa=allow,
+                            margins=margins,
                             margin_of_safety=margins[ev.governing_load_case],
                             lowest_margin=min(known) if known else None)

@@ -68,6 +68,24 @@ class ReinforcedSizes:
         return None if density is None else self.volume_mm3 * 1e-9 * density
 
 
+MODULUS_KEYS = ("youngs_modulus",)  # the values of [reinforcement] that are a modulus (MPa), not a size (mm)
+
+
+def value_unit(name: str) -> str:
+    """The unit of one value of [reinforcement]: MPa for a modulus, mm for every size."""
+    return "MPa" if name in MODULUS_KEYS else "mm"
+
+
+def value_text(name: str, value: float, digits: int = 1) -> str:
+    """One value of [reinforcement] with its unit, for people (sizes to ``digits`` decimals, a modulus as given)."""
+    return f"{value:g} MPa" if value_unit(name) == "MPa" else f"{value:.{digits}f} mm"
+
+
+def values_text(values: dict[str, float], digits: int = 1) -> str:
+    """The values of a reinforcement, named, each with its unit: "height 12.0 mm, thickness 1.6 mm"."""
+    return ", ".join(f"{k.replace('_', ' ')} {value_text(k, v, digits)}" for k, v in values.items())
+
+
 @dataclass(frozen=True)
 class Reinforcement:
     """Base of the reinforcement kinds. ``thickness`` (mm; None: the web's where the kind allows it) and

@@ -48,7 +48,10 @@ def describe_params(params: dict) -> str:
     """Shape parameters for people: lengths to 0.1 mm, angles to 0.1 degree, the exponent to 3 figures."""
     def one(k: str, v: Any) -> str:
         if k.startswith("reinforcement."):
-            return f"{v:.1f} mm" if isinstance(v, float) and not k.endswith("youngs_modulus") else f"{v}"
+            from holeshape.geometry.reinforcement import value_text
+
+            return value_text(k.split(".")[-1], v) if isinstance(v, (int, float)) and not isinstance(v, bool) \
+                else f"{v}"
         if isinstance(v, list):
             return "(" + ", ".join(one(k, x) for x in v) + ")"
         if not isinstance(v, (int, float)) or isinstance(v, bool):

@@ -157,11 +157,11 @@ def plot_boundary_stress(path: Path, ev: Evaluation, fields: EvaluationFields, a
         rb = fields.interior_boundary
         second = (rb.s, measure_values(rb, ev.stress_measure), fields.interior_name,
                   f"arc length round the reinforcement's outer edge, counter-clockwise from ({rb.xy[0, 0]:.1f},"
-                  f" {rb.xy[1, 0]:.1f}) mm (mm)",
+                  f" {rb.xy[1, 0]:.1f}) (mm)",
                   f"{STRESS_LABELS[ev.stress_measure]} (MPa)")
     elif fields.member_stress is not None:
         second = (bs.s, fields.member_stress, fields.member_name,
-                  f"arc length round the cutout, counter-clockwise from ({bs.xy[0, 0]:.1f}, {bs.xy[1, 0]:.1f}) mm (mm)",
+                  f"arc length round the cutout, counter-clockwise from ({bs.xy[0, 0]:.1f}, {bs.xy[1, 0]:.1f}) (mm)",
                   f"axial stress in the {fields.member_name} (MPa)")
     fig, axes = plt.subplots(2 if second else 1, 1, figsize=(9, 8.4 if second else 4.8), squeeze=False)
     styles = ["-", "--", "-.", ":"]
@@ -172,7 +172,7 @@ def plot_boundary_stress(path: Path, ev: Evaluation, fields: EvaluationFields, a
         at = next((loc.peak_stress_mpa for loc in r.locations if loc.location == here), r.peak_stress_mpa)
         ax.plot(bs.s, vals[:, j], styles[j % 4], lw=1.6, label=f"{r.name} (peak here {at:.1f} MPa)")
     which = f" of {gov.peak_location} (governing)" if gov.peak_location.startswith("opening") else ""
-    origin = f"from ({bs.xy[0, 0]:.1f}, {bs.xy[1, 0]:.1f}) mm"
+    origin = f"from ({bs.xy[0, 0]:.1f}, {bs.xy[1, 0]:.1f})"
     panels = [(ax, f"arc length round the cutout, counter-clockwise {origin} (mm)",
                f"{STRESS_LABELS[ev.stress_measure]} (MPa)",
                f"{title}: stress along the cutout edge{which}" + (" (in the web)" if second else ""), bs.s)]
@@ -192,8 +192,9 @@ def plot_boundary_stress(path: Path, ev: Evaluation, fields: EvaluationFields, a
         a.set_ylabel(ylabel)
         a.set_xlim(s[0], s[-1])
         a.grid(True, alpha=0.3)
-        a.legend(fontsize=8)
-        a.set_title(head)
+        a.margins(y=0.25)  # head room above the curves, where the legend goes
+        a.legend(fontsize=8, loc="lower center", bbox_to_anchor=(0.5, 1.0 - 0.01), ncol=2, frameon=False)
+        a.set_title(head, pad=10 + 12 * ((len(ev.load_cases) + (1 if allowable else 0) + 1) // 2))
     _warn(fig, ev)
     fig.tight_layout(rect=(0, 0.02, 1, 0.97))
     return save(fig, path)
@@ -234,7 +235,16 @@ def plot_buckling_mode(path: Path, stability: StabilityResult, fields: Stability
     modes = fields.modes[j] if fields is not None else []
     n = max(1, len(modes))
     aspect = panel.height / panel.width
-    fig, axes = plt.subplots(1, n, figsize=(min(16, 6.5 * n), 6.5 * aspect + 1.6), squeeze=False)
+    import textwrap
+
+    support = stability.edge_support.replace("_", " ")
+    case = gov.name if gov is not None else names[0]
+    head = (f"buckling mode, {case} ({support} edges, in-plane '{stability.in_plane_edges}' edges, cutout edge"
+            f" {stability.cutout_edge.split(' (')[0]})")
+    fig_w = min(16.0, 6.5 * n)
+    lines = [title, *textwrap.wrap(head, max(40, int(11 * fig_w)))]  # ~11 characters of 10-point text per inch
+    fig_h = 5.0 * aspect * min(1.0, fig_w / (6.5 * n)) + 1.4 + 0.18 * len(lines)
+    fig, axes = plt.subplots(1, n, figsize=(fig_w, fig_h), squeeze=False)
     for k, ax in enumerate(axes[0]):
         ax.plot([0, panel.width, panel.width, 0, 0], [0, 0, panel.height, panel.height, 0], color="black", lw=1.2)
         for xy in outline_list(cutout_xy):
@@ -258,11 +268,9 @@ def plot_buckling_mode(path: Path, stability: StabilityResult, fields: Stability
         ax.set_ylim(-0.02 * panel.height, 1.02 * panel.height)
         ax.set_xlabel("x (mm)")
         ax.set_ylabel("y (mm)")
-    support = stability.edge_support.replace("_", " ")
-    case = gov.name if gov is not None else names[0]
-    fig.suptitle(f"{title}\nbuckling mode, {case} ({support} edges, in-plane '{stability.in_plane_edges}' edges,"
-                 f" cutout edge {stability.cutout_edge.split(' (')[0]})", fontsize=10)
+    fig.suptitle("\n".join(lines), fontsize=10)
     if stability.warnings:
         fig.text(0.01, 0.985, "WARNING: " + stability.warnings[0], fontsize=7.5, color="red", ha="left", va="top")
-    fig.tight_layout(rect=(0, 0.03, 1, 0.95))
+    top = 1.0 - (0.18 * len(lines) + 0.1) / fig_h  # room for the title's lines (inches)
+    fig.tight_layout(rect=(0, 0.03, 1, top))
     return save(fig, path)

@@ -9,11 +9,15 @@ import html
 import json
 from collections.abc import Sequence
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 from holeshape.goals import GOALS
 from holeshape.output.numbers import limit_value, requirement_value, sig, stored_value
 from holeshape.output.page import Page, describe_constraints, describe_params, describe_value, render_table
 from holeshape.record import DesignCheck, RunInputs, RunRecord, SweepRecord
+
+if TYPE_CHECKING:
+    from holeshape.elastic import Elastic
 
 SECTIONS = ("The job", "Study inputs", "Recommendation", "Comparison", "Stress", "Stability", "Evidence of accuracy",
             "Validation appendix", "Search history", "Assumptions and cautions")
@@ -101,7 +105,8 @@ def _summary_box(rec: RunRecord, md: bool) -> str:
     else:
         reqs = b.requirements
         failed = [r for r in reqs if not r.met]
-        head = (f"FAILS {len(failed)} of {len(reqs)} requirements: " + "; ".join(r.reason or r.label for r in failed)
+        head = (f"FAILS {len(failed)} of {len(reqs)} requirements (some implied by others and listed only when they"
+                f" fail): " + "; ".join(r.reason or r.label for r in failed)
                 if failed else f"Meets every requirement of the study ({len(reqs)} checked at the {b.accuracy}"
                 " level).")
         rows = [{"name": c.name, "peak_stress_mpa": c.peak_stress_mpa, "margin_of_safety": c.margin_of_safety,
@@ -134,8 +139,9 @@ def _summary_box(rec: RunRecord, md: bool) -> str:
 
 
 def _sizes(sizes: dict) -> str:
-    return ", ".join(f"{k.replace('_', ' ')} {v:g} MPa" if k == "youngs_modulus" else f"{k} {v:.1f} mm"
-                     for k, v in sizes.items())
+    from holeshape.geometry.reinforcement import values_text
+
+    return values_text(sizes)
 
 
 def load_case_rows(cases: Sequence[dict]) -> tuple[list[dict], list[tuple[str, str]]]:
@@ -159,15 +165,26 @@ def load_case_rows(cases: Sequence[dict]) -> tuple[list[dict], list[tuple[str, s
     return rows, cols
 
 
+def elastic_kind(material: dict) -> type[Elastic]:
+    """The material kind of a stored material (runs written before kinds existed are isotropic)."""
+    from holeshape.elastic import ELASTIC_KINDS
+
+    return ELASTIC_KINDS[material.get("kind", "isotropic")]
+
+
+def elastic_columns(material: dict) -> list[tuple[str, str]]:
+    """The material kind's own values as table columns (key, heading with its unit)."""
+    return list(elastic_kind(material).headings.items())
+
+
 def section_inputs(page: Page, inputs: RunInputs, rec: RunRecord | None = None) -> None:
     """Everything the run was given: panel, material, loads, requirements, the searched parameters and how."""
     page.h2(SECTIONS[1])
     page.table([inputs.panel], [("width", "width (mm)"), ("height", "height (mm)"), ("thickness", "thickness (mm)"),
                                 ("edges", "in-plane edge condition")])
     m = inputs.material
-    page.table([m], [("name", "material"), ("youngs_modulus", "E (MPa)"), ("poisson_ratio", "Poisson's ratio"),
-                     ("allowable_stress", "allowable (MPa)"), ("net_section_allowable", "net-section allowable (MPa)"),
-                     ("density", "density (kg/m^3)")])
+    page.table([m], [("name", "material"), *elastic_columns(m), ("allowable_stress", "allowable (MPa)"),
+                     ("net_section_allowable", "net-section allowable (MPa)"), ("density", "density (kg/m^3)")])
     rows, cols = load_case_rows(inputs.load_cases)
     page.table(rows, cols)
     if any(r.get("shear_force") is not None for r in rows):
@@ -429,7 +446,9 @@ def section_cautions(page: Page, inputs: RunInputs, cautions_text: str) -> None:
     edges = inputs.panel["edges"]
     meaning = ("remote stress applied as edge tractions: a large panel free to redistribute load" if edges == "traction"
                else "remote strain imposed on the edges: a web bounded by stiff members")
-    page.para(f"Isotropic material, load cases as remote stresses or beam forces; in-plane edge condition '{edges}' "
+    model = elastic_kind(inputs.material).description
+    page.para(f"{model[0].upper()}{model[1:]}, load cases as remote stresses or beam forces; in-plane edge condition"
+              f" '{edges}' "
               f"({meaning}). The reported peak stress is the largest over every place it is looked for: with a"
               " reinforcement that includes the flange's or the doubler's own stress, which may govern.")
     page.para(cautions_text, "caution")
@@ -456,9 +475,8 @@ def build_sweep_report(run: Path, fmt: str = "html") -> Path:
     page.h2(SWEEP_SECTIONS[1])
     page.table([inputs.panel], [("width", "width (mm)"), ("height", "height (mm)"), ("thickness", "thickness (mm)"),
                                 ("edges", "edge condition")])
-    page.table([inputs.material], [("name", "material"), ("youngs_modulus", "E (MPa)"),
-                                   ("poisson_ratio", "Poisson's ratio"), ("allowable_stress", "allowable (MPa)"),
-                                   ("density", "density (kg/m^3)")])
+    page.table([inputs.material], [("name", "material"), *elastic_columns(inputs.material),
+                                   ("allowable_stress", "allowable (MPa)"), ("density", "density (kg/m^3)")])
     rows, cols = load_case_rows(inputs.load_cases)
     page.table(rows, cols)
     cons = describe_constraints(inputs.constraints)

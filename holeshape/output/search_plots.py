@@ -25,6 +25,7 @@ def plot_history(path: Path, trials: list[Any], title: str, goal: str = "lowest_
     from optuna.trial import TrialState
 
     from holeshape.goals import GOALS
+    from holeshape.search.runner import is_feasible
 
     g = GOALS.get(goal, GOALS["lowest_peak"])
     plt = pyplot()
@@ -32,8 +33,7 @@ def plot_history(path: Path, trials: list[Any], title: str, goal: str = "lowest_
     probes = [(t.number, g.readable(t.values[0])) for t in trials if t.state == TrialState.COMPLETE
               and t.user_attrs.get("probe") and t.values[0] < 1e8]
     trials = [t for t in trials if not t.user_attrs.get("probe")]
-    feas = [(t.number, g.readable(t.values[0])) for t in trials if t.state == TrialState.COMPLETE
-            and t.user_attrs.get("feasible") and all(v <= 0 for v in t.constraints.values())]
+    feas = [(t.number, g.readable(t.values[0])) for t in trials if is_feasible(t)]
     infeas = [t.number for t in trials if t.state == TrialState.COMPLETE and not t.user_attrs.get("feasible", True)]
     if probes:
         n, v = np.array(probes).T
@@ -73,15 +73,14 @@ def plot_radii_history(path: Path, trials: list[Any], title: str) -> Path | None
     """The outline of every new best design of a free-form (spline) search, overlaid about its centre and coloured
     by trial (late = dark), the final one in black: how the shape evolved, in one panel. None when the study has
     no spline designs."""
-    from optuna.trial import TrialState
 
     from holeshape.geometry.spline import Spline
+    from holeshape.search.runner import is_feasible
 
     best, steps = np.inf, []
     for t in sorted(trials, key=lambda t: t.number):
         d = t.user_attrs.get("dims") or {}
-        if t.state != TrialState.COMPLETE or t.user_attrs.get("probe") or "radii" not in d or \
-                not t.user_attrs.get("feasible") or any(v > 0 for v in t.constraints.values()):
+        if "radii" not in d or not is_feasible(t):
             continue
         if t.values[0] < best:
             best = t.values[0]
@@ -90,7 +89,7 @@ def plot_radii_history(path: Path, trials: list[Any], title: str) -> Path | None
     if not steps:
         return None
     plt = pyplot()
-    fig, ax = plt.subplots(figsize=(6.4, 6.0))
+    fig, ax = plt.subplots(figsize=(6.4, 6.8))
     th = np.linspace(0.0, 2 * np.pi, 721)
     cmap = plt.get_cmap("viridis_r")
     last = steps[-1][0] or 1
@@ -104,7 +103,8 @@ def plot_radii_history(path: Path, trials: list[Any], title: str) -> Path | None
     ax.grid(True, alpha=0.3)
     ax.set_xlabel("x from the centre (mm)")
     ax.set_ylabel("y from the centre (mm)")
-    ax.legend(fontsize=8, loc="upper right", title="first and last best (objective)")
+    ax.legend(fontsize=8, loc="upper center", bbox_to_anchor=(0.5, -0.12), ncol=2, frameon=False,
+              title="first and last best (objective)")  # below the outlines, clear of them
     ax.set_title(f"{title}: outline of each new best design ({len(steps)})", fontsize=10)
     fig.tight_layout()
     return save(fig, path)
@@ -116,7 +116,7 @@ def plot_shapes(path: Path, best: Cutout, baselines: list[tuple[str, Cutout]], p
     """The recommended outline over the standard shapes (and, when a standard shape is recommended, over the
     searched family's best: ``searched`` its family, outline and peak)."""
     plt = pyplot()
-    fig, ax = plt.subplots(figsize=(8, 8 * panel.height / panel.width + 0.8))
+    fig, ax = plt.subplots(figsize=(8, 8 * panel.height / panel.width + 1.8))  # the legend below the panel
     ax.plot([0, panel.width, panel.width, 0, 0], [0, 0, panel.height, panel.height, 0], color="black", lw=1.2)
     styles = ["--", "-.", ":"]
     for i, (family, cut) in enumerate(baselines):
@@ -156,19 +156,19 @@ def _finish_plan(fig: Any, ax: Any, path: Path, title: str) -> Path:
     ax.set_aspect("equal")
     ax.set_xlabel("x (mm)")
     ax.set_ylabel("y (mm)")
-    ax.legend(fontsize=8, loc="upper right")
+    ax.legend(fontsize=8, loc="upper center", bbox_to_anchor=(0.5, -0.1), ncol=2, frameon=False)  # clear of the panel
     ax.set_title(title)
     fig.tight_layout(rect=(0, 0.02, 1, 1))
     return save(fig, path)
 
 
 def plot_front(path: Path, trials: list[Any], front: list[dict], title: str) -> Path:
-    from optuna.trial import TrialState
+
+    from holeshape.search.runner import is_feasible
 
     plt = pyplot()
     fig, ax = plt.subplots(figsize=(8, 4.8))
-    pts = [(t.values[1], t.values[0]) for t in trials if t.state == TrialState.COMPLETE
-           and t.user_attrs.get("feasible") and all(v <= 0 for v in t.constraints.values())]
+    pts = [(t.values[1], t.values[0]) for t in trials if is_feasible(t)]
     if pts:
         a, s = np.array(pts).T
         ax.plot(a, s, "o", ms=3, color="0.6", label="feasible designs")
@@ -194,7 +194,7 @@ def plot_family_overlay(path: Path, study: Study, run_dir: Path, ranked: list[di
     """Every family's best outline in one figure, from their written profiles (mm)."""
     plt = pyplot()
     panel = study.panel
-    fig, ax = plt.subplots(figsize=(8, 8 * panel.height / panel.width + 0.8))
+    fig, ax = plt.subplots(figsize=(8, 8 * panel.height / panel.width + 1.8))  # the legend below the panel
     ax.plot([0, panel.width, panel.width, 0, 0], [0, 0, panel.height, panel.height, 0], color="black", lw=1.2)
     styles = ["-", "--", "-.", ":", (0, (5, 1)), (0, (1, 1))]
     for i, r in enumerate(ranked):

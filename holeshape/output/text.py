@@ -61,12 +61,13 @@ def requirement_lines(reqs: list[Requirement] | tuple[Requirement, ...]) -> list
         return []
     shown = [r for r in reqs if r.listed or not r.met]
     failed = [r for r in reqs if not r.met]
+    hidden = len(reqs) - len(shown)
+    implied = f" ({hidden} implied by the rows shown)" if hidden else ""
     head = "MEETS every requirement of the study" if not failed else \
-        f"FAILS {len(failed)} of {len(reqs)} requirements"
+        f"FAILS {len(failed)} of {len(reqs)} requirements{implied}"
     lines = ["", f"  verdict       {head}"]
     for r in shown:
-        label = r.label if r.unit in ("", "%") or r.kind in ("margin", "buckling") else f"{r.label} ({r.unit})"
-        lines.append(f"    {'ok  ' if r.met else 'FAIL'} {label[:58]:<58} {requirement_value(r):>16}"
+        lines.append(f"    {'ok  ' if r.met else 'FAIL'} {r.label[:58]:<58} {requirement_value(r):>16}"
                      f"  required {limit_value(r)}")
     for a in verdict(reqs).advice:
         lines += wrap("to change", a)
@@ -155,7 +156,9 @@ def optimise_summary(rec: RunRecord) -> str:
         lines += wrap("moved", b.moved["note"])
     r = b.reinforcement
     if r is not None:
-        sizes = ", ".join(f"{k} {v:.2f} mm" for k, v in r["sizes"].items() if k != "youngs_modulus")
+        from holeshape.geometry.reinforcement import value_unit, values_text
+
+        sizes = values_text({k: v for k, v in r["sizes"].items() if value_unit(k) == "mm"}, digits=2)
         mass = "" if r["added_mass_kg"] is None else f", adds {r['added_mass_kg']:.4f} kg"
         lines += wrap("reinforcement", f"{r['kind']}: {sizes}; cross-section {r['cross_section_mm2']:.1f} mm^2{mass};"
                       " peaks " + ", ".join(f"{k} {v:.1f} MPa" for k, v in r["peak_stress_mpa"].items()))
@@ -180,7 +183,9 @@ def optimise_summary(rec: RunRecord) -> str:
     refused = t.refused_after_solve
     for k, what in (("buckling", "buckled below the required factor"), ("margin", "missed the margin")):
         if refused.get(k):
-            lines.append(f"  refused       {refused[k]} solved designs that met every geometric requirement {what}")
+            n = refused[k]
+            lines.append(f"  refused       {n} solved design{'s' if n != 1 else ''} that met every geometric"
+                         f" requirement {what}")
     for s in b.sections:
         lines += section_lines(s)
     lines += requirement_lines(list(b.requirements))
@@ -252,7 +257,9 @@ def no_design_summary(rec: RunRecord) -> str:
         for m in rec.nearest_misses[:6]:
             who = "a standard shape" if m.get("trial") is None else f"trial {m['trial']}"
             dims = ", ".join(f"{k} = {_num(v)}" for k, v in m["params"].items() if not isinstance(v, str))
-            lines += wrap("", f"{who} ({m.get('level', 'draft')} level): {dims}")
+            unsolved = "" if m.get("peak_stress_mpa") is not None else \
+                "; refused on its geometry before any mesh, so its stress was not evaluated"
+            lines += wrap("", f"{who} ({m.get('level', 'draft')} level{unsolved}): {dims}")
             for r in m["missed"]:
                 got = "-" if r.get("value") is None else stored_value(r, r["value"])
                 need = "" if r.get("limit") is None else \

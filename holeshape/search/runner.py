@@ -242,9 +242,9 @@ OVER_BUDGET = "interrupted: the trial budget was reached by another worker first
 def _penalised(rec: TrialRecord, reference: float) -> float:
     """The value the simplex sees: the objective of a feasible design; otherwise worse than ``reference`` (the
     best so far, which may be negative: minus an area) in proportion to the summed violation."""
-    viol = sum(max(0.0, v) for v in rec.constraints.values())
-    if rec.complete and viol <= 0.0:
+    if rec.acceptable:  # the one rule for a record (is_feasible for a stored trial): every search requirement met
         return rec.sampler_value
+    viol = sum(max(0.0, v) for v in rec.constraints.values() if v == v)  # a NaN row counts as a miss of 1
     return reference + abs(reference) * (viol or 1.0) + 1.0
 
 

@@ -45,7 +45,8 @@ def trial_reasons(study: Any) -> list[dict]:
             key = (r["name"], r.get("load_case"), r["label"])
             g = groups.setdefault(key, {"requirement": r["label"], "name": r["name"], "load_case": r.get("load_case"),
                                         "limit": r["limit"], "relation": r["relation"], "unit": r.get("unit", ""),
-                                        "kind": r.get("kind", ""), "trials": 0, "values": []})
+                                        "kind": r.get("kind", ""), "trials": 0, "values": []}
+                                   | ({"advice": r["advice"]} if r.get("advice") else {}))
             g["trials"] += 1
             if r.get("value") is not None:
                 g["values"].append(float(r["value"]))
@@ -87,10 +88,12 @@ def bound_advice(misses: list[dict], space: DesignSpace) -> list[str]:
 
 
 def nearest_misses(study: Any, n: int = NEAREST) -> list[dict]:
-    """The ``n`` designs nearest to meeting every requirement (least summed scaled violation; solved ones first at
-    equal violation), each with its parameters and every requirement it misses, value against limit."""
+    """The ``n`` designs nearest to meeting every requirement, each with its parameters and every requirement it
+    misses, value against limit: the solved ones first (a design refused on its geometry before any mesh says
+    nothing of its stress, so it cannot show which structural requirement stands in the way), each group by least
+    summed scaled violation."""
     cands = [t for t in _searched(study) if t.state.name == "COMPLETE" and not is_feasible(t)]
-    cands.sort(key=lambda t: (violation(t), 0 if t.user_attrs.get("peak_stress_mpa") is not None else 1))
+    cands.sort(key=lambda t: (0 if t.user_attrs.get("peak_stress_mpa") is not None else 1, violation(t)))
     out = []
     for t in cands[:n]:
         missed = [r for r in t.user_attrs.get("requirements", []) if not r.get("met", True)]

@@ -17,9 +17,11 @@ STATES = ("complete", "infeasible", "failed")
 
 
 def compact(requirements: Iterable[Requirement]) -> list[dict[str, Any]]:
-    """The requirement rows as the journal keeps them (enough to name the nearest misses of a run later)."""
+    """The requirement rows as the journal keeps them (enough to name the nearest misses of a run later, the check
+    that set each, and what to change for a row that is not met)."""
     return [{"name": r.name, "label": r.label, "value": r.value, "limit": r.limit, "relation": r.relation,
-             "met": r.met, "unit": r.unit, "kind": r.kind, "load_case": r.load_case} for r in requirements]
+             "met": r.met, "unit": r.unit, "kind": r.kind, "load_case": r.load_case, "check": r.check}
+            | ({} if r.met or not r.advice else {"advice": r.advice}) for r in requirements]
 
 
 @dataclass(frozen=True)
