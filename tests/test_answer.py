@@ -4,7 +4,6 @@ move (the lowest peak) gives no recommendation rather than a failing one."""
 
 from __future__ import annotations
 
-import math
 from dataclasses import replace
 
 import pytest
@@ -28,19 +27,6 @@ def _study(allowable: float, goal: str) -> Study:
                  constraints=Constraints(min_margin=0.0), search=SearchSettings(trials=1, goal=goal))
 
 
-def _storage_with_one_trial(study: Study, radius: float):
-    """An in-memory search holding one finished trial that met every requirement at the draft level."""
-    import optuna
-    from optuna.trial import TrialState, create_trial
-
-    space = DesignSpace(study.cutout, study.constraints)
-    s = optuna.create_study()
-    s.add_trial(create_trial(state=TrialState.COMPLETE, value=-math.pi * radius ** 2, params={"radius": radius},
-                             distributions=space.distributions(), user_attrs={"feasible": True},
-                             constraints={"margin": -0.001}))
-    return s, space
-
-
 def _fine_peak(radius: float) -> float:
     from holeshape.evaluate import evaluate
 
@@ -48,12 +34,27 @@ def _fine_peak(radius: float) -> float:
                     Measure("von_mises", "fine")).peak_stress_mpa
 
 
+def _storage(study: Study, value: float):
+    """An in-memory search holding one finished trial, at ``value`` of the study's one searched parameter, that met
+    every requirement at the draft level."""
+    import optuna
+    from optuna.trial import TrialState, create_trial
+
+    space = DesignSpace(study.cutout, study.constraints)
+    (name,) = space.distributions()
+    s = optuna.create_study()
+    s.add_trial(create_trial(state=TrialState.COMPLETE, value=0.0, params={name: value},
+                             distributions=space.distributions(), user_attrs={"feasible": True},
+                             constraints={"margin": -0.001}))
+    return s, space
+
+
 def test_a_design_on_the_margin_is_moved_back_until_it_passes():
     # the allowable is set 0.1 % under the fine-level peak of the trial's design: it misses the margin by 0.001 there
     # (as a draft-level optimum on the margin does); the largest-opening goal shrinks it until it passes
     allowable = 0.999 * _fine_peak(R0)
     study = _study(allowable, "largest_opening")
-    storage, space = _storage_with_one_trial(study, R0)
+    storage, space = _storage(study, R0)
     choice = choose(FinalChecks(study), storage, space, [])
     best = choice.best
     assert best is not None and best.passes and best.trial == 0
@@ -70,27 +71,12 @@ def test_a_design_on_the_margin_is_moved_back_until_it_passes():
 def test_the_lowest_peak_goal_does_not_move_a_design_and_recommends_nothing_failing():
     allowable = 0.999 * _fine_peak(R0)
     study = _study(allowable, "lowest_peak")
-    storage, space = _storage_with_one_trial(study, R0)
+    storage, space = _storage(study, R0)
     choice = choose(FinalChecks(study), storage, space, [])
     assert choice.best is None  # nothing passes: no recommendation, not the failing design
     assert choice.nearest is not None and not choice.nearest.passes
     assert any(r.name == "margin" for r in choice.nearest.assessment.failed)
     assert "nothing the search found meets every requirement" in choice.reason
-
-
-def _storage(study: Study, value: float):
-    """An in-memory search holding one finished trial, at ``value`` of the study's one searched parameter, that met
-    every requirement at the draft level."""
-    import optuna
-    from optuna.trial import TrialState, create_trial
-
-    space = DesignSpace(study.cutout, study.constraints)
-    (name,) = space.distributions()
-    s = optuna.create_study()
-    s.add_trial(create_trial(state=TrialState.COMPLETE, value=0.0, params={name: value},
-                             distributions=space.distributions(), user_attrs={"feasible": True},
-                             constraints={"margin": -0.001}))
-    return s, space
 
 
 RING = """
