@@ -7,6 +7,14 @@ and the published checks live in the other test files. Tolerance: 1e-6 relative 
 absolute on percentages (a changed order of floating-point operations moves them by ~1e-12; a change of model,
 mesh or recovery moves them by 1e-4 or more). Regenerate only on purpose: ``python tests/test_golden.py --write``.
 
+The meshes come from gmsh, and another gmsh release meshes the same geometry a little differently (4.15.2 against
+the release the first record was made with moved draft-level peaks by up to 1e-6, buckling factors by 5e-5 and the
+error estimates, which are differences between two meshes, by up to 0.07 percentage points). The record names the
+gmsh version it was made with; under another version the comparison uses the mesh tolerance instead: 0.2 %
+relative on peaks, Kt and factors (twice the draft level's measured scatter floor of 0.1 %, holeshape.evaluate) and
+0.3 percentage points on estimates (the draft level's target is 2 %), and the element count is not compared. A
+change of the physics still shows: a wrong recovery, load or model moves a peak by far more than 0.2 %.
+
 What the check seam changed on purpose, and so is not recorded here: ``net_section_stress_mpa`` is now the mean
 normal stress of the governing cut (it was the narrowest ligament's, reported apart as ``ligament``); a search
 whose best sat on a requirement at the draft level and missed it at the fine level now recommends it moved back
@@ -73,20 +81,34 @@ def _numbers(name: str, text: str) -> dict:
             "dofs": ev.dofs, "area_mm2": ev.area_mm2, "load_cases": cases}
 
 
-def _close(a, b, path: str) -> None:
+SAME_MESHER = (1e-6, 1e-6)  # relative on values, absolute on percentages: floating-point order only
+OTHER_MESHER = (2e-3, 0.3)  # another gmsh release: the draft level's mesh scatter (see the module's docstring)
+VERSION_KEY = "_mesher"
+
+
+def _mesher() -> str:
+    import gmsh
+
+    return f"gmsh {gmsh.__version__}"
+
+
+def _close(a, b, path: str, tol: tuple[float, float] = SAME_MESHER) -> None:
+    rel, pct = tol
     if isinstance(a, dict):
         assert set(a) == set(b), f"{path}: keys {sorted(a)} != {sorted(b)}"
         for k in a:
-            _close(a[k], b[k], f"{path}.{k}")
+            _close(a[k], b[k], f"{path}.{k}", tol)
     elif isinstance(a, list):
         assert len(a) == len(b), path
         for i, (x, y) in enumerate(zip(a, b)):
-            _close(x, y, f"{path}[{i}]")
+            _close(x, y, f"{path}[{i}]", tol)
     elif isinstance(a, float) and isinstance(b, float):
         if path.endswith("_pct"):
-            assert abs(a - b) <= 1e-6, f"{path}: {a!r} != {b!r}"
+            assert abs(a - b) <= pct, f"{path}: {a!r} != {b!r}"
         else:
-            assert math.isclose(a, b, rel_tol=1e-6, abs_tol=1e-9), f"{path}: {a!r} != {b!r}"
+            assert math.isclose(a, b, rel_tol=rel, abs_tol=1e-9), f"{path}: {a!r} != {b!r}"
+    elif path.endswith(".dofs") and tol is not SAME_MESHER:
+        pass  # another mesher release places another number of elements
     else:
         assert a == b, f"{path}: {a!r} != {b!r}"
 
@@ -98,11 +120,13 @@ CASES = _variants()
 def test_numbers_unchanged(name):
     golden = json.loads(GOLDEN.read_text())
     assert name in golden, f"{name} has no golden record: regenerate on purpose with --write"
-    _close(golden[name], _numbers(name, CASES[name]), name)
+    tol = SAME_MESHER if golden.get(VERSION_KEY) == _mesher() else OTHER_MESHER
+    _close(golden[name], _numbers(name, CASES[name]), name, tol)
 
 
 if __name__ == "__main__":
     if sys.argv[1:] != ["--write"]:
         sys.exit("usage: python tests/test_golden.py --write   (records the current numbers as the reference)")
-    GOLDEN.write_text(json.dumps({n: _numbers(n, t) for n, t in CASES.items()}, indent=1) + "\n")  # on purpose only
+    record = {VERSION_KEY: _mesher(), **{n: _numbers(n, t) for n, t in CASES.items()}}
+    GOLDEN.write_text(json.dumps(record, indent=1) + "\n")  # on purpose only
     print(f"wrote {GOLDEN}")
