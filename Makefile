@@ -23,6 +23,7 @@ demo: $(STAMP)
 	$(VENV)/bin/holeshape optimise studies/floor-beam-lightening-row.toml --out runs/floor-beam-lightening-row
 	$(VENV)/bin/holeshape optimise studies/deck-girder-cable-row.toml --out runs/deck-girder-cable-row
 	$(VENV)/bin/holeshape optimise studies/bulkhead-cable-transit.toml --out runs/bulkhead-cable-transit
+	$(VENV)/bin/holeshape optimise studies/rib-web-fatigue.toml --out runs/rib-web-fatigue
 
 # one pytest worker per core and one more: several tests spend part of their time waiting on processes of their own
 # (killed and resumed runs, several search workers, the database), and the extra worker fills those waits

@@ -37,10 +37,23 @@ REINFORCEMENT_CAUTION = (
 )
 
 
-def cautions(stability_computed: bool = False, reinforced: bool = False) -> str:
-    """The caution every output carries: with or without a computed buckling check and a reinforcement."""
-    return (STABILITY_CAUTIONS if stability_computed else CAUTIONS) + (REINFORCEMENT_CAUTION if reinforced else "")
+FATIGUE_CAUTION = (
+    " The fatigue assessment is safe-life only (Palmgren-Miner on the user's material curve): no crack growth or"
+    " damage tolerance; fastener holes, fretting, corrosion and environment are not assessed; the material curve,"
+    " the scatter factor and every knock-down come from the applicable code and the user's approved data."
+)
 
 
-__all__ = ["CAUTIONS", "STABILITY_CAUTIONS", "GeometryError", "HoleshapeError", "MeshError", "SearchError",
-           "SolveError", "StorageError", "StudyError", "__version__", "cautions"]
+def cautions(stability_computed: bool = False, reinforced: bool = False, fatigue_computed: bool = False) -> str:
+    """The caution every output carries, saying what this study assessed: with or without a computed buckling
+    check, a reinforcement, a fatigue assessment."""
+    text = STABILITY_CAUTIONS if stability_computed else CAUTIONS
+    if fatigue_computed:
+        text = (text.replace("no buckling, fatigue-life, fracture or bearing", "no buckling, fracture or bearing")
+                .replace("No fatigue-life, fracture or bearing", "No fracture or bearing"))
+        text = text.replace(" Results must be reviewed", FATIGUE_CAUTION + " Results must be reviewed")
+    return text + (REINFORCEMENT_CAUTION if reinforced else "")
+
+
+__all__ = ["CAUTIONS", "FATIGUE_CAUTION", "STABILITY_CAUTIONS", "GeometryError", "HoleshapeError", "MeshError",
+           "SearchError", "SolveError", "StorageError", "StudyError", "__version__", "cautions"]

@@ -48,7 +48,8 @@ class DesignResult:
         d = design_json(self.evaluation, self.assessment, self.study)
         d.update({"title": self.study.title, "shape": self.cutout.family, "params": self.cutout.parameters(),
                   "holeshape_version": __version__, "plots": list(self.plots),
-                  "cautions": cautions(self.result("stability") is not None, self.result("reinforcement") is not None)})
+                  "cautions": cautions(self.result("stability") is not None, self.result("reinforcement") is not None,
+                                       self.result("fatigue") is not None)})
         return d
 
 
@@ -100,4 +101,7 @@ def run_check(study_path: str, accuracy: str | None = None, plots: str | None = 
     if isinstance(st, BucklingResult):
         drawn.append(P.plot_buckling_mode(plot_dir / "buckling_mode.png", st.stability, st.fields, outline,
                                           study.panel, study.title))
+    for r in res.assessment.results:
+        for chart in r.charts():
+            drawn.append(P.plot_chart(plot_dir / chart.file.removeprefix("best_"), chart, study.title))
     return replace(res, plots=tuple(str(p) for p in drawn))

@@ -181,7 +181,8 @@ def _sweep(args: argparse.Namespace) -> int:
 
     print("\n".join(sweep_lines(res)))
     print(f"  report        {res['report']}")
-    print("\n  CAUTION: " + cautions("required_buckling_factor" in res))
+    fatigue = any("fatigue_reserve_factor" in p for p in res.get("points", []))
+    print("\n  CAUTION: " + cautions("required_buckling_factor" in res, fatigue_computed=fatigue))
     return 0
 
 

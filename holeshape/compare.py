@@ -14,6 +14,7 @@ from dataclasses import replace
 from pathlib import Path
 from typing import Any
 
+from holeshape.checks import CHECKS
 from holeshape.errors import HoleshapeError, NoDesignError, SearchError, StudyError
 from holeshape.goals import GOALS
 from holeshape.record import REINFORCED_SUFFIX, RunInputs, RunRecord, folder_name
@@ -151,7 +152,7 @@ def run_compare(study_path: str, out: str, workers: int = 1, progress: bool = Tr
             continue
         rows.append({"shape": family, "feasible": True, **{k: fb.get(k) for k in (
             "peak_stress_mpa", "kt", "area_mm2", "governing_load_case", "params", "dxf", "error_estimate_pct",
-            "buckling_load_factor", "reinforcement")}})
+            "buckling_load_factor", "reinforcement", *(k for c in CHECKS for k, _ in c.columns))}})
         if rows[-1]["reinforcement"] is None:
             rows[-1].pop("reinforcement")
     goal = GOALS[study.search.goal]

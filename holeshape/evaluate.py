@@ -250,6 +250,7 @@ class EvaluationFields:
     member_stress: np.ndarray | None = field(default=None, repr=False)  # (n, m) of an edge member, MPa, signed
     interior_name: str = ""  # the location names of those two
     member_name: str = ""
+    coarse_solution: PanelSolution | None = field(default=None, repr=False)  # the second level (error estimates)
 
 
 def evaluate(panel: Panel, material: Material, load_cases: tuple[LoadCase, ...], cutout: Cutout,
@@ -364,7 +365,8 @@ def _fields(cutout: Cutout, material: Material, region: Region, pm: PanelMesh, s
             member = member_stress(full, material.elastic, loc.modulus)
     return EvaluationFields(panel_mesh=pm, solution=sol, boundary=full, coarse_boundary=full_c,
                             interior_boundary=interior, member_stress=member,
-                            interior_name=names.get("interior_edge", ""), member_name=names.get("edge_member", ""))
+                            interior_name=names.get("interior_edge", ""), member_name=names.get("edge_member", ""),
+                            coarse_solution=sol_c)
 
 
 def error_estimate_pct(peak: float, peak_second: float, floor_pct: float) -> float:

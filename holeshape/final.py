@@ -74,7 +74,8 @@ class Checked:
                 "margin_of_safety": stress.lowest_margin if isinstance(stress, StressResult) else None,
                 "buckling_load_factor": st.stability.load_factor if isinstance(st, BucklingResult) else None,
                 "reinforcement": None if rf is None else rf.to_dict(),
-                "meets_every_requirement": self.passes, "verdict_reasons": self.assessment.reasons()}
+                "meets_every_requirement": self.passes, "verdict_reasons": self.assessment.reasons(),
+                **{k: v for res in self.assessment.results for k, v in res.row_fields().items()}}
 
 
 @dataclass(frozen=True)
@@ -94,7 +95,7 @@ class FinalChecks:
         s = self.study
         ev = evaluate(s.panel, s.material, s.load_cases, cut, self.measure)
         a = assess(s, cut, ev, accuracy=FINAL_ACCURACY, cache=self.cache, keep_fields=keep)
-        score = GOALS[s.search.goal].objective(ev, cut, s)
+        score = GOALS[s.search.goal].objective(ev, cut, s, a)
         return Checked(family, cut, ev if keep else ev.without_fields(), a, trial, score)
 
     def attempt(self, cut: Cutout, family: str, trial: int | None, keep: bool = False) -> Checked | str:

@@ -95,7 +95,8 @@ def family_block(c: Checked | None, files: dict | None, chosen: bool) -> dict | 
            "governing_load_case": e.governing_load_case, "margin_of_safety": s["margin_of_safety"],
            "buckling_load_factor": st.stability.load_factor if isinstance(st, BucklingResult) else None,
            "reinforcement": s["reinforcement"], "meets_every_requirement": c.passes,
-           "verdict_reasons": s["verdict_reasons"], "recommended": chosen, "moved": c.moved}
+           "verdict_reasons": s["verdict_reasons"], "recommended": chosen, "moved": c.moved,
+           **{k: v for res in c.assessment.results for k, v in res.row_fields().items()}}
     if files:
         out.update(files)
     return out
@@ -132,6 +133,9 @@ def write_plots(out_dir: Path, study_def: Study, trials: list[Any], best: Checke
     if isinstance(st, BucklingResult):
         paths.append(plots.plot_buckling_mode(out_dir / "best_buckling_mode.png", st.stability, st.fields,
                                               outlines, study_def.panel, study_def.title))
+    for res in best.assessment.results:
+        for chart in res.charts():
+            paths.append(plots.plot_chart(out_dir / chart.file, chart, study_def.title))
     files.write_vtk(out_dir / "best_stress_field.vtu", fields, [r.name for r in ev.load_cases])
     return paths
 
@@ -181,7 +185,8 @@ def design_check(study_def: Study, best: Checked, out_dir: Path, dxf_info: dict,
             with_stability=stab is not None, locations=tuple(asdict(loc) for loc in r.locations if cut.count > 1),
             extra=extra))
     density = study_def.material.density
-    from holeshape.checks.compose import blocks
+    from holeshape.checks.compose import blocks, top_fields
+    from holeshape.stability import DESIGN_KEYS
 
     return DesignCheck(
         peak_stress_mpa=ev.peak_stress_mpa, kt=ev.kt, kt_reference=ev.kt_reference, area_mm2=ev.area_mm2,
@@ -196,7 +201,9 @@ def design_check(study_def: Study, best: Checked, out_dir: Path, dxf_info: dict,
         vtk=str(out_dir / "best_stress_field.vtu"), requirements=reqs,
         stability=stab.stability.to_dict() if isinstance(stab, BucklingResult) else None, reinforcement=reinforcement,
         assessments={k: v for k, v in blocks(a).items() if k not in ("stability", "reinforcement")},
-        sections=tuple(s.to_dict() for s in sections(a, study_def)), moved=best.moved)
+        sections=tuple(s.to_dict() for s in sections(a, study_def)), moved=best.moved,
+        top={k: v for k, v in top_fields(a).items() if k not in DesignCheck.__dataclass_fields__
+             and k not in DESIGN_KEYS})
 
 
 def side_checks(study_def: Study, baselines: Baselines, validate: bool
@@ -306,7 +313,8 @@ def finish_run(study_def: Study, study: Any, space: DesignSpace, baselines: Base
                                             for b in base_rows if b.feasible and b.peak_stress_mpa is not None},
             elapsed_s=time.perf_counter() - t0, plots=tuple(str(p) for p in plot_paths),
             cautions=cautions(best.assessment.result("stability") is not None,
-                              best.assessment.result("reinforcement") is not None),
+                              best.assessment.result("reinforcement") is not None,
+                              best.assessment.result("fatigue") is not None),
             front=front, choice=choice.reason, **common)
         bar.update()
         return _write(record, out_dir, bar)
@@ -344,7 +352,8 @@ def _no_design(study_def: Study, study: Any, space: DesignSpace, choice: Choice,
                 advice.append(a)
     record = RunRecord(best=None, family_best=family_block(choice.nearest, None, False), baselines=tuple(base_rows),
                        improvement_over_baselines_pct={}, elapsed_s=time.perf_counter() - t0, plots=(),
-                       cautions=cautions(study_def.stability is not None, study_def.cutout.reinforcement is not None),
+                       cautions=cautions(study_def.stability is not None, study_def.cutout.reinforcement is not None,
+                                         study_def.table("fatigue") is not None),
                        outcome="no_design", choice=choice.reason, nearest_misses=tuple(misses),
                        advice=tuple(advice), **common)
     summary = _write(record, out_dir, bar)

@@ -32,8 +32,9 @@ class Goal(ABC):
     bare_goal: ClassVar[str | None] = None  # the goal of the same study without a reinforcement (None: this one)
 
     @abstractmethod
-    def objective(self, evaluation: Any, cutout: Cutout, study: Study) -> float:
-        """The number the search minimises for one solved design."""
+    def objective(self, evaluation: Any, cutout: Cutout, study: Study, assessment: Any = None) -> float:
+        """The number the search minimises for one solved design (``assessment``: its checks' results, a
+        :class:`holeshape.checks.Assessment`)."""
 
     def readable(self, value: float) -> float:
         """The quantity a person reads from an objective value (in its unit)."""
@@ -88,7 +89,7 @@ class LowestPeak(Goal):
     label = "lowest peak stress within every constraint"
     axis_label = "peak stress over all load cases (MPa)"
 
-    def objective(self, evaluation: Any, cutout: Cutout, study: Study) -> float:
+    def objective(self, evaluation: Any, cutout: Cutout, study: Study, assessment: Any = None) -> float:
         return evaluation.peak_stress_mpa
 
     def shown(self, value: float) -> str:
@@ -104,7 +105,7 @@ class LargestOpening(Goal):
     retreat_note = "the opening scaled down about its centre (every length of the outline; a row keeps its pitch)"
     SPAN = 0.25  # t = 1 scales the outline to 75 % of its size
 
-    def objective(self, evaluation: Any, cutout: Cutout, study: Study) -> float:
+    def objective(self, evaluation: Any, cutout: Cutout, study: Study, assessment: Any = None) -> float:
         return -cutout.area
 
     def readable(self, value: float) -> float:
@@ -151,7 +152,7 @@ class LightestReinforcement(Goal):
     bare_goal = "lowest_peak"  # a bare opening that meets every requirement needs no reinforcement at all
     SPAN = 1.0  # t = 1 doubles the searched sizes
 
-    def objective(self, evaluation: Any, cutout: Cutout, study: Study) -> float:
+    def objective(self, evaluation: Any, cutout: Cutout, study: Study, assessment: Any = None) -> float:
         r = cutout.reinforcement
         return 0.0 if r is None else r.sizes(cutout, study.panel.thickness).volume_mm3
 
@@ -194,4 +195,49 @@ class LightestReinforcement(Goal):
         return relative(va, vb, "reinforcement", "less", "more") if vb else super().better(a, b)
 
 
-GOALS: dict[str, Goal] = {g.name: g for g in (LowestPeak(), LargestOpening(), LightestReinforcement())}
+class LongestLife(Goal):
+    """The longest fatigue life: the largest fatigue reserve factor (the factor on every stress of the spectrum the
+    design survives for the required life; it orders lives and stays finite below an endurance limit). The lowest
+    peak is not the longest life when the load cases' ranges and means differ."""
+
+    name = "longest_life"
+    aim = "the longest fatigue life (the largest fatigue reserve factor)"
+    label = "longest fatigue life within every constraint"
+    axis_label = "fatigue reserve factor (higher is better; plotted as its negative)"
+    RESERVE_CEILING = 1e3  # a design that does no damage even at this factor on the spectrum
+
+    def objective(self, evaluation: Any, cutout: Cutout, study: Study, assessment: Any = None) -> float:
+        res = None if assessment is None else assessment.result("fatigue")
+        reserve = getattr(res, "reserve_factor", None)
+        if res is None:
+            raise ValueError("the longest_life goal needs the fatigue check's result")
+        return -(self.RESERVE_CEILING if reserve is None else float(reserve))
+
+    def readable(self, value: float) -> float:
+        return -value
+
+    def shown(self, value: float) -> str:
+        return f"fatigue reserve {-value:.3f}"
+
+    def requires(self, study: Study, limits: list[str]) -> str | None:
+        if study.table("fatigue") is None:
+            return ('search.goal = "longest_life" needs a [fatigue] table (the load states, the cycles per unit and'
+                    " the material curve) to compute a life")
+        return None
+
+    def rank_key(self, row: dict[str, Any]) -> tuple:
+        r = row.get("fatigue_reserve_factor")
+        return (-(self.RESERVE_CEILING if r is None else r), row["peak_stress_mpa"])
+
+    def improvement_pct(self, a: dict[str, Any], b: dict[str, Any]) -> float:
+        ra = a.get("fatigue_reserve_factor") or self.RESERVE_CEILING
+        rb = b.get("fatigue_reserve_factor") or self.RESERVE_CEILING
+        return 100.0 * (ra / rb - 1.0)
+
+    def better(self, a: dict[str, Any], b: dict[str, Any]) -> str:
+        ra = a.get("fatigue_reserve_factor") or self.RESERVE_CEILING
+        rb = b.get("fatigue_reserve_factor") or self.RESERVE_CEILING
+        return relative(ra, rb, "fatigue reserve", "less", "more")
+
+
+GOALS: dict[str, Goal] = {g.name: g for g in (LowestPeak(), LargestOpening(), LightestReinforcement(), LongestLife())}

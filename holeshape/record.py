@@ -190,6 +190,8 @@ class DesignCheck:
     sections: tuple[dict, ...] = ()
     # when the design was moved back along the goal to pass at the final level: how far, from which trial
     moved: dict | None = None
+    # what the registered checks add to the top level (CheckResult.top_fields) beyond the fields above
+    top: dict = field(default_factory=dict)
 
     @property
     def meets_every_requirement(self) -> bool:
@@ -221,6 +223,10 @@ class DesignCheck:
             d.pop("reinforcement")
         if d["moved"] is None:
             d.pop("moved")
+        top = d.pop("top")
+        for k, v in top.items():
+            d.setdefault(k, v)
+        d["check_fields"] = list(top)
         d["meets_every_requirement"] = self.meets_every_requirement
         d["feasible"] = self.meets_every_requirement  # the recommendation is feasible exactly when it passes
         d.update(self.verdict())
@@ -236,7 +242,8 @@ class DesignCheck:
                   warnings=tuple(d.get("warnings", [])), min_radius_at_mm=tuple(d.get("min_radius_at_mm") or (0, 0)),
                   bounds_mm=tuple(d["bounds_mm"]), stability=d.get("stability"),
                   reinforcement=d.get("reinforcement"), sections=tuple(d.get("sections", ())),
-                  assessments=d.get("assessments", {}), moved=d.get("moved"))
+                  assessments=d.get("assessments", {}), moved=d.get("moved"),
+                  top={k: d.get(k) for k in d.get("check_fields", [])})
         return cls(**kw)
 
 

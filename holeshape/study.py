@@ -147,6 +147,11 @@ class Constraints:
     min_margin: float | None = None  # margin of safety against material.allowable_stress, checked after the solve
     max_added_mass: float | None = None  # kg of reinforcement (needs [reinforcement] and material.density)
     max_reinforcement_area: float | None = None  # mm^2 of the reinforcement's cross-section
+    more: tuple[tuple[str, float], ...] = ()  # the keys registered checks read (Check.constraint_keys)
+
+    def get(self, key: str) -> float | None:
+        """A constraint a registered check reads (None when not given)."""
+        return dict(self.more).get(key)
 
 
 @dataclass(frozen=True)

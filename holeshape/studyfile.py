@@ -218,7 +218,12 @@ def parse_study(doc: dict, source: str = "") -> Study:
     if constraints.max_added_mass is not None and material.density is None:
         raise StudyError(f"constraints.max_added_mass = {constraints.max_added_mass!r} kg needs material.density"
                          " (kg/m^3) to weigh the reinforcement")
-    parts = {"panel": panel, "material": material, "load_cases": tuple(load_cases), "cutout": cutout}
+    for key, cls in check_constraint_keys().items():
+        if constraints.get(key) is not None and (cls.table is None or cls.table not in doc):
+            raise StudyError(f"constraints.{key} = {constraints.get(key)!r} needs a [{cls.table}] table to check it"
+                             " against")
+    parts = {"panel": panel, "material": material, "load_cases": tuple(load_cases), "cutout": cutout,
+             "constraints": dict(constraints.more), "folder": Path(source).parent if source else None}
     tables = tuple((cls.name, cls.parse_table(_table(doc, name), parts)) for name, cls in own_tables.items()
                    if name in doc)
     study = Study(title=title, panel=panel, material=material, load_cases=tuple(load_cases), cutout=cutout,
@@ -324,10 +329,16 @@ def _parse_stability(c: dict) -> StabilitySettings:
         modes=modes)
 
 
+def check_constraint_keys() -> dict[str, type[Check]]:
+    """The [constraints] keys the registered checks read (``Check.constraint_keys``), by key."""
+    return {k: c for c in checks_registry.CHECKS for k in c.constraint_keys}
+
+
 def _parse_constraints(c: dict, panel: Panel) -> Constraints:
     w = "constraints."
+    own = check_constraint_keys()
     _unknown(c, ("min_area", "max_area", "area", "access", "clearance", "min_ligament", "min_radius",
-                 "min_buckling_factor", "min_margin", "max_added_mass", "max_reinforcement_area"), w)
+                 "min_buckling_factor", "min_margin", "max_added_mass", "max_reinforcement_area", *own), w)
     access = None
     if "access" in c:
         a = c["access"]
@@ -362,6 +373,7 @@ def _parse_constraints(c: dict, panel: Panel) -> Constraints:
         min_margin=_number(c, "min_margin", w, default=None),
         max_added_mass=_number(c, "max_added_mass", w, default=None, positive=True),
         max_reinforcement_area=_number(c, "max_reinforcement_area", w, default=None, positive=True),
+        more=tuple((k, _number(c, k, w, positive=True)) for k in own if k in c),
     )
     if cons.min_margin is not None and not -1.0 < cons.min_margin <= 10.0:
         raise StudyError(f"constraints.min_margin must lie in (-1, 10] (a margin of safety, e.g. 0.0 or 0.15), got"

@@ -142,6 +142,8 @@ def _point(study: Study, spec: CutoutSpec, point: dict[Param, float], coords: di
             stress = full.result("stress")
             if isinstance(stress, StressResult) and stress.lowest_margin is not None:
                 row["margin_of_safety"] = stress.lowest_margin
+            for res in full.results:
+                row.update(res.row_fields())
     except (GeometryError, StudyError) as err:
         row["reason"] = " ".join(str(err).split())
     except HoleshapeError as err:

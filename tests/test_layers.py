@@ -13,7 +13,7 @@ PACKAGE = Path(__file__).resolve().parents[1] / "holeshape"
 # lowest first, as in the DEVELOPERS.md layer table
 LAYERS = [
     ("holeshape", "holeshape.errors", "holeshape.progress"),
-    ("holeshape.geometry", "holeshape.elastic"),
+    ("holeshape.geometry", "holeshape.elastic", "holeshape.fatigue"),
     ("holeshape.study", "holeshape.parameters", "holeshape.goals"),
     ("holeshape.mesh",),
     ("holeshape.solve", "holeshape.homogenise"),

@@ -13,11 +13,14 @@ from holeshape.checks.access import AccessCheck
 from holeshape.checks.area import AreaCheck
 from holeshape.checks.base import (
     Assessment,
+    Chart,
+    ChartAxes,
     Check,
     CheckResult,
     Design,
     Requirement,
     Section,
+    Series,
     Table,
     Verdict,
     constraint_values,
@@ -25,6 +28,7 @@ from holeshape.checks.base import (
     requirement,
     verdict,
 )
+from holeshape.checks.fatigue import FatigueCheck
 from holeshape.checks.net_section import NetSectionCheck
 from holeshape.checks.outline import OutlineCheck
 from holeshape.checks.reinforcement import ReinforcementCheck, ReinforcementGeometryCheck
@@ -40,7 +44,8 @@ if TYPE_CHECKING:
 
 CHECKS: tuple[type[Check], ...] = (
     OutlineCheck, AccessCheck, AreaCheck, ReinforcementGeometryCheck,
-    StressCheck, NetSectionCheck, TeeCheck, ReinforcementCheck, BucklingCheck, StiffnessCheck,
+    StressCheck, NetSectionCheck, TeeCheck, ReinforcementCheck, BucklingCheck, FatigueCheck,
+    StiffnessCheck,
 )
 
 
@@ -81,6 +86,7 @@ def absent_sections(study: Study) -> list[Section]:
     return out
 
 
-__all__ = ["CHECKS", "Assessment", "Check", "CheckResult", "Design", "Requirement", "Section", "Table", "Verdict",
+__all__ = ["CHECKS", "Assessment", "Chart", "ChartAxes", "Check", "CheckResult", "Design", "Requirement", "Section",
+           "Series", "Table", "Verdict",
            "absent_sections", "assess", "constraint_values", "meets_every_requirement", "registered", "requirement",
            "verdict"]

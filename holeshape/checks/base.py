@@ -33,7 +33,7 @@ RELATIONS = (">=", "<=", "=")
 
 # kinds of requirement on the solved design's strength or stability; a new check whose rows a goal's move can address
 # (a fatigue life read as a margin) uses one of them
-STRUCTURAL_KINDS = ("margin", "buckling")
+STRUCTURAL_KINDS = ("margin", "buckling", "fatigue")
 
 
 @dataclass(frozen=True)
@@ -227,6 +227,38 @@ class Section:
                    images=tuple((i[0], i[1]) for i in d.get("images", ())))
 
 
+@dataclass(frozen=True)
+class Series:
+    """One line (``style`` "line") or set of markers ("points") of a chart, plain numbers."""
+
+    label: str
+    x: tuple[float, ...]
+    y: tuple[float, ...]
+    style: str = "line"
+
+
+@dataclass(frozen=True)
+class ChartAxes:
+    """One pair of axes of a chart: labels with units, the series, logarithmic axes, a title."""
+
+    x_label: str
+    y_label: str
+    series: tuple[Series, ...]
+    log_x: bool = False
+    log_y: bool = False
+    title: str = ""
+
+
+@dataclass(frozen=True)
+class Chart:
+    """A figure a check asks for (its data only; the output layer draws it): the file it goes to in a run folder
+    (a ``Section`` names the same file to embed it), a title, one or more axes side by side."""
+
+    file: str
+    title: str
+    axes: tuple[ChartAxes, ...]
+
+
 @dataclass(frozen=True, kw_only=True)
 class CheckResult:
     """Base of every check's frozen result: its requirement rows and warnings; subclasses add their numbers."""
@@ -254,6 +286,15 @@ class CheckResult:
     def section(self) -> Section | None:
         """What the text summary and the report show of the result (None: nothing beyond the requirements)."""
         return None
+
+    def row_fields(self) -> dict[str, Any]:
+        """The few numbers a comparison or sweep row shows for this result (key: value; headings in
+        ``Check.columns``)."""
+        return {}
+
+    def charts(self) -> tuple[Chart, ...]:
+        """Figures of the result the outputs draw for the recommended or checked design (plain data)."""
+        return ()
 
 
 @dataclass(frozen=True)
@@ -288,6 +329,11 @@ class Check(ABC):
     title: ClassVar[str] = ""
     stage: ClassVar[str] = "solved"
     table: ClassVar[str | None] = None
+    # keys of the study's [constraints] table the check reads (numbers > 0; the check's parse_table gets them in
+    # ``study_parts["constraints"]``; given without the check's table they are an error)
+    constraint_keys: ClassVar[tuple[str, ...]] = ()
+    # the row_fields a comparison or sweep table shows, with their headings
+    columns: ClassVar[tuple[tuple[str, str], ...]] = ()
 
     @classmethod
     def applies(cls, study: Study) -> bool:

@@ -74,7 +74,7 @@ def requirement_value(r: Requirement) -> str:
         return "does not buckle" if kind == "buckling" else "-"
     if kind == "margin":
         return f"{v:+.3f}"
-    if kind == "buckling":
+    if kind == "buckling" or kind == "fatigue" and not unit:
         return f"{v:.3f}"
     if kind == "accuracy":
         return f"{sig(v, 2)} %"
@@ -94,7 +94,7 @@ def limit_value(r: Requirement) -> str:
     unit = {"": "", "%": " %"}.get(r.unit, f" {r.unit}")
     if r.kind == "margin":
         return f"{r.relation} {r.limit:+g}"
-    if not r.unit and r.limit == 1.0 and r.relation == ">=":
+    if not r.unit and r.limit == 1.0 and r.relation == ">=" and r.kind not in ("buckling", "fatigue"):
         return "yes"
     return f"{r.relation} {r.limit:g}{unit}"
 
@@ -109,6 +109,6 @@ def stored_value(row: dict, v: float | None, limit: bool = False) -> str:
         return f"{v:+g}" if limit else f"{v:+.3f}"
     if limit:
         return f"{v:g}{(' ' + unit) if unit else ''}"
-    if kind == "buckling":
+    if kind == "buckling" or kind == "fatigue" and not unit:
         return f"{v:.3f}"
     return f"{v:.4g}{(' ' + unit) if unit else ''}"

@@ -21,8 +21,8 @@ if TYPE_CHECKING:
 # matplotlib's figures and axes are typed Any; an outline to draw is one (2, n) array or a list of them
 Outlines = np.ndarray | Sequence[np.ndarray]
 
-PLOT_CAUTION = ("holeshape: linear-elastic plane stress, linear buckling only where stated; no fatigue or fracture "
-                "assessment; review by a qualified engineer; applicable codes govern")
+PLOT_CAUTION = ("holeshape: linear-elastic plane stress, linear buckling and safe-life fatigue only where stated;"
+                " no fracture assessment; review by a qualified engineer; applicable codes govern")
 
 
 def pyplot() -> Any:
@@ -273,4 +273,31 @@ def plot_buckling_mode(path: Path, stability: StabilityResult, fields: Stability
         fig.text(0.01, 0.985, "WARNING: " + stability.warnings[0], fontsize=7.5, color="red", ha="left", va="top")
     top = 1.0 - (0.18 * len(lines) + 0.1) / fig_h  # room for the title's lines (inches)
     fig.tight_layout(rect=(0, 0.03, 1, top))
+    return save(fig, path)
+
+
+def plot_chart(path: Path, chart: Any, title: str) -> Path:
+    """A figure a check described (``holeshape.checks.Chart``: axes side by side, each with its series)."""
+    plt = pyplot()
+    n = len(chart.axes)
+    fig, axs = plt.subplots(1, n, figsize=(6.0 * n, 4.6), squeeze=False)
+    for ax, spec in zip(axs[0], chart.axes):
+        for s in spec.series:
+            x, y = np.asarray(s.x, float), np.asarray(s.y, float)
+            if s.style == "points":
+                ax.plot(x, y, "o", ms=6, mfc="none", mew=1.5, label=s.label)
+            else:
+                ax.plot(x, y, "-", lw=1.6, label=s.label)
+        if spec.log_x:
+            ax.set_xscale("log")
+        if spec.log_y:
+            ax.set_yscale("log")
+        ax.set_xlabel(spec.x_label)
+        ax.set_ylabel(spec.y_label)
+        ax.set_title(spec.title, fontsize=10)
+        ax.grid(True, which="both", alpha=0.3)
+        if len(spec.series) > 1:
+            ax.legend(fontsize=8, loc="best")
+    fig.suptitle(f"{title}: {chart.title}", fontsize=11)
+    fig.tight_layout(rect=(0, 0, 1, 0.94))
     return save(fig, path)

@@ -323,6 +323,14 @@ def section_no_design(page: Page, rec: RunRecord) -> None:
         page.para("What to change: " + "; ".join(rec.advice) + ".")
 
 
+def check_columns(rows: list[dict]) -> list[tuple[str, str]]:
+    """The columns the registered checks add to a comparison or sweep table (``Check.columns``), where any row has
+    a value for them."""
+    from holeshape.checks import CHECKS
+
+    return [(k, h) for c in CHECKS for k, h in c.columns if any(r.get(k) is not None for r in rows)]
+
+
 def section_bare_opening(page: Page, b: DesignCheck) -> None:
     """A reinforced recommendation beside the same outline checked bare: what the reinforcement buys."""
     r = b.reinforcement
@@ -391,6 +399,7 @@ def section_comparison(page: Page, rec: RunRecord) -> None:
         page.table(list(rec.comparison), [
             ("rank", "rank"), ("shape", "family"), ("peak_stress_mpa", "peak (MPa)"), ("kt", "Kt"),
             ("area_mm2", "area (mm^2)"), ("buckling_load_factor", "buckling factor"),
+            *check_columns(list(rec.comparison)),
             ("governing_load_case", "governing load case"), ("against_circle", "against the best circle"),
             ("reason", "note")])
         page.img("compare_shapes.png", "best outline of every family, overlaid")
@@ -496,8 +505,10 @@ def build_sweep_report(run: Path, fmt: str = "html") -> Path:
             ("error_estimate_pct", "error estimate (%)"), ("feasible", "meets every requirement"), ("reason", "note")]
     if any("buckling_load_factor" in r for r in rows):
         cols.insert(3, ("buckling_load_factor", "buckling load factor"))
+    cols[-3:-3] = check_columns(rows)
     page.table(rows, cols)
     section_validation(page, validation)
     page.h2(SWEEP_SECTIONS[4])
-    page.para(cautions(sweep.with_stability), "caution")
+    page.para(cautions(sweep.with_stability, fatigue_computed=any("fatigue_reserve_factor" in r for r in rows)),
+              "caution")
     return page.write(title)

@@ -122,7 +122,8 @@ def check_summary(result: Any, edges_note: str) -> str:
     for w in result.warnings:
         lines += wrap("WARNING", w)
     lines += [""] + wrap("CAUTION", cautions(a.result("stability") is not None,
-                                            a.result("reinforcement") is not None))
+                                            a.result("reinforcement") is not None,
+                                            a.result("fatigue") is not None))
     return "\n".join(lines)
 
 
@@ -276,6 +277,13 @@ def no_design_summary(rec: RunRecord) -> str:
     return "\n".join(lines)
 
 
+def check_columns() -> list[tuple[str, str]]:
+    """The figures the registered checks add to a sweep or comparison row (``Check.columns``)."""
+    from holeshape.checks import CHECKS
+
+    return [c for k in CHECKS for c in k.columns]
+
+
 def sweep_lines(res: dict) -> list[str]:
     """The points of a sweep."""
     lines = [f"holeshape sweep: {res['study']} ({res['accuracy']} level, {res['elapsed_s']:.1f} s)"]
@@ -285,8 +293,9 @@ def sweep_lines(res: dict) -> list[str]:
             flag = "" if p["feasible"] else f"  [breaks: {p.get('reason', '')}]"
             buck = "" if "buckling_load_factor" not in p else \
                 f", buckling factor {factor_text(p['buckling_load_factor'])}"
+            more = "".join(f", {head} {_num(p[key])}" for key, head in check_columns() if p.get(key) is not None)
             lines.append(f"  {where:<28} peak {p['peak_stress_mpa']:8.2f} MPa, Kt {p['kt']:.3f},"
-                         f" area {p['area_mm2']:.0f} mm^2{buck}{flag}")
+                         f" area {p['area_mm2']:.0f} mm^2{buck}{more}{flag}")
         else:
             lines.append(f"  {where:<28} not solved: {p.get('reason', '')}")
     return lines

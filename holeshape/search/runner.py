@@ -121,7 +121,7 @@ class Objective:
             # reason, and go on; anything else is a bug and stops the study (see run_worker)
             log.debug("trial failed", exc_info=True)
             return TrialRecord.failure(params, f"{type(err).__name__}: {' '.join(str(err).split())}", **attrs), None
-        value = ev.peak_stress_mpa if self.trade_off else GOALS[study.search.goal].objective(ev, cutout, study)
+        value = ev.peak_stress_mpa if self.trade_off else GOALS[study.search.goal].objective(ev, cutout, study, full)
         attrs.update(peak_stress_mpa=ev.peak_stress_mpa, kt=ev.kt, error_estimate_pct=ev.error_estimate_pct,
                      governing=ev.governing_load_case, dofs=ev.dofs, seconds=time.perf_counter() - t0,
                      requirements=compact(full.requirements))
