@@ -152,7 +152,8 @@ def run_compare(study_path: str, out: str, workers: int = 1, progress: bool = Tr
             continue
         rows.append({"shape": family, "feasible": True, **{k: fb.get(k) for k in (
             "peak_stress_mpa", "kt", "area_mm2", "governing_load_case", "params", "dxf", "error_estimate_pct",
-            "buckling_load_factor", "reinforcement", *(k for c in CHECKS for k, _ in c.columns))}})
+            "buckling_load_factor", "reinforcement")},
+            **{k: fb[k] for c in CHECKS for k, _ in c.columns if k in fb}})  # a check's figures where it ran
         if rows[-1]["reinforcement"] is None:
             rows[-1].pop("reinforcement")
     goal = GOALS[study.search.goal]
@@ -170,8 +171,9 @@ def run_compare(study_path: str, out: str, workers: int = 1, progress: bool = Tr
     src = out_dir / folder_name(winner)
     if (summaries[winner]["best"] or {}).get("shape") not in (None, winner):  # a standard shape is better still
         ok[0]["note"] = f"a standard {summaries[winner]['best']['shape']} is better still (see its search)"
-    for name in ("best.dxf", "best.csv", "best_shape.png", "best_stress_field.png", "best_boundary_stress.png",
-                 "search_history.png", "best_stress_field.vtu", "inputs.json", "best_buckling_mode.png"):
+    charts = sorted(p.name for p in src.glob("best_*.png"))  # every plot of the winner, the checks' charts included
+    for name in dict.fromkeys(("best.dxf", "best.csv", "search_history.png", "best_stress_field.vtu", "inputs.json",
+                               *charts)):
         if (src / name).exists():
             shutil.copyfile(src / name, out_dir / f".{name}.copy")
             (out_dir / f".{name}.copy").replace(out_dir / name)

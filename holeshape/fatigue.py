@@ -11,10 +11,12 @@ Formulas (their usual names; sources beside each):
   Goodman S_a / (1 - S_m / S_u), Gerber S_a / (1 - (S_m / S_u)^2), Morrow S_a / (1 - S_m / sigma'_f),
   Smith-Watson-Topper sqrt(S_max S_a), Walker S_max^(1 - gamma) S_a^gamma (Dowling). A compressive mean earns no
   credit with Goodman and Gerber (common practice, no source); Morrow is applied with its sign, as published.
-- A cycle whose maximum is not tensile (S_max <= 0) does no damage (common practice, no source: fatigue cracks
-  at a notch grow under tension); an output says so when no cycle of a spectrum is tensile.
+- A cycle whose maximum is not tensile (S_max <= 0) does no damage on an amplitude curve (common practice, no
+  source: fatigue cracks at a notch grow under tension); an output says so when no cycle of a spectrum is tensile.
 - Detail category (the form steel codes use for welded and other details): ranges, N = N_C (dS_C / dS)^m1 down to
-  the knee, slope m2 from the knee to the cut-off, no damage below the cut-off range.
+  the knee, slope m2 from the knee to the cut-off, no damage below the cut-off range. The whole range counts,
+  compressive parts included, with no mean-stress correction, as those codes count a welded detail (a code's own
+  reduction of compressive parts for a non-welded detail is not applied: conservative).
 - Peterson q = 1 / (1 + a / r), Neuber q = 1 / (1 + sqrt(rho' / r)), Kf = 1 + q (Kt - 1) (Peterson, Stress
   Concentration Factors; Neuber, Theory of Notch Stresses).
 - Neuber's rule sigma epsilon = sigma_e^2 / E with the cyclic curve epsilon = sigma / E + (sigma / K')^(1 / n') and
@@ -77,10 +79,21 @@ class Curve:
             text = (f"detail category {self.reference_range:g} MPa range at {self.reference_cycles:.3g} cycles,"
                     f" slopes m1 = {self.slope:g}, m2 = {self.slope_after_knee:g}, knee {self.knee_cycles:.3g},"
                     f" cut-off {self.cutoff_cycles:.3g} cycles")
+        if self.ductility_coefficient is not None:
+            text += (f" with Coffin-Manson epsilon'_f = {self.ductility_coefficient:g}, c ="
+                     f" {self.ductility_exponent:g} (strain-life)")
         if self.endurance_limit is not None:
             text += f"; endurance limit {self.endurance_limit:g} MPa amplitude"
         if self.surface_factor != 1.0:
-            text += f"; surface factor {self.surface_factor:g}"
+            text += f"; surface factor {self.surface_factor:g} (applied to the curve's strength)"
+        if self.mean_stress in ("goodman", "gerber"):
+            text += f"; mean stress by {self.mean_stress.capitalize()} with S_u = {self.ultimate_strength:g} MPa"
+        elif self.mean_stress == "walker":
+            text += f"; mean stress by Walker with gamma = {self.walker_exponent:g}"
+        elif self.mean_stress != "none":
+            text += f"; mean stress by {self.mean_stress.replace('_', '-').title().replace('-', ' ')}"
+        else:
+            text += "; no mean-stress correction"
         return text
 
     def amplitude_at(self, n: np.ndarray) -> np.ndarray:
@@ -159,6 +172,8 @@ def equivalent_amplitude(curve: Curve, s_max: np.ndarray, s_min: np.ndarray) -> 
     s_max, s_min = np.asarray(s_max, float), np.asarray(s_min, float)
     amp = 0.5 * (s_max - s_min)
     mean = 0.5 * (s_max + s_min)
+    if curve.kind == "detail_category":  # a range curve: the whole range counts, compressive parts included
+        return np.where(amp > 0, amp, 0.0)
     kind = curve.mean_stress
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
         if kind == "none":
@@ -270,14 +285,36 @@ def _neuber_solve(product: np.ndarray, modulus: float, k: float, n: float) -> np
     s = hi.copy()
     for _ in range(80):
         f = s * (s / modulus + (s / k) ** (1.0 / n)) - p
+        done = np.abs(f) <= 1e-12 * np.maximum(p, 1e-30)
+        if np.all(done):
+            break
         df = 2 * s / modulus + (s / k) ** (1.0 / n) * (1.0 + 1.0 / n)
         hi = np.where(f > 0, s, hi)
         lo = np.where(f <= 0, s, lo)
         with np.errstate(divide="ignore", invalid="ignore"):
             step = s - f / df
-        s = np.where((step > lo) & (step < hi) & np.isfinite(step), step, 0.5 * (lo + hi))
-        if np.all(np.abs(f) <= 1e-12 * np.maximum(p, 1e-30)):
+        nxt = np.where((step > lo) & (step < hi) & np.isfinite(step), step, 0.5 * (lo + hi))
+        s = np.where(done, s, nxt)  # a converged point keeps its root
+    return s
+
+
+def _neuber_scalar(product: float, modulus: float, k: float, n: float) -> float:
+    """The scalar twin of :func:`_neuber_solve` (plain floats: the Masing history calls it once per reversal)."""
+    if product <= 0.0:
+        return 0.0
+    lo, hi = 0.0, math.sqrt(product * modulus)
+    s = hi
+    for _ in range(100):
+        pl = (s / k) ** (1.0 / n)
+        f = s * (s / modulus + pl) - product
+        if abs(f) <= 1e-13 * product:
             break
+        if f > 0:
+            hi = s
+        else:
+            lo = s
+        step = s - f / (2 * s / modulus + pl * (1.0 + 1.0 / n))
+        s = step if lo < step < hi else 0.5 * (lo + hi)
     return s
 
 
@@ -341,49 +378,44 @@ class LocalCycle:
     strain_range: float
 
 
-def masing_history(elastic: np.ndarray, modulus: float, cyclic: Cyclic, repeated: bool = True) -> list[LocalCycle]:
-    """The local cycles of an elastic notch-stress history by Neuber's rule with Masing hysteresis and material
-    memory: first loading along the cyclic curve, every later branch on the doubled curve from its origin; when a
-    branch passes the reversal it started from, the loop closes (one cycle) and the branch goes on from the origin
-    of the branch it interrupted. ``repeated``: the history repeats unit after unit, so it is counted as a closed
-    loop from its largest absolute value."""
+def masing_history(elastic: np.ndarray, modulus: float, cyclic: Cyclic) -> list[LocalCycle]:
+    """The local cycles of an elastic notch-stress history that repeats unit after unit, by Neuber's rule with
+    Masing hysteresis and material memory. The history is rearranged to start and end at its largest absolute value
+    (so every loop closes); first loading runs along the cyclic curve, every later branch along the doubled curve
+    from its origin; when a branch passes the reversal it started from, the loop closes (one cycle) and the branch
+    goes on from the origin of the branch it interrupted."""
     h = np.asarray(elastic, dtype=float)
-    if repeated and h.size:
-        k = int(np.argmax(np.abs(h)))
-        h = np.concatenate([h[k:], h[:k], h[k:k + 1]])
-    h = reversals(h)
-    cycles: list[LocalCycle] = []
     if h.size == 0:
-        return cycles
-    s0, e0 = neuber_first(h[:1], modulus, cyclic)
-    # the stack of branch origins: (elastic, stress, strain); the first loading starts at zero
-    stack: list[tuple[float, float, float]] = [(0.0, 0.0, 0.0), (float(h[0]), float(s0[0]), float(e0[0]))]
-    half: list[tuple[float, float, float, float]] = []
+        return []
+    k0 = int(np.argmax(np.abs(h)))
+    h = reversals(np.concatenate([h[k0:], h[:k0], h[k0:k0 + 1]]))
+    kk, nn = cyclic.strength_coefficient, cyclic.hardening_exponent
 
-    def branch(origin: tuple[float, float, float], target: float) -> tuple[float, float, float]:
-        if origin == stack[0] and len(stack) <= 1:
-            s, e = neuber_first(np.array([target]), modulus, cyclic)
-            return target, float(s[0]), float(e[0])
-        d = target - origin[0]
-        ds, de = neuber_range(np.array([d]), modulus, cyclic)
-        sign = 1.0 if d >= 0 else -1.0
-        return target, origin[1] + sign * float(ds[0]), origin[2] + sign * float(de[0])
+    def strain(s: float) -> float:
+        return s / modulus + math.copysign((abs(s) / kk) ** (1.0 / nn), s)
 
+    first = math.copysign(_neuber_scalar(h[0] * h[0] / modulus, modulus, kk, nn), h[0])
+    # the stack of branch origins (elastic, local stress, local strain); the first is the largest excursion, which
+    # the repeated history never passes (it starts and ends there)
+    stack: list[tuple[float, float, float]] = [(float(h[0]), first, strain(first))]
+    cycles: list[LocalCycle] = []
     for x in h[1:]:
         x = float(x)
-        while len(stack) >= 3 and abs(x - stack[-1][0]) >= abs(stack[-1][0] - stack[-2][0]):
+        while len(stack) >= 2 and abs(x - stack[-1][0]) >= abs(stack[-1][0] - stack[-2][0]):
             a, b = stack[-2], stack[-1]  # the loop a -> b -> a closes
             cycles.append(LocalCycle(1.0, max(a[1], b[1]), min(a[1], b[1]), abs(b[2] - a[2])))
-            del stack[-2:]
-        if len(stack) == 2 and abs(x) >= abs(stack[-1][0]) and np.sign(x) == np.sign(stack[-1][0]):
-            stack.pop()  # past the largest value so far: back on the first-loading curve
-            stack.append(branch(stack[0], x) if len(stack) == 1 else branch(stack[-1], x))
-            continue
-        stack.append(branch(stack[-1], x))
-    # what is left (a history that is not repeated) counts as half cycles
-    for a, b in zip(stack[1:-1], stack[2:]):
-        half.append((0.5, max(a[1], b[1]), min(a[1], b[1]), abs(b[2] - a[2])))
-    cycles += [LocalCycle(*t) for t in half]
+            del stack[-1]
+            if len(stack) >= 2:
+                del stack[-1]
+            else:  # back at the largest excursion, the branch's origin
+                break
+        o = stack[-1]
+        d = x - o[0]
+        x2 = _neuber_scalar(d * d / modulus / 4.0, modulus, kk, nn)  # half the local range (Masing)
+        ds = 2.0 * x2
+        de = ds / modulus + 2.0 * (ds / (2.0 * kk)) ** (1.0 / nn)
+        sign = 1.0 if d >= 0 else -1.0
+        stack.append((x, o[1] + sign * ds, o[2] + sign * de))
     return cycles
 
 

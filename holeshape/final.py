@@ -152,7 +152,8 @@ def check_standard_shapes(checks: FinalChecks, baselines: list[tuple[str, Cutout
                                  error_estimate_pct=s["error_estimate_pct"], params=cut.parameters(),
                                  buckling_load_factor=s["buckling_load_factor"],
                                  margin_of_safety=s["margin_of_safety"], added_mass_kg=r.get("added_mass_kg"),
-                                 added_volume_mm3=r.get("added_volume_mm3")))
+                                 added_volume_mm3=r.get("added_volume_mm3"),
+                                 figures={k: v for res in c.assessment.results for k, v in res.row_fields().items()}))
             if c.passes:
                 usable.append(c)
         if bar is not None:

@@ -6,7 +6,7 @@ summaries read it back without solving. Units as in the study: mm, N, MPa.
 
 from __future__ import annotations
 
-from dataclasses import asdict, dataclass, field
+from dataclasses import asdict, dataclass, field, is_dataclass
 from datetime import datetime, timezone
 from typing import Any
 
@@ -33,6 +33,7 @@ class RunInputs:
     cutout: tuple[dict, ...] = ()  # every design parameter: fixed value or range (CutoutSpec.describe)
     shape: str = ""  # the study's family (the first opening's)
     warnings: tuple[str, ...] = ()  # the study's plausibility warnings
+    tables: dict = field(default_factory=dict)  # the tables registered checks read ([fatigue]), as parsed
 
     @classmethod
     def from_study(cls, study: Study, finished: datetime | None = None, method: str | None = None) -> RunInputs:
@@ -46,7 +47,9 @@ class RunInputs:
                    constraints=asdict(study.constraints), search=search, measure=asdict(study.measure),
                    stability=None if study.stability is None else asdict(study.stability), finished=when,
                    reinforcement=reinforcement_table(study), cutout=tuple(study.cutout.describe()),
-                   shape=study.cutout.shape, warnings=study.warnings)
+                   shape=study.cutout.shape, warnings=study.warnings,
+                   tables={k: asdict(v) if is_dataclass(v) and not isinstance(v, type) else v
+                           for k, v in study.tables})
 
     @classmethod
     def from_dict(cls, d: dict) -> RunInputs:
@@ -55,7 +58,8 @@ class RunInputs:
                    load_cases=tuple(d["load_cases"]), constraints=d.get("constraints", {}),
                    search=d.get("search", {}), measure=d.get("measure", {}), stability=d.get("stability"),
                    finished=d.get("finished", ""), reinforcement=d.get("reinforcement"),
-                   cutout=tuple(d.get("cutout", ())), shape=d.get("shape", ""), warnings=tuple(d.get("warnings", ())))
+                   cutout=tuple(d.get("cutout", ())), shape=d.get("shape", ""), warnings=tuple(d.get("warnings", ())),
+                   tables=d.get("tables", {}))
 
     def to_dict(self) -> dict:
         d = asdict(self)
@@ -64,6 +68,8 @@ class RunInputs:
         d["warnings"] = list(self.warnings)
         if d["reinforcement"] is None:
             d.pop("reinforcement")
+        if not d["tables"]:
+            d.pop("tables")
         return d
 
 
@@ -264,11 +270,15 @@ class Baseline:
     margin_of_safety: float | None = None
     added_mass_kg: float | None = None  # the reinforcement the standard shape carries (a reinforced study)
     added_volume_mm3: float | None = None
+    figures: dict = field(default_factory=dict)  # what the registered checks add to a comparison row (row_fields)
 
     def to_dict(self) -> dict:
-        return _drop_none(asdict(self), ("reason", "peak_stress_mpa", "area_mm2", "kt", "error_estimate_pct",
-                                         "params", "buckling_load_factor", "margin_of_safety", "added_mass_kg",
-                                         "added_volume_mm3"))
+        d = _drop_none(asdict(self), ("reason", "peak_stress_mpa", "area_mm2", "kt", "error_estimate_pct",
+                                      "params", "buckling_load_factor", "margin_of_safety", "added_mass_kg",
+                                      "added_volume_mm3"))
+        if not d["figures"]:
+            d.pop("figures")
+        return d
 
     @classmethod
     def from_dict(cls, d: dict) -> Baseline:

@@ -91,8 +91,9 @@ def heywood_kt(d_over_w: float) -> float:
 def test_kirsch_range_with_basquin_and_goodman_gives_the_hand_life():
     # Kirsch: the hoop stress at the hole's edge is 3 S under uniaxial S (Timoshenko & Goodier); the plate is 100
     # hole diameters wide (Heywood's correction 3.0003, applied). Goodman: S_ar = S_a / (1 - S_m / S_u); Basquin
-    # N = (S_ar / sigma'_f)^(1 / b) / 2 (Dowling). Tolerance 0.5 % on the life (the issue's): with b = -0.2 the life
-    # goes as the stress to the 5th power, and the standard level's peak is within 0.07 % (0.35 % on the life).
+    # N = (S_ar / sigma'_f)^(1 / b) / 2 (Dowling). Tolerance 0.5 % on the life: with b = -0.2 and Goodman's
+    # amplification of the mean the life goes as the stress to about the 5.9th power, and the standard level's peak
+    # is within 0.07 % (about 0.41 % on the life).
     res = check(plate(BASQUIN + """
 [[fatigue.block]]
 name = "0 to S"
@@ -140,10 +141,10 @@ def test_no_fatigue_table_no_fatigue_keys():
 
 
 def test_peterson_and_neuber_match_the_textbook_numbers():
-    # Neuber with Shigley's fit for steel (Mechanical Engineering Design, 9th ed., eq. 6-35):
-    # sqrt(rho') = 0.246 - 3.08e-3 S + 1.51e-5 S^2 - 2.67e-8 S^3 (sqrt-in, S = 100 kpsi) = 0.0623 sqrt-in; worked
-    # with Kt = 3: r = 0.1 in gives q = 0.835, Kf = 2.671; r = 0.04 in gives q = 0.762, Kf = 2.525 (values to 3
-    # figures as the worked example rounds them).
+    # Neuber with Shigley's fit for steel (Mechanical Engineering Design, 9th ed., eqs. 6-33 to 6-35):
+    # sqrt(rho') = 0.246 - 3.08e-3 S + 1.51e-5 S^2 - 2.67e-8 S^3 (sqrt-in, S = 100 kpsi) = 0.0623 sqrt-in; evaluated
+    # from those equations by hand with Kt = 3: r = 0.1 in gives q = 0.835, Kf = 2.671; r = 0.04 in gives q = 0.762,
+    # Kf = 2.525 (to 3 figures). The tool takes rho' in mm: the conversion is part of what is checked.
     s_ut = 100.0
     root = 0.246 - 3.08e-3 * s_ut + 1.51e-5 * s_ut ** 2 - 2.67e-8 * s_ut ** 3
     rho_mm = root ** 2 * 25.4
@@ -274,7 +275,8 @@ def test_a_cycle_between_two_states_damages_where_its_range_is_largest():
     # between sigma_x = S and shear tau = S the hoop range at a circle is S |1 - 2 cos 2t + 4 sin 2t| (Kirsch),
     # largest (1 + sqrt 20) at 2t = 180 - atan(2) deg, t = 58.28 deg: neither static peak (90 deg for tension, 45 or
     # 135 deg for shear). No mean-stress correction, so the damage follows the range.
-    text = plate(BASQUIN.replace('mean_stress = "goodman"', 'mean_stress = "none"') + """
+    text = plate(BASQUIN.replace('mean_stress = "goodman"', 'mean_stress = "none"').replace(
+        f"ultimate_strength = {SU}", "") + """
 [[fatigue.block]]
 name = "tension to shear"
 from = { "tension" = 1.0 }
@@ -286,6 +288,8 @@ cycles = 1.0
     ang = math.degrees(math.atan2(h.y_mm - WIDTH / 2, h.x_mm - WIDTH / 2)) % 180.0
     expect = 0.5 * (180.0 - math.degrees(math.atan(2.0)))
     assert ang == pytest.approx(expect, abs=1.0)
+    # the range at the hot spot: the two cases' peaks are each within 0.07 % (standard level) and the sampled point
+    # lies within 0.4 deg of the true maximum, where the range is flat to 1e-4: 0.2 % covers both
     assert f.blocks[0].range_mpa == pytest.approx(S * (1 + math.sqrt(20.0)), rel=2e-3)
 
 
@@ -325,12 +329,20 @@ cycles = 1.0
 @pytest.mark.parametrize("change, words", [
     (('to = { "tension" = 1.0 }', 'to = { "tensoin" = 1.0 }'), "fatigue.block[0].to names load case 'tensoin'"),
     (("cycles = 1.0", "cycles = -3.0"), "fatigue.block[0].cycles must be > 0"),
-    (("exponent = -0.2", "exponent = 0.1"), "fatigue.curve.exponent must be < 0"),
-    (('ultimate_strength = 480.0', ''), 'needs fatigue.curve.ultimate_strength'),
-    (('mean_stress = "goodman"', 'mean_stress = "morrow"',
+    (("exponent = -0.2", "exponent = 0.1"), "fatigue.curve.exponent must lie strictly between -1 and 0, got 0.1"),
+    (('ultimate_strength = 480.0', ''), 'fatigue.curve.ultimate_strength is missing: give the ultimate strength'),
+    (('mean_stress = "goodman"', 'mean_stress = "morrow"', 'ultimate_strength = 480.0', '',
       'unit = "flight"', 'unit = "flight"\nmethod = "strain_life"'),
      "fatigue.curve.ductility_coefficient is missing"),
-    (('kind = "basquin"', 'kind = "detail_category"\nreference_range = 71.0'), "fatigue.curve.slope is missing"),
+    (('kind = "basquin"', 'kind = "detail_category"\nreference_range = 71.0', 'strength_coefficient = 900.0', '',
+      'exponent = -0.2', '', 'mean_stress = "goodman"', 'mean_stress = "none"', 'ultimate_strength = 480.0', ''),
+     "fatigue.curve.slope is missing"),
+    (('mean_stress = "goodman"', 'mean_stress = "none"'), "fatigue.curve.ultimate_strength = 480.0 is not used"),
+    (('cycles = 1.0', 'cycles = 1.0\n[[fatigue.block]]\nfrom = "zero"\nto = "zero"\ncycles = 5.0'),
+     "fatigue.block[1] runs from a state to the same state"),
+    (('to = { "tension" = 1.0 }', 'to = { "tension" = "1.0" }'), 'fatigue.block[0].to."tension" must be a finite'),
+    (('scatter_factor = 3.0', 'scatter_factor = 0.5'), "fatigue.scatter_factor must be >= 1"),
+    (('unit = "flight"\n', ''), "fatigue.unit is missing"),
     (('unit = "flight"', 'unit = "flight"\nlife = 3'), "unknown key fatigue.life"),
     (('[fatigue.curve]', 'sequence = []\n[fatigue.curve]'), "fatigue.sequence must be a list"),
 ])
@@ -351,6 +363,7 @@ def test_bad_fatigue_input_is_one_line_naming_the_field(tmp_path, capsys, change
 def test_strain_life_needs_the_cyclic_curve(tmp_path, capsys):
     text = plate(BASQUIN.replace('unit = "flight"', 'unit = "flight"\nmethod = "strain_life"').replace(
         'mean_stress = "goodman"', 'mean_stress = "morrow"\nductility_coefficient = 0.3\nductility_exponent = -0.6')
+        .replace(f"ultimate_strength = {SU}", "")
         + '[[fatigue.block]]\nfrom = "zero"\nto = { "tension" = 1.0 }\ncycles = 1.0\n')
     path = tmp_path / "s.toml"
     path.write_text(text)
@@ -439,3 +452,196 @@ def test_the_search_answer_meets_the_fatigue_requirement_at_the_fine_level(tmp_p
     assert "Fatigue" in report and "Safe-life" in report
     if goal == "largest_opening":
         assert best["area_mm2"] > math.pi * 40.0 * 30.0  # it grew from the study's design, as far as the reserve let it
+
+
+def _blocks(*rows: tuple[str, str, float]) -> str:
+    return "".join(f'[[fatigue.block]]\nfrom = {a}\nto = {b}\ncycles = {n}\n' for a, b, n in rows)
+
+
+def test_check_json_is_strict_json_with_a_counted_sequence(tmp_path, capsys):
+    # JSON has no NaN or Infinity (RFC 8259): a sequence with more than 20 distinct cycles at the hot spot merges the
+    # rest into one row, whose mean is undefined
+    rng = np.random.default_rng(3)
+    (tmp_path / "seq.csv").write_text("tension\n" + "\n".join(f"{x:.3f}" for x in rng.uniform(0, 1, 300)) + "\n")
+    path = tmp_path / "s.toml"
+    path.write_text(plate(BASQUIN.replace("[fatigue.curve]", 'sequence = "seq.csv"\n[fatigue.curve]')))
+    assert main(["check", str(path), "--json"]) == 0
+    out = capsys.readouterr().out
+
+    def refuse(name):
+        raise AssertionError(f"{name} in the JSON")
+
+    d = json.loads(out, parse_constant=refuse)
+    assert len(d["fatigue"]["blocks"]) == 21 and d["fatigue"]["blocks"][-1]["mean_mpa"] is None
+
+
+def test_a_sequence_with_the_ground_air_ground_cycle_counts_it_whole():
+    # rainflow (ASTM E1049-85) of the flight ground, peak, trough, peak, ground counts one cycle from the ground to the
+    # peak and one peak-trough cycle: the same damage as those two blocks (Palmgren-Miner); the blocks "ground to
+    # 1g" and "gusts about 1g" would miss the larger ground-to-peak range. Tolerance 1e-9: the same stresses.
+    cases = ('[[load_case]]\nname = "steady"\nsigma_x = 30.0\n[[load_case]]\nname = "gust"\nsigma_x = 10.0\n'
+             '[[load_case]]\nname = "ground"\nsigma_x = -8.0\n')
+    fat = BASQUIN
+    seq = fat.replace("[fatigue.curve]", 'sequence = [{ "ground" = 1.0 }, { "steady" = 1.0, "gust" = 1.0 },'
+                      ' { "steady" = 1.0, "gust" = -1.0 }, { "steady" = 1.0, "gust" = 1.0 }, { "ground" = 1.0 }]\n'
+                      "[fatigue.curve]")
+    a = check(plate(seq, cases=cases)).result("fatigue")
+    b = check(plate(fat + _blocks(('{ "ground" = 1.0 }', '{ "steady" = 1.0, "gust" = 1.0 }', 1.0),
+                                  ('{ "steady" = 1.0, "gust" = -1.0 }', '{ "steady" = 1.0, "gust" = 1.0 }', 1.0)),
+                    cases=cases)).result("fatigue")
+    assert a.damage_per_unit == pytest.approx(b.damage_per_unit, rel=1e-9)
+    naive = check(plate(fat + _blocks(('{ "ground" = 1.0 }', '{ "steady" = 1.0 }', 1.0),
+                                      ('{ "steady" = 1.0, "gust" = -1.0 }', '{ "steady" = 1.0, "gust" = 1.0 }', 1.0)),
+                        cases=cases)).result("fatigue")
+    assert naive.damage_per_unit < 0.8 * b.damage_per_unit
+
+
+def test_a_sequence_finds_the_hot_spot_of_many_small_cycles():
+    # one cycle 0 -> tension and 300 shear cycles per unit: the shear cycles dominate the damage at 135 deg (Kirsch:
+    # hoop -4 tau sin 2t), not the tension peak at 90 deg; counted as a sequence the tool must find what the same
+    # loading in blocks gives (a sequence is only counted at screened points: this checks the screening).
+    # Tolerance 1 %: the blocks count each shear cycle about the tension-free state exactly as the sequence does.
+    cases = '[[load_case]]\nname = "tension"\nsigma_x = 50.0\n[[load_case]]\nname = "shear"\ntau_xy = 25.0\n'
+    states = ['{ "tension" = 1.0 }', '"zero"'] + ['{ "shear" = 1.0 }', '"zero"'] * 300
+    seq = BASQUIN.replace("[fatigue.curve]", f"sequence = [{', '.join(states)}]\n[fatigue.curve]")
+    a = check(plate(seq, cases=cases)).result("fatigue")
+    b = check(plate(BASQUIN + _blocks(('"zero"', '{ "tension" = 1.0 }', 1.0), ('"zero"', '{ "shear" = 1.0 }', 300.0)),
+                    cases=cases)).result("fatigue")
+    ang = math.degrees(math.atan2(a.hot_spot.y_mm - WIDTH / 2, a.hot_spot.x_mm - WIDTH / 2)) % 180.0
+    assert ang == pytest.approx(135.0, abs=2.0)
+    assert a.damage_per_unit == pytest.approx(b.damage_per_unit, rel=1e-2)
+    assert a.reserve_factor == pytest.approx(b.reserve_factor, rel=1e-2)
+
+
+def test_strain_life_through_the_pipeline_matches_a_hand_neuber_solution():
+    # Kirsch's 3 S (Heywood-corrected) at the edge, zero to S: Neuber's rule at first loading on the cyclic curve
+    # (sigma epsilon = sigma_e^2 / E, epsilon = sigma / E + (sigma / K')^(1/n')), the range on Masing's doubled curve,
+    # Morrow's strain-life equation for N (Dowling); solved here with scipy's brentq, independently of the tool's
+    # solvers. Tolerance 1 %: the standard level's peak (0.07 %) moves the life about ten times faster here.
+    from scipy.optimize import brentq
+
+    E, K, n = 70000.0, 700.0, 0.08
+    sf, b, ef, c = 900.0, -0.1, 0.3, -0.6
+    fat = f"""
+[fatigue]
+unit = "cycle"
+required_life = 1.0e5
+method = "strain_life"
+[fatigue.cyclic]
+strength_coefficient = {K}
+hardening_exponent = {n}
+[fatigue.curve]
+kind = "basquin"
+strength_coefficient = {sf}
+exponent = {b}
+ductility_coefficient = {ef}
+ductility_exponent = {c}
+mean_stress = "morrow"
+""" + _blocks(('"zero"', '{ "tension" = 1.0 }', 1.0))
+    S = 120.0
+    f = check(plate(fat, cases=f'[[load_case]]\nname = "tension"\nsigma_x = {S}\n')).result("fatigue")
+    se = heywood_kt(2 * HOLE / WIDTH) * S
+    s1 = brentq(lambda s: s * (s / E + (s / K) ** (1 / n)) - se * se / E, 1e-6, se)
+    ds = brentq(lambda d: d * (d / E + 2 * (d / (2 * K)) ** (1 / n)) - se * se / E, 1e-6, se)
+    de = ds / E + 2 * (ds / (2 * K)) ** (1 / n)
+    sm = s1 - ds / 2
+    n_hand = 0.5 * 10 ** brentq(lambda x: (sf - sm) / E * (10 ** x) ** b + ef * (10 ** x) ** c - de / 2, 0, 25)
+    assert f.blocks[0].local_max_mpa == pytest.approx(s1, rel=2e-3)
+    assert f.blocks[0].local_min_mpa == pytest.approx(s1 - ds, abs=0.5)
+    assert f.life == pytest.approx(n_hand, rel=1e-2)
+    # the loop's product holds: (max - min) x strain range = (elastic range)^2 / E, Neuber on the doubled curve
+    assert ds * de == pytest.approx(se * se / E, rel=1e-9)
+
+
+def test_an_endurance_limit_gives_no_damage_and_a_finite_reserve():
+    # below the endurance limit a cycle does no damage; the reserve is the factor that lifts the hot spot's
+    # equivalent amplitude to the endurance limit, where the damage jumps past the target (Goodman, by hand)
+    fat = BASQUIN.replace("ultimate_strength = 480.0", "ultimate_strength = 480.0\nendurance_limit = 120.0")
+    f = check(plate(fat + _blocks(('"zero"', '{ "tension" = 1.0 }', 1.0)))).result("fatigue")
+    assert f.damage_per_unit == 0.0 and f.life is None
+    local = heywood_kt(2 * HOLE / WIDTH) * S
+    # S_ar(F) = (F local / 2) / (1 - F local / (2 S_u)) = 120  =>  F = 240 / (local (1 + 240 / (2 S_u)))... by hand:
+    k = 120.0 / (local / 2 * (1 + 120.0 / SU))
+    assert f.reserve_factor == pytest.approx(k, rel=2e-3)  # the peak's 0.07 % and the root finder's step
+
+
+def test_min_fatigue_life_is_a_requirement():
+    fat = BASQUIN + _blocks(('"zero"', '{ "tension" = 1.0 }', 1.0))
+    res = check(plate(fat, extra="[constraints]\nmin_fatigue_life = 1.0e12\n"))
+    row = next(r for r in res.assessment.requirements if r.name == "fatigue_life")
+    assert not row.met and row.value == pytest.approx(res.result("fatigue").life / 3.0)
+
+
+def test_the_notch_rule_does_not_depend_on_the_static_stress_measure():
+    # the fatigue stress is the tangential stress whatever [measure] says; Kt for the notch rule is on the remote
+    # largest principal stress (pure shear: Kt = 4 at a circle, Kirsch)
+    fat = (BASQUIN.replace('scatter_factor = 3.0', 'scatter_factor = 3.0\nnotch = "peterson"\nnotch_constant = 2.0')
+           + _blocks(('"zero"', '{ "shear" = 1.0 }', 1.0)))
+    cases = '[[load_case]]\nname = "shear"\ntau_xy = 40.0\n'
+    a = check(plate(fat, cases=cases)).result("fatigue")
+    b = check(plate(fat, cases=cases).replace('accuracy = "standard"', 'accuracy = "standard"\nstress = "hoop"'))
+    b = b.result("fatigue")
+    assert a.reserve_factor == pytest.approx(b.reserve_factor, rel=1e-9)
+    assert a.hot_spot.kt == pytest.approx(4.0, rel=2e-3)  # Kirsch 4 tau; the 0.07 % peak and the width's 0.03 %
+
+
+def test_a_row_and_a_ring_are_assessed_on_every_edge_of_the_web():
+    fat = BASQUIN + _blocks(('"zero"', '{ "tension" = 1.0 }', 1.0))
+    row = plate(fat, cases='[[load_case]]\nname = "tension"\nsigma_y = 50.0\n').replace(
+        f"radius = {HOLE}", f"radius = {HOLE}\ncount = 3\npitch = 60.0")
+    f = check(row).result("fatigue")
+    assert f.hot_spot.opening.startswith("opening ")
+    # a ring: the cutout edge and the web at the ring's outer edge (critical planes) are both read; the hot spot's
+    # Kt is reported only on a free edge
+    ring = plate(fat) + '\n[reinforcement]\nkind = "ring"\nwidth = 8.0\nthickness = 2.0\n'
+    g = check(ring).result("fatigue")
+    assert g.hot_spot.opening in ("cutout edge", "web at the ring's outer edge") or "ring" in g.hot_spot.opening
+    assert (g.hot_spot.kt is None) == (g.hot_spot.plane_deg is not None)
+    # the ring lowers the edge's stress, so the reserve rises against the bare hole's
+    bare = check(plate(fat)).result("fatigue")
+    assert g.reserve_factor > bare.reserve_factor
+
+
+def test_masing_memory_carries_the_large_loop_through_a_small_one():
+    # Masing's rule with memory (Dowling): in 400 -> -400 -> 100 -> -100 -> 400 the branch from -400 to 100 is the
+    # doubled curve from -400's local stress, the small loop 100 -> -100 hangs on it, and after it closes the branch
+    # goes on from -400 as if it had not happened. Each branch by Neuber's rule on the doubled curve (neuber_range,
+    # itself checked above against its defining products); tolerance 1e-9: the same arithmetic.
+    E, c = 70000.0, Cyclic(700.0, 0.08)
+
+    def dsig(d):
+        return float(neuber_range(np.array([d]), E, c)[0][0])
+
+    s0 = float(neuber_first(np.array([400.0]), E, c)[0][0])
+    s1 = s0 - dsig(800.0)
+    s2 = s1 + dsig(500.0)
+    s3 = s2 - dsig(200.0)
+    cycles = sorted(masing_history(np.array([400.0, -400.0, 100.0, -100.0, 400.0]), E, c),
+                    key=lambda x: x.stress_max - x.stress_min)
+    assert cycles[0].stress_max == pytest.approx(s2, rel=1e-9)
+    assert cycles[0].stress_min == pytest.approx(s3, rel=1e-9)
+    assert cycles[1].stress_max == pytest.approx(s0, rel=1e-9)
+    assert cycles[1].stress_min == pytest.approx(s1, rel=1e-9)
+    # Masing: the doubled curve is the first-loading curve scaled by two, d_sigma(d_e) = 2 sigma(d_e / 2)
+    assert dsig(800.0) == pytest.approx(2 * float(neuber_first(np.array([400.0]), E, c)[0][0]), rel=1e-9)
+
+
+def test_a_detail_category_on_the_kirsch_range_by_hand():
+    # the local range at the edge is 3 S (Kirsch, Heywood-corrected); on a detail category of 100 MPa at 2e6 cycles
+    # with m1 = 3 above the knee (the bilinear form of EN 1993-1-9; the numbers invented) N = 2e6 (100 / (3 S))^3.
+    # Tolerance 0.3 %: the life goes as the stress cubed and the standard level's peak is within 0.07 %.
+    fat = """
+[fatigue]
+unit = "cycle"
+required_life = 1.0e5
+[fatigue.curve]
+kind = "detail_category"
+reference_range = 100.0
+slope = 3.0
+slope_after_knee = 5.0
+knee_cycles = 5.0e6
+cutoff_cycles = 1.0e8
+""" + _blocks(('"zero"', '{ "tension" = 1.0 }', 1.0))
+    f = check(plate(fat)).result("fatigue")
+    dr = heywood_kt(2 * HOLE / WIDTH) * S
+    assert f.life == pytest.approx(2e6 * (100.0 / dr) ** 3, rel=3e-3)

@@ -77,8 +77,15 @@ def _numbers(name: str, text: str) -> dict:
             row.update(buckling_load_factor=b.load_factor, buckling_error_estimate_pct=b.error_estimate_pct,
                        buckling_load_factor_unperforated=b.unperforated_factor)
         cases.append(row)
-    return {"peak_stress_mpa": ev.peak_stress_mpa, "kt": ev.kt, "error_estimate_pct": ev.error_estimate_pct,
-            "dofs": ev.dofs, "area_mm2": ev.area_mm2, "load_cases": cases}
+    out = {"peak_stress_mpa": ev.peak_stress_mpa, "kt": ev.kt, "error_estimate_pct": ev.error_estimate_pct,
+           "dofs": ev.dofs, "area_mm2": ev.area_mm2, "load_cases": cases}
+    fat = res.result("fatigue")
+    if fat is not None:
+        # stress-like figures only: the damage moves several times faster than a stress between meshers, and a
+        # symmetric outline's hot spot may sit at any of its mirror twins
+        out["fatigue"] = {"reserve_factor": fat.reserve_factor, "hot_spot_kt": fat.hot_spot.kt,
+                          "reserve_error_estimate_pct": fat.reserve_error_estimate_pct}
+    return out
 
 
 SAME_MESHER = (1e-6, 1e-6)  # relative on values, absolute on percentages: floating-point order only

@@ -143,11 +143,12 @@ class FatigueSettings:
         return None if self.cyclic is None else self.cyclic.yield_strength
 
 
-def _num(t: dict, key: str, where: str, *, default: Any = ..., positive: bool = False, negative: bool = False
-         ) -> Any:
+def _num(t: dict, key: str, where: str, *, default: Any = ..., positive: bool = False, negative: bool = False,
+         low: float | None = None, high: float | None = None, what: str = "") -> Any:
+    """A number of the table: ``where`` + ``key`` names it in every message; ``what`` says what it is when missing."""
     if key not in t:
         if default is ...:
-            raise StudyError(f"{where}{key} is missing")
+            raise StudyError(f"{where}{key} is missing" + (f": give {what}" if what else ""))
         return default
     v = t[key]
     if isinstance(v, bool) or not isinstance(v, (int, float)) or not math.isfinite(float(v)):
@@ -157,7 +158,16 @@ def _num(t: dict, key: str, where: str, *, default: Any = ..., positive: bool = 
         raise StudyError(f"{where}{key} must be > 0, got {v!r}")
     if negative and v >= 0:
         raise StudyError(f"{where}{key} must be < 0 (a fatigue curve falls as the life grows), got {v!r}")
+    if low is not None and high is not None and not low < v < high:
+        raise StudyError(f"{where}{key} must lie strictly between {low:g} and {high:g}, got {v!r}")
     return v
+
+
+def _value(v: Any, path: str) -> float:
+    """A number written inside an array or an inline table (``path`` its full name)."""
+    if isinstance(v, bool) or not isinstance(v, (int, float)) or not math.isfinite(float(v)):
+        raise StudyError(f"{path} must be a finite number, got {v!r}")
+    return float(v)
 
 
 def _choice(t: dict, key: str, where: str, choices: tuple[str, ...], default: str) -> str:
@@ -177,6 +187,13 @@ def _unknown(t: dict, allowed: tuple[str, ...], where: str) -> None:
             raise StudyError(f"unknown key {where}{k}{tip}; allowed: {', '.join(allowed)}")
 
 
+def _unused(t: dict, keys: tuple[str, ...], where: str, why: str) -> None:
+    """Refuse keys the chosen kind or correction does not read (a value the user thinks applies and does not)."""
+    for k in keys:
+        if k in t:
+            raise StudyError(f"{where}{k} = {t[k]!r} is not used {why}: remove it, or choose what uses it")
+
+
 def _state(v: Any, where: str, cases: list[str]) -> State:
     if v == "zero":
         return State()
@@ -188,7 +205,7 @@ def _state(v: Any, where: str, cases: list[str]) -> State:
         if name not in cases:
             raise StudyError(f"{where} names load case {name!r}, which the study does not have; its load cases are"
                              f" {', '.join(repr(c) for c in cases)}")
-        out.append((name, _num({"f": f}, "f", f"{where}.{name} ")))
+        out.append((name, _value(f, f'{where}."{name}"')))
     return State(tuple(out))
 
 
@@ -201,44 +218,60 @@ def _curve(t: Any, method: str) -> Curve:
     kind = _choice(t, "kind", w, CURVE_KINDS, "basquin")
     means = STRAIN_MEAN if method == "strain_life" else MEAN_STRESS
     mean = _choice(t, "mean_stress", w, means, "none")
+    if kind == "detail_category" and mean != "none":
+        raise StudyError(f'{w}mean_stress = "{mean}" with kind = "detail_category": a detail category is a curve of'
+                         ' stress ranges with no mean-stress correction; give mean_stress = "none"')
     kw: dict[str, Any] = {"kind": kind, "mean_stress": mean}
     if kind == "basquin" or mean == "morrow" or method == "strain_life":
-        kw["strength_coefficient"] = _num(t, "strength_coefficient", w, positive=True)
+        kw["strength_coefficient"] = _num(t, "strength_coefficient", w, positive=True,
+                                          what="sigma'_f in MPa, from approved data")
     if kind == "basquin" or method == "strain_life":
-        kw["exponent"] = _num(t, "exponent", w, negative=True)
+        kw["exponent"] = _num(t, "exponent", w, low=-1.0, high=0.0, what="Basquin's b, between -1 and 0")
+    if kind != "basquin":
+        _unused(t, ("exponent",) if mean != "morrow" else (), w, f'by kind = "{kind}"')
     if kind == "points":
         pts = t.get("points")
         if not isinstance(pts, list) or len(pts) < 2 or not all(isinstance(p, list) and len(p) == 2 for p in pts):
             raise StudyError(f"fatigue.curve.points must be at least two [cycles, amplitude] pairs, got {pts!r}")
-        pp = [(_num({"v": p[0]}, "v", f"{w}points[{i}][0] ", positive=True),
-               _num({"v": p[1]}, "v", f"{w}points[{i}][1] ", positive=True)) for i, p in enumerate(pts)]
-        if any(b[0] <= a[0] or b[1] > a[1] for a, b in zip(pp, pp[1:])):
-            raise StudyError("fatigue.curve.points must be in order of rising cycles with amplitudes that do not rise,"
-                             f" got {pts!r}")
+        pp = [(_value(p[0], f"{w}points[{i}][0]"), _value(p[1], f"{w}points[{i}][1]")) for i, p in enumerate(pts)]
+        if any(a <= 0 or b <= 0 for a, b in pp):
+            raise StudyError(f"fatigue.curve.points must hold positive cycles and amplitudes, got {pts!r}")
+        if any(b[0] <= a[0] or b[1] >= a[1] for a, b in zip(pp, pp[1:])):
+            raise StudyError("fatigue.curve.points must be in order of rising cycles with falling amplitudes (a flat"
+                             " step would give an infinite or a zero life), got " + repr(pts))
         kw["points"] = tuple(pp)
         kw["beyond_last"] = _choice(t, "beyond_last", w, BEYOND_LAST, "constant")
+    else:
+        _unused(t, ("points", "beyond_last"), w, f'by kind = "{kind}"')
+    detail = ("reference_range", "reference_cycles", "slope", "slope_after_knee", "knee_cycles", "cutoff_cycles")
     if kind == "detail_category":
-        kw["reference_range"] = _num(t, "reference_range", w, positive=True)
+        kw["reference_range"] = _num(t, "reference_range", w, positive=True,
+                                     what="the detail's stress range in MPa at reference_cycles, from the code")
         kw["reference_cycles"] = _num(t, "reference_cycles", w, default=2e6, positive=True)
-        for k in ("slope", "slope_after_knee", "knee_cycles", "cutoff_cycles"):
+        for k in detail[2:]:
             if k not in t:
                 raise StudyError(f"{w}{k} is missing: a detail category needs its slopes m1 (slope) and m2"
                                  " (slope_after_knee) and its knee and cut-off cycles (knee_cycles, cutoff_cycles)"
                                  " from the applicable code")
             kw[k] = _num(t, k, w, positive=True)
-        if not kw["reference_cycles"] <= kw["knee_cycles"] < kw["cutoff_cycles"] and \
-                not kw["knee_cycles"] < kw["cutoff_cycles"]:
-            raise StudyError(f"{w}knee_cycles ({kw['knee_cycles']:g}) must be below cutoff_cycles"
-                             f" ({kw['cutoff_cycles']:g})")
+        if not kw["reference_cycles"] <= kw["knee_cycles"] < kw["cutoff_cycles"]:
+            raise StudyError(f"{w}reference_cycles ({kw['reference_cycles']:g}), knee_cycles ({kw['knee_cycles']:g})"
+                             f" and cutoff_cycles ({kw['cutoff_cycles']:g}) must rise in that order (the reference"
+                             " point lies on the first slope)")
+    else:
+        _unused(t, detail, w, f'by kind = "{kind}"')
     kw["endurance_limit"] = _num(t, "endurance_limit", w, default=None, positive=True)
     if mean in ("goodman", "gerber"):
-        if "ultimate_strength" not in t:
-            raise StudyError(f'{w}mean_stress = "{mean}" needs {w}ultimate_strength (MPa, from approved data)')
-        kw["ultimate_strength"] = _num(t, "ultimate_strength", w, positive=True)
+        kw["ultimate_strength"] = _num(t, "ultimate_strength", w, positive=True,
+                                       what=f'the ultimate strength in MPa (mean_stress = "{mean}" divides by it)')
+    else:
+        _unused(t, ("ultimate_strength",), w, f'with mean_stress = "{mean}" (Goodman and Gerber read it)')
     if mean == "walker":
-        kw["walker_exponent"] = _num(t, "walker_exponent", w)
+        kw["walker_exponent"] = _num(t, "walker_exponent", w, what="Walker's gamma in (0, 1]")
         if not 0.0 < kw["walker_exponent"] <= 1.0:
             raise StudyError(f"{w}walker_exponent must lie in (0, 1], got {kw['walker_exponent']!r}")
+    else:
+        _unused(t, ("walker_exponent",), w, f'with mean_stress = "{mean}"')
     kw["surface_factor"] = _num(t, "surface_factor", w, default=1.0, positive=True)
     if kw["surface_factor"] > 1.0:
         raise StudyError(f"{w}surface_factor must lie in (0, 1] (a finish factor lowers the curve), got"
@@ -253,10 +286,12 @@ def _curve(t: Any, method: str) -> Curve:
                 raise StudyError(f'{w}{k} is missing: fatigue.method = "strain_life" needs the Coffin-Manson constants'
                                  " ductility_coefficient (epsilon'_f) and ductility_exponent (c)")
         kw["ductility_coefficient"] = _num(t, "ductility_coefficient", w, positive=True)
-        kw["ductility_exponent"] = _num(t, "ductility_exponent", w, negative=True)
+        kw["ductility_exponent"] = _num(t, "ductility_exponent", w, low=-1.0, high=0.0)
         if kw["surface_factor"] != 1.0:
             raise StudyError(f"{w}surface_factor = {kw['surface_factor']!r} applies to the stress-life method; the"
                              " strain-life constants should already describe the edge as made")
+        if kw["endurance_limit"] is not None:
+            raise StudyError(f"{w}endurance_limit applies to the stress-life method; the strain-life curve has none")
     else:
         for k in ("ductility_coefficient", "ductility_exponent"):
             if k in t:
@@ -270,8 +305,10 @@ def _sequence(v: Any, cases: list[str], base: Path | None) -> tuple[tuple[State,
     if isinstance(v, str) and v != "zero":
         path = Path(v) if base is None or Path(v).is_absolute() else base / v
         try:
-            with open(path, newline="") as fh:
+            with open(path, newline="", encoding="utf-8-sig") as fh:  # -sig: the byte-order mark of a CSV export
                 rows = list(csv.reader(fh))
+        except UnicodeDecodeError as err:
+            raise StudyError(f"{w} = {v!r}: the file is not UTF-8 text (save it as CSV, UTF-8)") from err
         except OSError as err:
             raise StudyError(f"{w} = {v!r}: the file cannot be read ({err.strerror or err})") from err
         rows = [r for r in rows if r and not r[0].lstrip().startswith("#")]
@@ -282,6 +319,9 @@ def _sequence(v: Any, cases: list[str], base: Path | None) -> tuple[tuple[State,
             if h not in cases:
                 raise StudyError(f"{w} = {v!r}: column {h!r} is not a load case of the study"
                                  f" ({', '.join(repr(c) for c in cases)})")
+        dup = sorted({h for h in head if head.count(h) > 1})
+        if dup:
+            raise StudyError(f"{w} = {v!r}: column {dup[0]!r} is given more than once; each load case once")
         states = []
         for i, r in enumerate(rows[1:], start=2):
             try:
@@ -303,7 +343,9 @@ def parse_fatigue(t: dict, parts: dict) -> FatigueSettings:
     w = "fatigue."
     _unknown(t, KEYS, w)
     cases = [c.name for c in parts["load_cases"]]
-    unit = t.get("unit", "cycle")
+    if "unit" not in t:
+        raise StudyError(f'{w}unit is missing: name the unit the spectrum repeats in ("flight", "hour", "voyage")')
+    unit = t["unit"]
     if not isinstance(unit, str) or not unit.strip():
         raise StudyError(f'{w}unit must name the unit the spectrum repeats in ("flight", "hour", "voyage"), got'
                          f" {unit!r}")
@@ -326,8 +368,8 @@ def parse_fatigue(t: dict, parts: dict) -> FatigueSettings:
             raise StudyError(f"{w}cyclic must be a table with strength_coefficient (K', MPa) and hardening_exponent"
                              f" (n'), got {c!r}")
         _unknown(c, ("strength_coefficient", "hardening_exponent"), w + "cyclic.")
-        cyclic = Cyclic(_num(c, "strength_coefficient", w + "cyclic.", positive=True),
-                        _num(c, "hardening_exponent", w + "cyclic.", positive=True))
+        cyclic = Cyclic(_num(c, "strength_coefficient", w + "cyclic.", positive=True, what="K' in MPa"),
+                        _num(c, "hardening_exponent", w + "cyclic.", low=0.0, high=1.0, what="n' in (0, 1)"))
     if method == "strain_life" and cyclic is None:
         raise StudyError(f'{w}method = "strain_life" needs [fatigue.cyclic] with strength_coefficient (K\', MPa) and'
                          " hardening_exponent (n') of the cyclic stress-strain curve")
@@ -344,14 +386,19 @@ def parse_fatigue(t: dict, parts: dict) -> FatigueSettings:
             _unknown(b, ("name", "from", "to", "cycles"), wb)
             for k in ("from", "to", "cycles"):
                 if k not in b:
-                    raise StudyError(f"{wb}{k} is missing")
+                    raise StudyError(f"{wb}{k} is missing: a block is cycles per {unit} from one load state to"
+                                     ' another ("zero" or a table of load-case factors)')
             cyc = _num(b, "cycles", wb)
             if cyc <= 0:
                 raise StudyError(f"{wb}cycles must be > 0 (cycles per {unit}), got {cyc!r}")
             name = b.get("name", f"block {i + 1}")
             if not isinstance(name, str):
                 raise StudyError(f"{wb}name must be a string, got {name!r}")
-            out.append(Block(name, _state(b["from"], wb + "from", cases), _state(b["to"], wb + "to", cases), cyc))
+            blk = Block(name, _state(b["from"], wb + "from", cases), _state(b["to"], wb + "to", cases), cyc)
+            if blk.start.vector(cases).tolist() == blk.end.vector(cases).tolist():
+                raise StudyError(f"{w}block[{i}] runs from a state to the same state ({blk.start.text}): a block needs"
+                                 " a range; give two different states")
+            out.append(blk)
         blocks = tuple(out)
     sequence: tuple[State, ...] = ()
     source = ""
@@ -365,47 +412,64 @@ def parse_fatigue(t: dict, parts: dict) -> FatigueSettings:
     if blocks and sequence:
         raise StudyError(f"[fatigue] has both [[fatigue.block]] and {w}sequence: give one (blocks of constant-"
                          "amplitude cycles, or a sequence counted by rainflow)")
+    scatter = _num(t, "scatter_factor", w, default=1.0, positive=True)
+    if scatter < 1.0:
+        raise StudyError(f"{w}scatter_factor must be >= 1 (the factor on the life the curve must give), got"
+                         f" {scatter!r}")
     cons = parts.get("constraints", {})
+    min_reserve = cons.get("min_fatigue_reserve", 1.0)
+    if min_reserve < 1.0:
+        raise StudyError(f"constraints.min_fatigue_reserve must be >= 1 (a reserve below 1 misses the required life),"
+                         f" got {min_reserve!r}")
     return FatigueSettings(
-        unit=unit.strip(), required_life=_num(t, "required_life", w, positive=True),
-        scatter_factor=_num(t, "scatter_factor", w, default=1.0, positive=True), method=method, notch=notch,
+        unit=unit.strip(), required_life=_num(t, "required_life", w, positive=True, what=f"the life in {unit}s"),
+        scatter_factor=scatter, method=method, notch=notch,
         notch_constant=const, curve=curve, cyclic=cyclic,
         cyclic_yield_strength=_num(t, "cyclic_yield_strength", w, default=None, positive=True), blocks=blocks,
-        sequence=sequence, sequence_source=source, min_reserve=max(1.0, cons.get("min_fatigue_reserve", 1.0)),
-        min_life=cons.get("min_fatigue_life"))
+        sequence=sequence, sequence_source=source, min_reserve=min_reserve, min_life=cons.get("min_fatigue_life"))
 
 
 # ----- the stress round every outline ------------------------------------------------------------------------------
+PLANES = 18  # critical planes every 10 degrees where the governing stress is not on a free edge
+
+
 @dataclass
 class Place:
-    """One outline the fatigue stress is read along: its points, the per-case values (``scalar`` (n, m) or a
-    tensor (3, n, m) for the signed principal), the radius of curvature at each point (inf where no notch)."""
+    """One line the fatigue stress is read along: its points, the per-case stress (n, m) (linear in the load: a
+    state is a factor-weighted sum), the radius of curvature at each point (inf where there is no notch), whether it
+    is a free edge (the notch rule applies), and for a critical plane its normal's angle (degrees from x)."""
 
     name: str
     xy: np.ndarray
     s: np.ndarray
     values: np.ndarray
-    tensor: bool
     radius: np.ndarray
     free_edge: bool
+    plane_deg: float | None = None
 
     def states(self, f: np.ndarray) -> np.ndarray:
         """The fatigue stress (n, k) of k states given as factors ``f`` (m, k)."""
-        if not self.tensor:
-            return self.values @ f
-        sx, sy, txy = (self.values[i] @ f for i in range(3))
-        c, r = 0.5 * (sx + sy), np.sqrt((0.5 * (sx - sy)) ** 2 + txy ** 2)
-        return np.where(np.abs(c + r) >= np.abs(c - r), c + r, c - r)
+        return self.values @ f
+
+    def at(self, i: int) -> Place:
+        return Place(self.name, self.xy[:, i:i + 1], self.s[i:i + 1], self.values[i:i + 1], self.radius[i:i + 1],
+                     self.free_edge, self.plane_deg)
 
 
-def _radius(cut: Any, xy: np.ndarray) -> np.ndarray:
+def _radius(cut: Any, xy: np.ndarray, cache: dict) -> np.ndarray:
+    """The outline's radius of curvature (mm, inf where straight) at each point, from the nearest sample of the
+    exact outline's dense sampling (``cache``: the search trees of one design's assessment, both levels)."""
     from scipy.spatial import cKDTree
 
     best = np.full(xy.shape[1], np.inf)
     dist = np.full(xy.shape[1], np.inf)
     for m in cut.members:
         smp = m.sampling
-        d, k = cKDTree(smp.points.T).query(xy.T)
+        key = ("fatigue outline tree", m.shape, m.center, m.rotation)
+        tree = cache.get(key)
+        if tree is None:
+            tree = cache[key] = cKDTree(smp.points.T)
+        d, k = tree.query(xy.T)
         curv = np.abs(smp.curvature[k])
         with np.errstate(divide="ignore"):
             r = np.where(curv > 0, 1.0 / curv, np.inf)
@@ -414,39 +478,54 @@ def _radius(cut: Any, xy: np.ndarray) -> np.ndarray:
     return best
 
 
-def places(design: Design, solution: Any, region: Any) -> list[Place]:
-    """Every outline of the solved design with its fatigue stress per load case."""
+def places(design: Design, solution: Any, region: Any, trees: dict | None = None) -> list[Place]:
+    """Every line of the web the solved design's fatigue is read along: each opening's edge (a free edge: the
+    signed tangential stress) and, with a ring, the web at its outer edge (not a free edge: the normal stress on
+    each of :data:`PLANES` critical planes, the worst plane taken). A flange's or a doubler's own stress is not
+    assessed (their own fatigue is outside this check)."""
     from holeshape.evaluate import mirror_to_full, opening_name
-    from holeshape.solve import member_stress
 
-    cut, el = design.cutout, design.study.material.elastic
+    cut = design.cutout
+    trees = {} if trees is None else trees
     out = []
     if len(solution.members) > 1:
         edges = [(opening_name(k), mirror_to_full(bs, region)) for k, bs in enumerate(solution.members)]
     else:
         edges = [("cutout edge", mirror_to_full(solution.cutout, region))]
     for name, bs in edges:
-        out.append(Place(name, bs.xy, bs.s, bs.hoop, False, _radius(cut, bs.xy), True))
+        out.append(Place(name, bs.xy, bs.s, bs.hoop, _radius(cut, bs.xy, trees), True))
     r = cut.reinforcement
-    if r is not None:
-        full = edges[0][1]
-        for loc in r.stress_locations(el.reference_modulus):
-            if loc.source == "interior_edge" and solution.interior_edge is not None:
-                bs = mirror_to_full(solution.interior_edge, region)
-                out.append(Place(loc.name, bs.xy, bs.s, bs.sigma, True, np.full(bs.s.size, np.inf), False))
-            elif loc.source == "cutout_scaled":
-                out.append(Place(loc.name, full.xy, full.s, full.hoop * loc.factor, False, out[0].radius, True))
-            elif loc.source == "edge_member":
-                out.append(Place(loc.name, full.xy, full.s, member_stress(full, el, loc.modulus), False,
-                                 np.full(full.s.size, np.inf), False))
+    if r is not None and solution.interior_edge is not None:
+        loc = next((x for x in r.stress_locations(design.study.material.elastic.reference_modulus)
+                    if x.source == "interior_edge"), None)
+        if loc is not None:
+            bs = mirror_to_full(solution.interior_edge, region)
+            sx, sy, txy = bs.sigma
+            for k in range(PLANES):
+                a = math.radians(180.0 * k / PLANES)
+                c, sn = math.cos(a), math.sin(a)
+                out.append(Place(loc.name, bs.xy, bs.s, sx * c * c + sy * sn * sn + 2 * txy * c * sn,
+                                 np.full(bs.s.size, np.inf), False, 180.0 * k / PLANES))
     return out
+
+
+def nominal_stress(design: Design) -> np.ndarray:
+    """Each load case's nominal stress for the notch rule: the largest magnitude of the remote principal stresses
+    (for a beam case, of the beam-theory stress at the opening's centre), whatever ``[measure] stress`` says."""
+    from holeshape.evaluate import reference_stress
+    from holeshape.solve import load_fields
+
+    st = design.study
+    fields = load_fields(st.panel, st.load_cases)
+    return np.array([reference_stress(lc, "max_principal", fields[j], design.cutout.center, st.panel)
+                     for j, lc in enumerate(st.load_cases)])
 
 
 def notch_scaled(p: Place, settings: FatigueSettings, refs: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """(per-case values with the notch effect, per-case local Kt (n, m), q (n,)) of a place (module docstring)."""
-    n = p.values.shape[-2]
-    if p.tensor or not p.free_edge:
-        return p.values, np.ones((n, len(refs))), np.ones(n)
+    n = p.values.shape[0]
+    if not p.free_edge:
+        return p.values, np.full((n, len(refs)), np.nan), np.ones(n)
     q = notch_sensitivity(settings.notch, settings.notch_constant, p.radius)
     kt = np.abs(p.values) / np.where(refs > 0, refs, np.inf)[None, :]
     if settings.notch == "none":
@@ -457,22 +536,28 @@ def notch_scaled(p: Place, settings: FatigueSettings, refs: np.ndarray) -> tuple
 
 
 # ----- the assessment -----------------------------------------------------------------------------------------------
+def _clean(v: float | None) -> float | None:
+    """A number for the JSON: None for an undefined or infinite one (the text says why)."""
+    return None if v is None or not math.isfinite(v) else float(v)
+
+
 @dataclass(frozen=True)
 class BlockResult:
-    """One block (or, for a sequence, one counted cycle of the hot spot) at the hot spot (MPa, cycles)."""
+    """One block (or, for a sequence, one counted cycle of the hot spot) at the hot spot (MPa, cycles): the local
+    stresses the damage is computed from (for strain-life the notch root's stresses by Neuber's rule)."""
 
     name: str
     cycles_per_unit: float
-    local_max_mpa: float
-    local_min_mpa: float
-    range_mpa: float
-    mean_mpa: float
+    local_max_mpa: float | None
+    local_min_mpa: float | None
+    range_mpa: float | None
+    mean_mpa: float | None
     equivalent_amplitude_mpa: float | None
-    cycles_to_failure: float | None
-    damage_per_unit: float
+    cycles_to_failure: float | None  # None: the cycle does no damage
+    damage_per_unit: float | None  # None: the cycle fails at once (its mean reaches the strength)
 
     def to_dict(self) -> dict:
-        return dict(self.__dict__)
+        return {k: (_clean(v) if isinstance(v, float) else v) for k, v in self.__dict__.items()}
 
 
 @dataclass(frozen=True)
@@ -481,36 +566,52 @@ class HotSpot:
     y_mm: float
     opening: str
     radius_mm: float | None
-    kt: float
-    q: float
-    kf: float
+    kt: float | None  # None where the point is not on a free edge (no notch)
+    q: float | None
+    kf: float | None
     load_case: str
+    plane_deg: float | None = None  # the critical plane's normal, away from a free edge
 
 
 @dataclass(frozen=True)
 class Spectrum:
-    """What one solution level gives: damage per unit at the hot spot, the reserve, the hot spot and its blocks."""
+    """What one solution level gives: damage per unit at the hot spot, the reserve and where it governs, the hot
+    spot and its blocks."""
 
     damage: float
     reserve: float | None
+    reserve_at: tuple[float, float, str] | None
     hot: HotSpot
     blocks: tuple[BlockResult, ...]
     elastic_range_mpa: float
+    elastic_max_mpa: float
     tensile: bool
-    outline: tuple[str, np.ndarray, np.ndarray] | None = None  # (place, arc length, damage per unit) of the hot one
+    # (place, arc length, damage per unit, 'line' or 'points', the hot spot's arc length) along the hot spot's line
+    outline: tuple[str, np.ndarray, np.ndarray, str, float] | None = None
+
+
+def _spread(score: np.ndarray, k: int, gap: int) -> list[int]:
+    """The indices of the ``k`` largest scores at least ``gap`` samples apart (separate peaks along a line)."""
+    out: list[int] = []
+    for i in np.argsort(-score):
+        if len(out) == k:
+            break
+        if all(abs(int(i) - j) >= gap for j in out):
+            out.append(int(i))
+    return out
 
 
 def _assess(design: Design, settings: FatigueSettings, solution: Any, region: Any,
-            candidates: int = CANDIDATES) -> Spectrum:
-    ev = design.evaluation
-    names = [c.name for c in design.study.load_cases]
-    refs = np.array([ev.case(n).reference_stress_mpa for n in names])
+            candidates: int = CANDIDATES, trees: dict | None = None) -> Spectrum:
+    ev_names = [c.name for c in design.study.load_cases]
+    refs = nominal_stress(design)
     modulus = design.study.material.elastic.reference_modulus
-    ps = places(design, solution, region)
+    ps = places(design, solution, region, trees)
     scaled = [notch_scaled(p, settings, refs) for p in ps]
     sl = settings.method == "strain_life"
-    work = [Place(p.name, p.xy, p.s, v, p.tensor, p.radius, p.free_edge) for p, (v, _, _) in zip(ps, scaled)]
-
+    work = [Place(p.name, p.xy, p.s, v, p.radius, p.free_edge, p.plane_deg) for p, (v, _, _) in zip(ps, scaled)]
+    names = ev_names
+    tensile = True
     if settings.blocks:
         fa = np.stack([b.start.vector(names) for b in settings.blocks], axis=1)  # (m, nb)
         fb = np.stack([b.end.vector(names) for b in settings.blocks], axis=1)
@@ -520,66 +621,76 @@ def _assess(design: Design, settings: FatigueSettings, solution: Any, region: An
         def per_point(f: float) -> list[np.ndarray]:
             out = []
             for a, b in stress:
-                hi, lo = np.maximum(a, b) * f, np.minimum(a, b) * f
                 if sl:
-                    out.append(_strain_blocks(settings, modulus, a * f, b * f, cyc))
+                    out.append(_strain_blocks(settings, modulus, a * f, b * f, cyc)[0])
                 else:
-                    out.append(cycle_damage(settings.curve, hi, lo, cyc[None, :])[2])
+                    out.append(cycle_damage(settings.curve, np.maximum(a, b) * f, np.minimum(a, b) * f,
+                                            cyc[None, :])[2])
             return out  # each (n, nb)
 
-        def damage_at(f: float) -> float:
-            return max(float(np.max(d.sum(axis=1))) for d in per_point(f))
+        def totals_at(f: float) -> list[np.ndarray]:
+            return [d.sum(axis=1) for d in per_point(f)]
 
-        dmg = per_point(1.0)
-        totals = [d.sum(axis=1) for d in dmg]
+        def damage_at(f: float) -> float:
+            return max(float(np.max(t)) for t in totals_at(f))
+
+        totals = totals_at(1.0)
         k, i = _hot(totals, [np.max(np.abs(a - b), axis=1) for a, b in stress])
         a, b = stress[k][0][i], stress[k][1][i]
         hi, lo = np.maximum(a, b), np.minimum(a, b)
         if sl:
-            d = dmg[k][i]
+            d, smax, smin = (x[0] for x in _strain_blocks(settings, modulus, a[None, :], b[None, :], cyc))
             nf = np.where(d > 0, cyc / np.where(d > 0, d, 1.0), np.inf)
-            amp = np.full(len(cyc), np.nan)
+            blocks = tuple(BlockResult(bk.name, bk.cycles, float(smax[j]), float(smin[j]), float(smax[j] - smin[j]),
+                                       float(0.5 * (smax[j] + smin[j])), None,
+                                       None if not np.isfinite(nf[j]) else float(nf[j]), float(d[j]))
+                           for j, bk in enumerate(settings.blocks))
         else:
             amp, nf, d = cycle_damage(settings.curve, hi, lo, cyc)
-        blocks = tuple(BlockResult(bk.name, bk.cycles, float(hi[j]), float(lo[j]), float(hi[j] - lo[j]),
-                                   float(0.5 * (hi[j] + lo[j])), None if sl else float(amp[j]),
-                                   None if not np.isfinite(nf[j]) else float(nf[j]), float(d[j]))
-                       for j, bk in enumerate(settings.blocks))
-        dom = int(np.argmax(d)) if np.any(d > 0) else int(np.argmax(hi - lo))
+            blocks = tuple(BlockResult(bk.name, bk.cycles, float(hi[j]), float(lo[j]), float(hi[j] - lo[j]),
+                                       float(0.5 * (hi[j] + lo[j])), float(amp[j]),
+                                       None if not np.isfinite(nf[j]) else float(nf[j]),
+                                       float(d[j]) if np.isfinite(d[j]) else None)
+                           for j, bk in enumerate(settings.blocks))
+        dom = int(np.argmax(np.where(np.isfinite(d), d, 1e300))) if np.any(d > 0) else int(np.argmax(hi - lo))
         delta = fb[:, dom] - fa[:, dom]
-        erange = float(np.max(hi - lo))
-        tensile = any(float(np.max(np.maximum(x, y))) > 0 for x, y in stress)
-        outline = (ps[k].name, ps[k].s, totals[k])
+        erange, emax = float(np.max(hi - lo)), float(np.max(hi))
+        if not sl and settings.curve.kind != "detail_category":
+            tensile = any(float(np.max(np.maximum(x, y))) > 0 for x, y in stress)
+        total = float(totals[k][i])
+        outline = (ps[k].name, ps[k].s, totals[k], "line", float(ps[k].s[i]))
     else:
-        f = np.stack([s.vector(names) for s in settings.sequence], axis=1)  # (m, K)
+        f = np.stack([st.vector(names) for st in settings.sequence], axis=1)  # (m, K)
+        f = f[:, _turning(f)]  # a state where no factor turns is a turning point of no combination
         cand: list[tuple[int, int]] = []
-        proxies = []
         for kk, p in enumerate(work):
-            hi, lo = _extremes(p, f)
-            proxy = cycle_damage(settings.curve, hi, lo, 1.0)[2] if not sl else hi - lo
-            proxy = np.where(np.isfinite(proxy), proxy, 1e300)
-            proxies.append((proxy, hi - lo))
-            top = np.argsort(-(proxy if np.any(proxy > 0) else hi - lo))[:candidates]
-            cand += [(kk, int(i)) for i in top]
-        hist = {c: _history(work[c[0]], c[1], f) for c in dict.fromkeys(cand)}
+            hi_p, lo_p, pairs = _screen(settings, p, f, sl)
+            big = cycle_damage(settings.curve, hi_p, lo_p, 1.0)[2] if not sl else hi_p - lo_p
+            big = np.where(np.isfinite(big), big, 1e300)
+            gap = max(1, p.values.shape[0] // 32)
+            half = max(1, candidates // 2)
+            cand += [(kk, i) for i in _spread(big if np.any(big > 0) else hi_p - lo_p, half, gap)]
+            cand += [(kk, i) for i in _spread(pairs, candidates - half, gap)]
+        hist = {c: work[c[0]].at(c[1]).states(f)[0] for c in dict.fromkeys(cand)}
         counted = {c: rainflow_cycles(closed_loop(h).tolist()) for c, h in hist.items()} if not sl else {}
+        arrays = {c: (np.array([x[0] for x in cy]), np.array([x[1] for x in cy]), np.array([x[2] for x in cy]))
+                  for c, cy in counted.items()}
 
         def dmg_of(c: tuple[int, int], fac: float) -> float:
             if sl:
                 assert settings.cyclic is not None
                 return strain_life_damage(settings.curve, modulus, masing_history(hist[c] * fac, modulus,
                                                                                   settings.cyclic))
-            cy = counted[c]
-            if not cy:
+            r, m, n = arrays[c]
+            if r.size == 0:
                 return 0.0
-            r = np.array([x[0] for x in cy]) * fac
-            m = np.array([x[1] for x in cy]) * fac
-            return float(np.sum(cycle_damage(settings.curve, m + r / 2, m - r / 2, np.array([x[2] for x in cy]))[2]))
+            return float(np.sum(cycle_damage(settings.curve, fac * (m + r / 2), fac * (m - r / 2), n)[2]))
 
         scores = {c: dmg_of(c, 1.0) for c in hist}
+        finite = [v for v in scores.values() if math.isfinite(v)]
         top_score = max(scores.values())
-        # the reserve is the largest damage's: the candidates within three decades of it at the spectrum's level
-        near = [c for c in hist if scores[c] >= 1e-3 * top_score] if top_score > 0 else list(hist)
+        # the reserve is the largest damage's: the candidates within three decades of the worst at the spectrum
+        near = [c for c in hist if scores[c] >= 1e-3 * top_score] if top_score > 0 and finite else list(hist)
 
         def damage_at(f: float) -> float:
             return max(dmg_of(c, f) for c in near)
@@ -588,24 +699,72 @@ def _assess(design: Design, settings: FatigueSettings, solution: Any, region: An
         k, i = best
         blocks = _sequence_blocks(settings, modulus, hist[best], counted.get(best))
         h = hist[best]
-        erange = float(np.ptp(h))
-        tensile = any(float(np.max(_extremes(p, f)[0])) > 0 for p in work)
+        erange, emax = float(np.ptp(h)), float(np.max(h))
+        if not sl:
+            tensile = any(float(np.max(_screen(settings, p, f, sl, pairs=False)[0])) > 0 for p in work) or \
+                settings.curve.kind == "detail_category"
         j0, j1 = int(np.argmax(h)), int(np.argmin(h))
         delta = f[:, j0] - f[:, j1]
-        outline = None
+        total = float(scores[best])
+        mine = [c for c in hist if c[0] == k]
+        outline = (ps[k].name, np.array([ps[k].s[c[1]] for c in mine]), np.array([scores[c] for c in mine]), "points",
+                   float(ps[k].s[i]))
     p = ps[k]
-    # the load case that contributes most to the hot spot's governing range: its Kt, q and Kf are the hot spot's
-    at = np.abs(p.values[:, i, :]).max(axis=0) if p.tensor else np.abs(p.values[i])
-    contrib = np.abs(delta) * at
-    jc = int(np.argmax(contrib))
+    at = np.abs(p.values[i])
+    jc = int(np.argmax(np.abs(delta) * at))  # the load case that contributes most to the governing range
     _, kts, qs = scaled[k]
-    kt, q = float(kts[i, jc]), float(qs[i])
-    kf = float(fatigue_factor(np.array(kt), np.array(q))) if p.free_edge and not p.tensor else kt
+    if p.free_edge:
+        kt, q = float(kts[i, jc]), float(qs[i])
+        kf: float | None = float(fatigue_factor(np.array(kt), np.array(q)))
+    else:
+        kt = q = kf = None  # type: ignore[assignment]
     r = float(p.radius[i]) if np.isfinite(p.radius[i]) else None
-    hot = HotSpot(float(p.xy[0, i]), float(p.xy[1, i]), p.name, r, kt, q, kf, names[jc])
-    total = float(sum(b.damage_per_unit for b in blocks)) if settings.blocks else float(scores[best])
+    hot = HotSpot(float(p.xy[0, i]), float(p.xy[1, i]), p.name, r, kt, q, kf, names[jc], p.plane_deg)
     reserve = reserve_factor(damage_at, settings.target_damage)
-    return Spectrum(total, reserve, hot, blocks, erange, tensile, outline if design.keep_fields else None)
+    where = None
+    if reserve is not None and settings.blocks:
+        tot = totals_at(reserve)
+        kr = max(range(len(tot)), key=lambda j: float(np.max(tot[j])))
+        ir = int(np.argmax(tot[kr]))
+        where = (float(ps[kr].xy[0, ir]), float(ps[kr].xy[1, ir]), ps[kr].name)
+    elif reserve is not None:
+        cr = max(near, key=lambda c: dmg_of(c, reserve))
+        where = (float(ps[cr[0]].xy[0, cr[1]]), float(ps[cr[0]].xy[1, cr[1]]), ps[cr[0]].name)
+    return Spectrum(total, reserve, where, hot, blocks, erange, emax, tensile,
+                    outline if design.keep_fields else None)
+
+
+def _turning(f: np.ndarray) -> np.ndarray:
+    """The states of a sequence (columns of ``f``) where at least one factor turns, and the first and last."""
+    k = f.shape[1]
+    if k < 3:
+        return np.arange(k)
+    d = np.diff(f, axis=1)
+    turn = np.any(d[:, :-1] * d[:, 1:] < 0, axis=0) | np.any((d[:, :-1] == 0) != (d[:, 1:] == 0), axis=0)
+    return np.flatnonzero(np.concatenate([[True], turn, [True]]))
+
+
+def _screen(settings: FatigueSettings, p: Place, f: np.ndarray, strain: bool, pairs: bool = True,
+            chunk: int = 2048) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Each point's extremes over the sequence, and the damage of its consecutive state pairs as half cycles (a
+    proxy that sees every excursion, however small; the extremes see the largest cycle, which rainflow always
+    counts). The two rank the points a sequence is counted at."""
+    n = p.values.shape[0]
+    hi, lo, dmg = np.full(n, -np.inf), np.full(n, np.inf), np.zeros(n)
+    prev = None
+    for s0 in range(0, f.shape[1], chunk):
+        v = p.states(f[:, s0:s0 + chunk])
+        hi, lo = np.maximum(hi, v.max(axis=1)), np.minimum(lo, v.min(axis=1))
+        if pairs:
+            w = v if prev is None else np.concatenate([prev, v], axis=1)
+            a, b = w[:, :-1], w[:, 1:]
+            if strain:
+                dmg += np.abs(b - a).sum(axis=1)
+            else:
+                d = cycle_damage(settings.curve, np.maximum(a, b), np.minimum(a, b), 0.5)[2]
+                dmg += np.where(np.isfinite(d), d, 1e300).sum(axis=1)
+            prev = v[:, -1:]
+    return hi, lo, dmg
 
 
 def _hot(totals: list[np.ndarray], ranges: list[np.ndarray]) -> tuple[int, int]:
@@ -615,25 +774,12 @@ def _hot(totals: list[np.ndarray], ranges: list[np.ndarray]) -> tuple[int, int]:
     return k, int(np.argmax(pick[k]))
 
 
-def _extremes(p: Place, f: np.ndarray, chunk: int = 4096) -> tuple[np.ndarray, np.ndarray]:
-    hi = np.full(p.values.shape[-2], -np.inf)
-    lo = np.full(p.values.shape[-2], np.inf)
-    for s in range(0, f.shape[1], chunk):
-        v = p.states(f[:, s:s + chunk])
-        hi, lo = np.maximum(hi, v.max(axis=1)), np.minimum(lo, v.min(axis=1))
-    return hi, lo
-
-
-def _history(p: Place, i: int, f: np.ndarray) -> np.ndarray:
-    one = Place(p.name, p.xy[:, i:i + 1], p.s[i:i + 1], p.values[..., i:i + 1, :], p.tensor, p.radius[i:i + 1],
-                p.free_edge)
-    return one.states(f)[0]
-
-
 def _strain_blocks(settings: FatigueSettings, modulus: float, a: np.ndarray, b: np.ndarray, cyc: np.ndarray
-                   ) -> np.ndarray:
-    """Damage (n, nb) of each block as its own constant-amplitude history: first loading along the cyclic curve
-    to the extreme of larger magnitude, then the stabilised loop on the doubled curve (Neuber's rule both)."""
+                   ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """(damage, local max, local min), each (n, nb), of each block as its own constant-amplitude history: first
+    loading along the cyclic curve to the extreme of larger magnitude, then the stabilised loop on the doubled curve
+    (Neuber's rule both). Blocks do not interact: a residual stress left by another block's larger excursion is not
+    carried (a sequence is followed with memory)."""
     assert settings.cyclic is not None
     big = np.where(np.abs(a) >= np.abs(b), a, b)
     other = np.where(np.abs(a) >= np.abs(b), b, a)
@@ -642,13 +788,15 @@ def _strain_blocks(settings: FatigueSettings, modulus: float, a: np.ndarray, b: 
     smax = np.where(big >= other, s1, s1 + ds)
     smin = smax - ds
     n = strain_life_cycles(settings.curve, modulus, 0.5 * de, smax, 0.5 * (smax + smin))
-    return np.where(np.isfinite(n), cyc / np.where(np.isfinite(n), n, 1.0), 0.0)
+    return np.where(np.isfinite(n), cyc / np.where(np.isfinite(n), n, 1.0), 0.0), smax, smin
 
 
 def _sequence_blocks(settings: FatigueSettings, modulus: float, h: np.ndarray,
                      counted: list[tuple[float, float, float]] | None) -> tuple[BlockResult, ...]:
     """The hot spot's counted cycles as blocks (alike cycles merged), largest damage first (at most 20 listed;
     the rest summed in one line)."""
+    from dataclasses import replace
+
     rows: dict[tuple[float, float], list[float]] = {}
     if settings.method == "strain_life":
         assert settings.cyclic is not None
@@ -672,16 +820,18 @@ def _sequence_blocks(settings: FatigueSettings, modulus: float, h: np.ndarray,
         a, nfs, ds = cycle_damage(settings.curve, his, los, counts)
         amps = [float(x) for x in a]
     out = [BlockResult("", float(c), float(hi), float(lo), float(hi - lo), float(0.5 * (hi + lo)), amp,
-                       float(nf) if math.isfinite(nf) else None, float(d))
+                       float(nf) if math.isfinite(nf) else None, float(d) if math.isfinite(d) else None)
            for c, hi, lo, amp, nf, d in zip(counts, his, los, amps, nfs, ds)]
-    out.sort(key=lambda b: (-b.damage_per_unit, -b.range_mpa))
-    named = [BlockResult(f"counted cycle {k + 1}", *list(b.to_dict().values())[1:]) for k, b in enumerate(out[:20])]
+    out.sort(key=lambda b: (-(math.inf if b.damage_per_unit is None else b.damage_per_unit), -(b.range_mpa or 0.0)))
+    named = [replace(b, name=f"counted cycle {k + 1}") for k, b in enumerate(out[:20])]
     if len(out) > 20:
         rest = out[20:]
-        named.append(BlockResult(f"{len(rest)} smaller counted cycles", sum(b.cycles_per_unit for b in rest),
-                                 max(b.local_max_mpa for b in rest), min(b.local_min_mpa for b in rest),
-                                 max(b.range_mpa for b in rest), math.nan, None, None,
-                                 sum(b.damage_per_unit for b in rest)))
+        d = [b.damage_per_unit for b in rest]
+        named.append(BlockResult(f"{len(rest)} smaller counted cycles (their largest max, smallest min, largest"
+                                 " range)", sum(b.cycles_per_unit for b in rest),
+                                 max(b.local_max_mpa or -math.inf for b in rest),
+                                 min(b.local_min_mpa or math.inf for b in rest), max(b.range_mpa or 0.0 for b in rest),
+                                 None, None, None, None if any(x is None for x in d) else float(sum(d))))  # type: ignore[arg-type]
     return tuple(named)
 
 
@@ -693,21 +843,22 @@ class FatigueResult(CheckResult):
     settings: FatigueSettings = field(repr=False)
     damage_per_unit: float
     life: float | None  # units; None: no damage
-    reserve_factor: float | None  # None: no damage at any factor up to the search's ceiling
+    reserve_factor: float | None  # None: the spectrum does not reach the required damage at any factor up to 1000
+    reserve_at: tuple[float, float, str] | None
     reserve_error_estimate_pct: float | None
     life_error_estimate_pct: float | None
     hot_spot: HotSpot
     blocks: tuple[BlockResult, ...]
     elastic_range_mpa: float
     tensile: bool
-    outline: tuple[str, np.ndarray, np.ndarray] | None = field(default=None, compare=False, repr=False)
+    outline: tuple[str, np.ndarray, np.ndarray, str, float] | None = field(default=None, compare=False, repr=False)
 
     def top_fields(self) -> dict:
-        return {"fatigue_life": self.life, "fatigue_reserve_factor": self.reserve_factor,
-                "fatigue_damage_per_unit": self.damage_per_unit}
+        return {"fatigue_life": _clean(self.life), "fatigue_reserve_factor": _clean(self.reserve_factor),
+                "fatigue_damage_per_unit": _clean(self.damage_per_unit)}
 
     def row_fields(self) -> dict:
-        return {"fatigue_reserve_factor": self.reserve_factor, "fatigue_life": self.life}
+        return {"fatigue_reserve_factor": _clean(self.reserve_factor), "fatigue_life": _clean(self.life)}
 
     def to_dict(self) -> dict:
         s = self.settings
@@ -715,85 +866,145 @@ class FatigueResult(CheckResult):
         return {"method": s.method, "notch": s.notch, "notch_constant_mm": s.notch_constant, "unit": s.unit,
                 "required_life": s.required_life, "scatter_factor": s.scatter_factor,
                 "curve": s.curve.description, "mean_stress": s.curve.mean_stress,
-                "hot_spot": {"x_mm": h.x_mm, "y_mm": h.y_mm, "opening": h.opening, "radius_mm": h.radius_mm,
-                             "kt": h.kt, "q": h.q, "kf": h.kf, "load_case": h.load_case},
+                "hot_spot": {"x_mm": h.x_mm, "y_mm": h.y_mm, "opening": h.opening, "radius_mm": _clean(h.radius_mm),
+                             "kt": h.kt, "q": h.q, "kf": h.kf, "load_case": h.load_case,
+                             "critical_plane_deg": h.plane_deg},
                 "blocks": [b.to_dict() for b in self.blocks],
-                "reserve_error_estimate_pct": self.reserve_error_estimate_pct,
-                "life_error_estimate_pct": self.life_error_estimate_pct,
-                "local_elastic_range_mpa": self.elastic_range_mpa}
+                "reserve_governed_at": None if self.reserve_at is None else
+                {"x_mm": self.reserve_at[0], "y_mm": self.reserve_at[1], "opening": self.reserve_at[2]},
+                "reserve_error_estimate_pct": _clean(self.reserve_error_estimate_pct),
+                "life_error_estimate_pct": _clean(self.life_error_estimate_pct),
+                "local_elastic_range_mpa": self.elastic_range_mpa,
+                "sequence_file": s.sequence_source or None}
 
     def section(self) -> Section:
         s, h = self.settings, self.hot_spot
         need = s.required_life * s.scatter_factor
-        life = "infinite (no damage)" if self.life is None else f"{self.life:.4g} {s.unit}s"
-        res = "no damage at any factor up to 1000" if self.reserve_factor is None else f"{self.reserve_factor:.3f}"
-        loading = ("blocks of constant-amplitude cycles per " + s.unit if s.blocks else
-                   f"load states per {s.unit}, rainflow counted (ASTM E1049-85) as a closed loop from the highest"
-                   " peak")
+        if self.life is None:
+            life = "infinite (no damage)"
+        elif self.life == 0:
+            life = "none: a cycle's mean stress reaches the strength its mean-stress correction divides by"
+        else:
+            life = f"{self.life:.4g} {s.unit}s"
+        res = ("not reached: the spectrum does not do the required damage at any factor up to 1000"
+               if self.reserve_factor is None else f"{self.reserve_factor:.3f}")
+        loading = ("blocks of constant-amplitude cycles per " + s.unit + ", each counted on its own (a block"
+                   " between two other blocks' extremes, such as ground to the peak gust, must be given as a block)"
+                   if s.blocks else
+                   f"load states per {s.unit}" + (f" from {s.sequence_source}" if s.sequence_source else "") +
+                   ", rainflow counted (ASTM E1049-85) as a closed loop from the highest peak")
+        where = "straight or no notch" if h.radius_mm is None else f"{h.radius_mm:.2f} mm"
+        notch_words = ("not on a free edge: the normal stress on the worst critical plane"
+                       f" ({h.plane_deg:g} deg from x), no notch factor" if h.kt is None else
+                       f"Kt {h.kt:.3f} ({h.load_case}), q {h.q:.3f}, Kf {h.kf:.3f}")
+        count = len(s.blocks) or len(s.sequence)
+        if s.blocks and count == 1:
+            loading = loading.replace("blocks of", "block of", 1)
+        cyc = "" if s.cyclic is None else (f" Cyclic curve K' = {s.cyclic.strength_coefficient:g} MPa, n' ="
+                                          f" {s.cyclic.hardening_exponent:g}.")
         paras = [
-            f"Safe-life fatigue by the {s.method.replace('_', '-')} method: {len(s.blocks) or len(s.sequence)}"
-            f" {loading}; Palmgren-Miner damage. Material curve: {s.curve.description}; mean-stress correction"
-            f" {s.curve.mean_stress}.",
-            f"Hot spot: {h.opening} at ({h.x_mm:.1f}, {h.y_mm:.1f}) mm, radius"
-            f" {'straight or no notch' if h.radius_mm is None else f'{h.radius_mm:.2f} mm'}; Kt {h.kt:.3f}"
-            f" ({h.load_case}), q {h.q:.3f}, Kf {h.kf:.3f}. Damage {self.damage_per_unit:.4g} per {s.unit}: life"
-            f" {life} against the required {s.required_life:g} x scatter {s.scatter_factor:g} = {need:g}; fatigue"
-            f" reserve factor {res} (the factor on every stress of the spectrum at which the life equals"
-            f" {need:g} {s.unit}s; at least {s.min_reserve:g} required).",
+            f"Safe-life fatigue by the {s.method.replace('_', '-')} method: {count} {loading}; Palmgren-Miner"
+            f" damage. Material curve (the user's): {s.curve.description}.{cyc}",
+            f"Hot spot: {h.opening} at ({h.x_mm:.1f}, {h.y_mm:.1f}) mm, radius {where}; {notch_words}. Damage"
+            f" {self.damage_per_unit:.4g} per {s.unit}: life {life} against the required {s.required_life:g} x"
+            f" scatter {s.scatter_factor:g} = {need:g}; fatigue reserve factor {res} (the factor on every stress of"
+            f" the spectrum at which the life equals {need:g} {s.unit}s; at least {s.min_reserve:g} required)"
+            + ("" if self.reserve_at is None or (abs(self.reserve_at[0] - h.x_mm) < 0.5 and
+                                                 abs(self.reserve_at[1] - h.y_mm) < 0.5) else
+               f", governed at ({self.reserve_at[0]:.1f}, {self.reserve_at[1]:.1f}) mm on the {self.reserve_at[2]}")
+            + ".",
             "Notch rule: " + ("none, Kf = Kt (the elastic stress itself, the conservative choice)" if s.notch == "none"
                               else f"{s.notch} (constant {s.notch_constant:g} mm), Kf = 1 + q (Kt - 1); each load"
                               " case's stress at a point of a free edge is scaled by Kf / Kt of that case at that"
-                              " point, then the states are combined") + ". On a free edge the fatigue stress is the"
-            " signed tangential stress; at a ring's outer edge (the web, not a free edge) the signed principal stress"
-            " of largest magnitude; in a flange its axial stress.",
+                              " point (Kt on the case's largest remote principal stress), then the states are"
+                              " combined") + ". On a free edge the fatigue stress is the signed tangential stress;"
+            " at a ring's outer edge (the web, not a free edge) the normal stress on the worst of 18 critical planes."
+            " A flange's or a doubler's own fatigue is not assessed.",
         ]
         if self.reserve_error_estimate_pct is not None:
-            paras.append(f"Mesh error estimate of the reserve {self.reserve_error_estimate_pct:.2g} % and of the life"
-                         f" {self.life_error_estimate_pct or 0:.2g} % (the same assessment on the second mesh level;"
-                         " a life moves several times faster than the stress).")
+            paras.append(f"Mesh error estimate of the reserve {self.reserve_error_estimate_pct:.2g} %"
+                         + ("" if self.life_error_estimate_pct is None else
+                            f" and of the life {self.life_error_estimate_pct:.2g} %")
+                         + " (the same assessment on the second mesh level; a life moves several times faster than"
+                         " the stress).")
         if not self.tensile:
             paras.append("No cycle of the spectrum is tensile anywhere on the outlines: no fatigue damage (a cycle"
-                         " entirely in compression does none here).")
+                         " entirely in compression does none on an amplitude curve).")
+        if s.curve.kind == "detail_category":
+            paras.append("The detail category is applied to the local stress at the edge (the notch stress, Kt"
+                         " included). A code category that already includes the hole's effect is meant for the"
+                         " nominal or net-section stress and must not be used with this local stress.")
+        if s.method == "stress_life" and s.yield_limit is None:
+            paras.append("Local yielding is not checked: give fatigue.cyclic_yield_strength (or [fatigue.cyclic]) to"
+                         " be warned when the notch root yields.")
         paras.append(CAUTION)
+        warn = self.reserve_factor is not None and self.reserve_factor < s.min_reserve
+        if warn:
+            paras.insert(0, f"The fatigue reserve factor {self.reserve_factor:.3f} is below the required"
+                            f" {s.min_reserve:g}: the life the curve gives ({life}) is short of {need:g} {s.unit}s.")
+        c = s.curve
+        inputs = [("unit", s.unit), ("required life", f"{s.required_life:g} {s.unit}s"),
+                  ("scatter factor on the life", f"{s.scatter_factor:g}"), ("method", s.method.replace("_", "-")),
+                  ("notch rule", s.notch if s.notch_constant is None else f"{s.notch}, {s.notch_constant:g} mm"),
+                  ("curve kind", c.kind.replace("_", " ")), ("mean-stress correction", c.mean_stress)]
+        if c.points:
+            inputs.append(("curve points (N, S_a MPa)", "; ".join(f"{n:g}, {a:g}" for n, a in c.points)))
+        if s.cyclic_yield_strength is not None:
+            inputs.append(("cyclic yield stress", f"{s.cyclic_yield_strength:g} MPa"))
+        if s.min_life is not None:
+            inputs.append(("least life / scatter", f"{s.min_life:g} {s.unit}s"))
+        inputs_table = Table((("what", "fatigue input"), ("value", "value")),
+                             tuple({"what": a, "value": b} for a, b in inputs))
         spec = Table((("name", "block"), ("from", "from"), ("to", "to"), ("cycles", f"cycles per {s.unit}")),
                      tuple({"name": b.name, "from": b.start.text, "to": b.end.text, "cycles": b.cycles}
                            for b in s.blocks)) if s.blocks else None
-        blk = Table((("name", "cycle"), ("cycles_per_unit", f"cycles per {s.unit}"), ("local_max_mpa", "max (MPa)"),
-                     ("local_min_mpa", "min (MPa)"), ("range_mpa", "range (MPa)"),
-                     ("equivalent_amplitude_mpa", "equivalent amplitude (MPa)"),
+        local = "local (Neuber)" if s.method == "strain_life" else "local"
+        blk = Table((("name", "cycle"), ("cycles_per_unit", f"cycles per {s.unit}"),
+                     ("local_max_mpa", f"{local} max (MPa)"), ("local_min_mpa", f"{local} min (MPa)"),
+                     ("range_mpa", "range (MPa)"), ("equivalent_amplitude_mpa", "equivalent amplitude (MPa)"),
                      ("cycles_to_failure", "cycles to failure"), ("damage_per_unit", f"damage per {s.unit}")),
-                    tuple({**b.to_dict(), "cycles_to_failure": "no damage" if b.cycles_to_failure is None else
-                           b.cycles_to_failure} for b in self.blocks))
-        tables = tuple(t for t in (spec, blk) if t is not None)
-        warn = self.reserve_factor is not None and self.reserve_factor < s.min_reserve
+                    tuple({**b.to_dict(), "cycles_to_failure": "no damage" if b.cycles_to_failure is None
+                           and b.damage_per_unit is not None else b.cycles_to_failure,
+                           "damage_per_unit": "fails at once" if b.damage_per_unit is None and b.name and
+                           b.cycles_to_failure is None and b.mean_mpa is not None else b.damage_per_unit}
+                          for b in self.blocks))
+        tables = tuple(t for t in (inputs_table, spec, blk) if t is not None)
         return Section("Fatigue", tuple(paras), tables, warn=warn,
                        images=(("best_fatigue.png", "the material curve with the hot spot's cycles, and the damage"
                                                     " round the outline"),))
 
     def charts(self) -> tuple[Chart, ...]:
         s = self.settings
-        pts = [b for b in self.blocks if b.cycles_to_failure is not None]
+        pts = [b for b in self.blocks if b.cycles_to_failure is not None and b.equivalent_amplitude_mpa is not None]
         top = max([1e9] + [3.0 * b.cycles_to_failure for b in pts])  # type: ignore[operator]
         n = np.logspace(2, math.log10(top), 120)
-        curve = Series("material curve", tuple(n.tolist()), tuple(s.curve.amplitude_at(n).tolist()))
-        if s.method == "stress_life":
-            marks = Series("hot spot cycles (equivalent amplitude at their life)",
-                           tuple(b.cycles_to_failure for b in pts),  # type: ignore[misc]
-                           tuple(b.equivalent_amplitude_mpa for b in pts), "points")  # type: ignore[misc]
-            left = ChartAxes("cycles to failure", "stress amplitude at zero mean (MPa)", (curve, marks), True, True,
-                             "material curve and the hot spot's cycles")
+        label = "material curve" + (" (surface factor applied)" if s.curve.surface_factor != 1.0 else "")
+        curve = Series(label, tuple(n.tolist()), tuple(s.curve.amplitude_at(n).tolist()))
+        marks = tuple(Series(f"{b.name} ({b.cycles_per_unit:g} per {s.unit})", (b.cycles_to_failure,),  # type: ignore[arg-type]
+                             (b.equivalent_amplitude_mpa,), "points") for b in pts[:8])  # type: ignore[arg-type]
+        if s.method == "stress_life" and s.curve.kind != "detail_category":
+            left = ChartAxes("cycles to failure", "stress amplitude at zero mean (MPa)", (curve, *marks), True, True,
+                             "the curve, and the hot spot's cycles at their equivalent amplitude")
+        elif s.method == "stress_life":
+            left = ChartAxes("cycles to failure", "half the stress range (MPa)", (curve, *marks), True, True,
+                             "detail category and the hot spot's cycles")
         else:
             left = ChartAxes("cycles to failure", "stress amplitude at zero mean (MPa)", (curve,), True, True,
-                             "Basquin part of the strain-life curve")
+                             "Basquin part of the strain-life curve (the cycles are in the table)")
         axes = [left]
-        if self.outline is not None:
-            name, arc, dmg = self.outline
-            if np.any(dmg > 0):  # a log axis over eight decades below the hot spot
-                dmg = np.maximum(dmg, 1e-8 * float(dmg.max()))
-            axes.append(ChartAxes(f"arc length along the {name} (mm, from its first point)",
-                                  f"damage per {s.unit}", (Series("damage", tuple(arc.tolist()),
-                                                                  tuple(dmg.tolist())),), False,
-                                  bool(np.any(dmg > 0)), "damage round the outline"))
+        if self.outline is not None and np.any(np.asarray(self.outline[2]) > 0):
+            name, arc, dmg, style, hot = self.outline
+            dmg = np.where(np.isfinite(dmg), dmg, np.nan)
+            floor = 1e-8 * float(np.nanmax(dmg))  # a log axis over eight decades below the hot spot
+            dmg = np.maximum(dmg, floor)
+            need = s.target_damage
+            what = ("damage" if style == "line" else "damage at the points the sequence was counted at")
+            series = [Series(what, tuple(arc.tolist()), tuple(dmg.tolist()), style),
+                      Series(f"required at most (1 / ({s.required_life:g} x {s.scatter_factor:g}))",
+                             (float(np.min(arc)), float(np.max(arc))), (need, need)),
+                      Series("hot spot", (hot,), (max(floor, self.damage_per_unit),), "points")]
+            axes.append(ChartAxes(f"arc length along the {name} (mm, from its first sample)",
+                                  f"damage per {s.unit}", tuple(series), False, True, "damage round the outline"))
         return (Chart("best_fatigue.png", "Fatigue at the hot spot", tuple(axes)),)
 
 
@@ -822,16 +1033,24 @@ class FatigueCheck(Check):
         settings: FatigueSettings = design.study.table("fatigue")
         f = design.evaluation.fields
         region = f.panel_mesh.region
-        fine = _assess(design, settings, f.solution, region)
+        trees: dict = {}  # the outline's search trees, shared by both levels
+        fine = _assess(design, settings, f.solution, region, trees=trees)
         est_r = est_l = None
         if f.coarse_solution is not None and design.purpose != "search":
-            coarse = _assess(design, settings, f.coarse_solution, region, COARSE_CANDIDATES)
+            coarse = _assess(design, settings, f.coarse_solution, region, COARSE_CANDIDATES, trees)
             floor = ACCURACY_LEVELS[design.evaluation.accuracy].floor_pct
             if fine.reserve is not None and coarse.reserve is not None:
                 est_r = 100.0 * abs(fine.reserve - coarse.reserve) / fine.reserve + floor
-            if fine.damage > 0 and coarse.damage > 0:
+            elif (fine.reserve is None) != (coarse.reserve is None):
+                est_r = 100.0  # one level reaches the required damage, the other does not: not resolved
+            if fine.damage > 0 and coarse.damage > 0 and math.isfinite(fine.damage) and math.isfinite(coarse.damage):
                 est_l = 100.0 * abs(fine.damage / coarse.damage - 1.0) + floor
-        life = 1.0 / fine.damage if fine.damage > 0 else None
+        if fine.damage <= 0:
+            life: float | None = None
+        elif math.isinf(fine.damage):
+            life = 0.0
+        else:
+            life = 1.0 / fine.damage
         reqs = [requirement("fatigue_reserve", "fatigue reserve factor", fine.reserve, settings.min_reserve, ">=",
                             scale=settings.min_reserve, kind="fatigue", advice=ADVICE, check=self.name,
                             reason=None if fine.reserve is None else
@@ -850,18 +1069,28 @@ class FatigueCheck(Check):
         if close:
             warns.append(close)
         lim = settings.yield_limit
-        if settings.method == "stress_life" and lim is not None and fine.elastic_range_mpa > 2.0 * lim:
-            warns.append(f"fatigue: the local elastic stress range at the hot spot ({fine.elastic_range_mpa:.0f} MPa)"
-                         f" exceeds twice the cyclic yield stress ({2 * lim:.0f} MPa): the notch root yields and the"
-                         ' stress-life answer is in doubt; use fatigue.method = "strain_life"')
+        if settings.method == "stress_life" and lim is not None:
+            if fine.elastic_range_mpa > 2.0 * lim:
+                warns.append(f"fatigue: the local elastic stress range at the hot spot ({fine.elastic_range_mpa:.0f}"
+                             f" MPa) exceeds twice the cyclic yield stress ({2 * lim:.0f} MPa): the notch root yields"
+                             ' in every cycle and the stress-life answer is in doubt; use fatigue.method ='
+                             ' "strain_life"')
+            elif fine.elastic_max_mpa > lim:
+                warns.append(f"fatigue: the local elastic peak at the hot spot ({fine.elastic_max_mpa:.0f} MPa) exceeds"
+                             f" the cyclic yield stress ({lim:.0f} MPa): the notch root yields and its mean stress"
+                             " relaxes, so the mean-stress correction on the elastic mean is in doubt; use"
+                             ' fatigue.method = "strain_life"')
+        if life == 0.0:
+            warns.append("fatigue: the mean stress of a cycle at the hot spot reaches the strength the mean-stress"
+                         " correction divides by: no life; reduce the stress or check the correction")
         if not fine.tensile:
             warns.append("fatigue: no cycle of the spectrum is tensile on any outline, so no fatigue damage is"
-                         " computed (a cycle entirely in compression does none here)")
+                         " computed (a cycle entirely in compression does none on an amplitude curve)")
         return FatigueResult(requirements=tuple(reqs), warnings=tuple(warns), settings=settings,
                              damage_per_unit=fine.damage, life=life, reserve_factor=fine.reserve,
-                             reserve_error_estimate_pct=est_r, life_error_estimate_pct=est_l, hot_spot=fine.hot,
-                             blocks=fine.blocks, elastic_range_mpa=fine.elastic_range_mpa, tensile=fine.tensile,
-                             outline=fine.outline)
+                             reserve_at=fine.reserve_at, reserve_error_estimate_pct=est_r,
+                             life_error_estimate_pct=est_l, hot_spot=fine.hot, blocks=fine.blocks,
+                             elastic_range_mpa=fine.elastic_range_mpa, tensile=fine.tensile, outline=fine.outline)
 
     @classmethod
     def absent(cls, study: Study) -> Section:

@@ -106,6 +106,11 @@ def describe_constraints(cons: dict) -> list[dict]:
             continue
         shown = f"{v:+.2f}" if k == "min_margin" else (f"{v:.0f}" if unit == "mm^2" else f"{v:g}")
         rows.append({"constraint": label, "value": f"{shown} {unit}".strip()})
+    for k, v in cons.get("more") or ():  # the keys the registered checks read (Check.constraint_keys)
+        words = k.replace("_", " ")
+        label = (words[4:] + " at least" if words.startswith("min ") else
+                 words[4:] + " at most" if words.startswith("max ") else words)
+        rows.append({"constraint": label, "value": f"{v:g}"})
     return rows
 
 

@@ -298,6 +298,8 @@ def plot_chart(path: Path, chart: Any, title: str) -> Path:
         ax.grid(True, which="both", alpha=0.3)
         if len(spec.series) > 1:
             ax.legend(fontsize=8, loc="best")
-    fig.suptitle(f"{title}: {chart.title}", fontsize=11)
-    fig.tight_layout(rect=(0, 0, 1, 0.94))
+    import textwrap
+
+    fig.suptitle("\n".join(textwrap.wrap(f"{title}: {chart.title}", 60 * n)), fontsize=11)
+    fig.tight_layout(rect=(0, 0, 1, 0.92))
     return save(fig, path)

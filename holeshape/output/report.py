@@ -359,13 +359,13 @@ def section_comparison(page: Page, rec: RunRecord) -> None:
     goal = GOALS.get(rec.goal, GOALS["lowest_peak"])
     b = rec.best
     mine = None if b is None else {"peak_stress_mpa": b.peak_stress_mpa, "area_mm2": b.area_mm2,
-                                   "reinforcement": b.reinforcement}
+                                   "reinforcement": b.reinforcement, **b.top}
     rows = []
     if b is not None:
         rows.append({"shape": f"recommended: {b.shape.replace('_', ' ')}", "peak_stress_mpa": b.peak_stress_mpa,
                      "kt": b.kt, "area_mm2": b.area_mm2, "buckling_load_factor": b.buckling_load_factor,
                      "added_mass_kg": (b.reinforcement or {}).get("added_mass_kg"), "verdict": "meets every"
-                     " requirement" if b.meets_every_requirement else "FAILS", "note": ""})
+                     " requirement" if b.meets_every_requirement else "FAILS", "note": "", **b.top})
     fam = rec.family_best
     if fam is not None and not fam.get("recommended"):
         rows.append({"shape": f"searched {fam['shape'].replace('_', ' ')} best (trial {fam['trial']})",
@@ -374,18 +374,22 @@ def section_comparison(page: Page, rec: RunRecord) -> None:
                      "added_mass_kg": (fam.get("reinforcement") or {}).get("added_mass_kg"),
                      "verdict": "meets every requirement" if fam["meets_every_requirement"] else
                      "FAILS: " + "; ".join(fam["verdict_reasons"]),
-                     "note": "" if mine is None else f"the recommended design has {goal.better(mine, fam)} it"})
+                     "note": "" if mine is None else f"the recommended design has {goal.better(mine, fam)} it",
+                     **{k: fam.get(k) for k, _ in check_columns([fam])}})
     for r in rec.baselines:
         other = {"peak_stress_mpa": r.peak_stress_mpa, "area_mm2": r.area_mm2,
-                 "reinforcement": None if r.added_volume_mm3 is None else {"added_volume_mm3": r.added_volume_mm3}}
+                 "reinforcement": None if r.added_volume_mm3 is None else {"added_volume_mm3": r.added_volume_mm3},
+                 **r.figures}
         note = "" if b is None or mine is None or r.peak_stress_mpa is None else \
             "the recommended design" if b.trial is None and r.shape == b.shape and r.params == b.params else \
             f"the recommended design has {goal.better(mine, other)} it"
         rows.append({"shape": f"standard {r.shape.replace('_', ' ')}", "peak_stress_mpa": r.peak_stress_mpa,
                      "kt": r.kt, "area_mm2": r.area_mm2, "buckling_load_factor": r.buckling_load_factor,
                      "added_mass_kg": r.added_mass_kg,
-                     "verdict": "meets every requirement" if r.feasible else f"FAILS: {r.reason}", "note": note})
+                     "verdict": "meets every requirement" if r.feasible else f"FAILS: {r.reason}", "note": note,
+                     **r.figures})
     cols = [("shape", "design"), ("peak_stress_mpa", "peak (MPa)"), ("kt", "Kt"), ("area_mm2", "area (mm^2)")]
+    cols += check_columns(rows)
     if any(r.get("buckling_load_factor") is not None for r in rows):
         cols.append(("buckling_load_factor", "buckling factor"))
     if any(r.get("added_mass_kg") is not None for r in rows):

@@ -204,7 +204,7 @@ def comparison_lines(rec: RunRecord) -> list[str]:
     goal = GOALS.get(rec.goal, GOALS["lowest_peak"])
     b = rec.best
     assert b is not None  # only a run that recommends a design is compared
-    mine = {"peak_stress_mpa": b.peak_stress_mpa, "area_mm2": b.area_mm2, "reinforcement": b.reinforcement}
+    mine = {"peak_stress_mpa": b.peak_stress_mpa, "area_mm2": b.area_mm2, "reinforcement": b.reinforcement, **b.top}
     if rec.family_best is None or rec.family_best.get("recommended"):
         if not rec.baselines:
             return ["", "  compared       no standard shape applies (no access envelope or area requirement to size"
@@ -223,8 +223,11 @@ def comparison_lines(rec: RunRecord) -> list[str]:
             lines += wrap("", f"standard {name}: cannot be drawn within the requirements ({row.reason})")
             continue
         other = {"peak_stress_mpa": row.peak_stress_mpa, "area_mm2": row.area_mm2,
-                 "reinforcement": None if row.added_volume_mm3 is None else {"added_volume_mm3": row.added_volume_mm3}}
+                 "reinforcement": None if row.added_volume_mm3 is None else {"added_volume_mm3": row.added_volume_mm3},
+                 **row.figures}
         mass = "" if row.added_mass_kg is None else f", reinforcement {row.added_mass_kg:.4f} kg"
+        mass += "".join(f", {head} {_num(row.figures[k])}" for k, head in check_columns()
+                        if row.figures.get(k) is not None)
         state = "meets every requirement" if row.feasible else f"FAILS: {row.reason}"
         than = "it is the recommended design" if b.trial is None and row.shape == b.shape and \
             row.params == b.params else f"the recommended design has {goal.better(mine, other)} it"
