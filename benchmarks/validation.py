@@ -396,8 +396,9 @@ def manual(result: dict) -> str:
     add("Every report (`report.html` of `optimise`, `compare` and `sweep`) carries a validation appendix"
         " (`validation.json` in the run folder) in which the same functions solve a subset of these cases at the"
         " level of the run's final checks (`fine`; a sweep at its study's level); the plate-buckling rows are added"
-        " when the study has `[stability]`. The subset, read from `holeshape.validation.reference_cases(full=False)`"
-        " and `buckling_cases`:\n")
+        " when the study has `[stability]`, the fatigue row (the reserve factor of a small hole cycled 0 -> S, against"
+        " Kirsch's 3 S with Basquin's curve and Goodman's line by hand) when it has `[fatigue]`. The subset, read from"
+        " `holeshape.validation.reference_cases(full=False)`, `buckling_cases` and `fatigue_cases`:\n")
     add(_table(["case", "source"], [[r["case"], r["source"]] for r in appendix]) + "\n")
     add("## Overview\n")
     add(summary_table(result) + "\n")

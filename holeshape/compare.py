@@ -111,7 +111,8 @@ def run_compare(study_path: str, out: str, workers: int = 1, progress: bool = Tr
         from holeshape.validation import run_validation
 
         files.write_json(out_dir / "validation.json", run_validation(FINAL_ACCURACY,
-                                                                      stability=study.stability is not None))
+                                                                      stability=study.stability is not None,
+                                                                      fatigue=study.table("fatigue") is not None))
     tables = {f: (bare_document(doc), t) for f, t in family_ranges(study, doc["cutout"]).items()}
     if "reinforcement" in doc:  # the study's own family and ranges, with its reinforcement
         tables[study.cutout.shape + REINFORCED_SUFFIX] = (doc, doc["cutout"])

@@ -213,7 +213,8 @@ def side_checks(study_def: Study, baselines: Baselines, validate: bool
     from holeshape.validation import run_validation
 
     rows, usable = check_standard_shapes(FinalChecks(study_def, {}), baselines)
-    return rows, usable, run_validation(FINAL_ACCURACY, stability=study_def.stability is not None) \
+    return rows, usable, run_validation(FINAL_ACCURACY, stability=study_def.stability is not None,
+                                        fatigue=study_def.table("fatigue") is not None) \
         if validate else None
 
 
@@ -267,7 +268,8 @@ def finish_run(study_def: Study, study: Any, space: DesignSpace, baselines: Base
             from holeshape.validation import run_validation
 
             files.write_json(out_dir / "validation.json",
-                             run_validation(FINAL_ACCURACY, stability=study_def.stability is not None))
+                             run_validation(FINAL_ACCURACY, stability=study_def.stability is not None,
+                                            fatigue=study_def.table("fatigue") is not None))
         bar.update()
         common: dict[str, Any] = dict(
             goal=goal, trials=trial_counts(study), storage=storage_name, study=study_def.title,

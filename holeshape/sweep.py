@@ -106,7 +106,8 @@ def run_sweep(study_path: str, out: str, vary_texts: list[str], progress: bool =
         if not (out_dir / "validation.json").exists():
             bar.note("validation appendix")
             files.write_json(out_dir / "validation.json", run_validation(study.measure.accuracy,
-                                                                          stability=study.stability is not None))
+                                                                          stability=study.stability is not None,
+                                                                          fatigue=study.table("fatigue") is not None))
         result["report"] = str(build_report(out_dir))
         bar.update()
     return result

@@ -111,14 +111,79 @@ def reference_cases(full: bool = True) -> list[ReferenceCase]:
 _MEMO: dict[tuple, list[dict]] = {}
 
 
-def run_validation(accuracy: str, full: bool = False, stability: bool = False) -> list[dict]:
+def run_validation(accuracy: str, full: bool = False, stability: bool = False, fatigue: bool = False) -> list[dict]:
     """Solve the reference cases at ``accuracy``; rows ready for JSON. ``stability``: also the plate buckling
-    cases (for a study that uses [stability]). The rows of one process are computed once (every run of a
-    ``compare`` and a test session reuses them)."""
-    key = (accuracy, full, stability)
+    cases (for a study that uses [stability]); ``fatigue``: also the fatigue case (for a study with [fatigue]). The
+    rows of one process are computed once (every run of a ``compare`` and a test session reuses them)."""
+    key = (accuracy, full, stability, fatigue)
     if key not in _MEMO:
-        _MEMO[key] = _validation(accuracy, full, stability)
+        _MEMO[key] = _validation(accuracy, full, stability) + (fatigue_cases(accuracy) if fatigue else [])
     return [dict(r) for r in _MEMO[key]]
+
+
+FATIGUE_CASE = """
+title = "fatigue reference"
+[panel]
+width = 4000.0
+height = 4000.0
+thickness = 1.0
+[material]
+youngs_modulus = 71000.0
+poisson_ratio = 0.33
+[[load_case]]
+name = "tension"
+sigma_x = 50.0
+[cutout]
+shape = "circle"
+center = [2000.0, 2000.0]
+radius = 10.0
+[fatigue]
+unit = "cycle"
+required_life = 1.0e5
+[fatigue.curve]
+kind = "basquin"
+strength_coefficient = 900.0
+exponent = -0.1
+mean_stress = "goodman"
+ultimate_strength = 480.0
+[[fatigue.block]]
+from = "zero"
+to = { "tension" = 1.0 }
+cycles = 1.0
+"""
+
+
+def fatigue_cases(accuracy: str) -> list[dict]:
+    """A small hole in a large plate cycled 0 -> S = 50 MPa through the fatigue check: the reserve factor against
+    the hand value from Kirsch's local range 3 S (Kirsch 1898), Basquin's curve and Goodman's mean-stress line
+    (sigma'_f = 900 MPa, b = -0.1, S_u = 480 MPa, required life 1e5 cycles; constants chosen for the check)."""
+    import math
+
+    import tomllib
+    from scipy.optimize import brentq
+
+    from holeshape.checks import assess
+    from holeshape.studyfile import parse_study
+
+    t0 = time.perf_counter()
+    study = parse_study(tomllib.loads(FATIGUE_CASE), source="fatigue reference")
+    cut = study.cutout.build(study.cutout.nominal())
+    ev = evaluate(study.panel, study.material, study.load_cases, cut, Measure("hoop", accuracy))
+    res = assess(study, cut, ev, accuracy=accuracy).result("fatigue")
+    local = 3.0 * 50.0
+
+    def log_life(k: float) -> float:
+        a = k * local / 2
+        return math.log(0.5 * (a / (1 - a / 480.0) / 900.0) ** (1 / -0.1) / 1.0e5)
+
+    published = brentq(log_life, 0.1, 0.999 * 2 * 480.0 / local)
+    got = getattr(res, "reserve_factor", None) or math.nan
+    err = 100 * (got / published - 1)
+    return [{"case": "small hole, 0 -> S, Basquin with Goodman (fatigue reserve factor)",
+             "source": "Kirsch (1898) 3 S at the edge; Basquin's curve and Goodman's line by hand",
+             "published": published, "holeshape": got, "error_pct": err, "tolerance_pct": 0.5,
+             "error_estimate_pct": getattr(res, "reserve_error_estimate_pct", None), "within": abs(err) <= 0.5,
+             "dofs": ev.dofs, "seconds": time.perf_counter() - t0}]
 
 
 def _validation(accuracy: str, full: bool, stability: bool) -> list[dict]:
