@@ -198,11 +198,12 @@ class Study:
     @classmethod
     def of(cls, panel: Panel, material: Material, load_cases: tuple[LoadCase, ...], cutout: Cutout, *,
            title: str = "study", measure: Measure = Measure(), constraints: Constraints = Constraints(),
-           stability: StabilitySettings | None = None) -> Study:
-        """A study built in code around a placed :class:`~holeshape.geometry.Cutout` (the Python API)."""
+           stability: StabilitySettings | None = None, tables: dict[str, Any] | None = None) -> Study:
+        """A study built in code around a placed :class:`~holeshape.geometry.Cutout` (the Python API); ``tables``
+        the settings of registered checks that read a table of their own, by check name (``{"fatigue": ...}``)."""
         return cls(title=title, panel=panel, material=material, load_cases=tuple(load_cases),
                    cutout=CutoutSpec.from_cutout(cutout), measure=measure, constraints=constraints,
-                   stability=stability)
+                   stability=stability, tables=tuple((tables or {}).items()))
 
     def table(self, name: str) -> Any:
         """The settings a check read from its own study-file table (None without the table)."""
