@@ -19,6 +19,9 @@ Formulas (their usual names; sources beside each):
   reduction of compressive parts for a non-welded detail is not applied: conservative).
 - Peterson q = 1 / (1 + a / r), Neuber q = 1 / (1 + sqrt(rho' / r)), Kf = 1 + q (Kt - 1) (Peterson, Stress
   Concentration Factors; Neuber, Theory of Notch Stresses).
+- The support factor of the relative stress gradient chi* = -(1 / sigma) d sigma / dn at the notch root,
+  n = 1 + sqrt(rho* chi*) and Kf = Kt / n (Siebel & Stieler 1955, from memory; the form behind the support factors
+  of several later guidelines): the solve knows the gradient, a handbook user does not.
 - Neuber's rule sigma epsilon = sigma_e^2 / E with the cyclic curve epsilon = sigma / E + (sigma / K')^(1 / n') and
   Masing's doubled curve for ranges; Coffin-Manson-Basquin epsilon_a = (sigma'_f / E)(2N)^b + epsilon'_f (2N)^c with
   Morrow's (sigma'_f - sigma_m) or Smith-Watson-Topper's sigma_max epsilon_a (Dowling).
@@ -36,7 +39,7 @@ import numpy as np
 
 CURVE_KINDS = ("basquin", "points", "detail_category")
 MEAN_STRESS = ("none", "goodman", "gerber", "morrow", "smith_watson_topper", "walker")
-NOTCHES = ("none", "peterson", "neuber")
+NOTCHES = ("none", "peterson", "neuber", "stress_gradient")
 METHODS = ("stress_life", "strain_life")
 BEYOND_LAST = ("constant", "extrapolate")
 STRAIN_MEAN = ("none", "morrow", "smith_watson_topper")
@@ -210,6 +213,12 @@ def notch_sensitivity(notch: str, constant: float | None, radius: np.ndarray) ->
         if notch == "neuber":
             return 1.0 / (1.0 + np.sqrt(constant / r))
     raise ValueError(f"unknown notch rule {notch!r}")
+
+
+def support_factor(constant: float, chi: np.ndarray) -> np.ndarray:
+    """n = 1 + sqrt(rho* chi*) for the relative stress gradient ``chi`` (1/mm; no support where it is not positive)
+    and the material constant ``constant`` = rho* (mm)."""
+    return 1.0 + np.sqrt(constant * np.maximum(np.asarray(chi, dtype=float), 0.0))
 
 
 def fatigue_factor(kt: np.ndarray, q: np.ndarray) -> np.ndarray:

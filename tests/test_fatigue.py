@@ -645,3 +645,20 @@ cutoff_cycles = 1.0e8
     f = check(plate(fat)).result("fatigue")
     dr = heywood_kt(2 * HOLE / WIDTH) * S
     assert f.life == pytest.approx(2e6 * (100.0 / dr) ** 3, rel=3e-3)
+
+
+def test_the_stress_gradient_rule_on_kirsch():
+    # Kirsch: at the peak of a circle of radius a under uniaxial S, d sigma_theta / dr = -7 S / a, so the relative
+    # gradient is chi* = 7 / (3 a) (from sigma_theta = S / 2 (2 + a^2 / r^2 + 3 a^4 / r^4) at theta = 90 deg); the
+    # support factor n = 1 + sqrt(rho* chi*) (Siebel & Stieler, from memory) gives Kf = Kt / n, and for one uniaxial
+    # case the fatigue stress at the peak is Kf S. Tolerance 1 % on chi* (a cubic fitted over two element sizes along
+    # the normal: measured within 0.6 % at standard and fine) and 0.2 % on Kf (n moves as the square root of chi*).
+    rho = 0.1
+    res = check(plate(BASQUIN.replace('scatter_factor = 3.0', 'scatter_factor = 3.0\nnotch = "stress_gradient"\n'
+                                      f'notch_constant = {rho}') + _blocks(('"zero"', '{ "tension" = 1.0 }', 1.0))))
+    h = res.result("fatigue").hot_spot
+    assert h.relative_gradient_per_mm == pytest.approx(7.0 / (3.0 * HOLE), rel=1e-2)
+    kt = heywood_kt(2 * HOLE / WIDTH)
+    n = 1.0 + math.sqrt(rho * 7.0 / (3.0 * HOLE))
+    assert h.kf == pytest.approx(kt / n, rel=2e-3)
+    assert res.result("fatigue").blocks[0].local_max_mpa == pytest.approx(kt / n * S, rel=2e-3)
