@@ -423,11 +423,16 @@ def mirror_to_full(bs: BoundaryStress, region: Region) -> BoundaryStress:
 
 def stress_at_points(pm: PanelMesh, sol: PanelSolution, xy: np.ndarray) -> np.ndarray:
     """Stress (3, n, m) MPa at panel points ``xy`` (2, n), mirrored into a reduced model where needed."""
+    return stress_in(pm.region, sol, xy)
+
+
+def stress_in(region: Region, sol: PanelSolution, xy: np.ndarray) -> np.ndarray:
+    """:func:`stress_at_points` for any solution of the model ``region`` (its mesh is the solution's basis's: the
+    second mesh level's solution as well as the finest)."""
     from skfem import MeshTri1
 
     from holeshape.solve import stress_from_gradient
 
-    region = pm.region
     q = xy.copy()
     sign = np.ones(q.shape[1])
     if region.mirror_v:
@@ -438,7 +443,8 @@ def stress_at_points(pm: PanelMesh, sol: PanelSolution, xy: np.ndarray) -> np.nd
         flip = q[1] < region.y0
         q[1] = np.where(flip, 2 * region.y0 - q[1], q[1])
         sign = np.where(flip, -sign, sign)
-    mesh, basis = pm.mesh, sol.basis
+    basis = sol.basis
+    mesh = basis.mesh
     # the quadratic mesh has no point finder: locate on its straight-sided twin, start from that element's affine
     # inverse and polish with Newton steps on the curved map (no clipping, so points on an edge stay exact)
     cells = MeshTri1(mesh.p, mesh.t).element_finder()(q[0], q[1])

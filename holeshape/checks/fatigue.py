@@ -468,9 +468,7 @@ def relative_gradient(solution: Any, region: Any, bs: Any) -> np.ndarray:
     peak is 7 / (3 a): within 0.6 % over the peak's neighbourhood at the standard level, against up to 4 % at single
     points). A point whose normal leaves the mesh
     within that span gets no support (chi* = 0: Kf = Kt, conservative)."""
-    from types import SimpleNamespace
-
-    from holeshape.evaluate import stress_at_points
+    from holeshape.evaluate import stress_in
 
     xy = bs.xy
     closed = np.allclose(xy[:, 0], xy[:, -1])
@@ -483,14 +481,13 @@ def relative_gradient(solution: Any, region: Any, bs: Any) -> np.ndarray:
     spacing = np.hypot(*np.gradient(xy, axis=1))
     h = 4.0 * np.maximum(spacing, 1e-9)  # five samples per boundary facet: the element edge is four spacings
     u = np.linspace(0.0, 2.0, 13)  # distances in local element sizes
-    pm = SimpleNamespace(mesh=solution.basis.mesh, region=region)
     tx, ty = t[0][:, None], t[1][:, None]
     try:
         f = []
         for uk in u:
             # a hair along the edge keeps a point off a reduced model's mirror line, where the point finder of the
             # straight-sided twin can pick the element across it (the field is smooth there: no effect on the value)
-            sig = stress_at_points(pm, solution, xy + nrm * (uk * h) + t * (1e-3 * h))  # (3, n, m)
+            sig = stress_in(region, solution, xy + nrm * (uk * h) + t * (1e-3 * h))  # (3, n, m)
             f.append(sig[0] * tx * tx + sig[1] * ty * ty + 2 * sig[2] * tx * ty)
     except (ValueError, IndexError):  # a normal that leaves the mesh (a ligament thinner than two elements)
         return np.zeros(bs.hoop.shape)
