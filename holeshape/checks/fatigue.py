@@ -674,14 +674,13 @@ def _spread(score: np.ndarray, k: int, gap: int) -> list[int]:
 
 def _assess(design: Design, settings: FatigueSettings, solution: Any, region: Any,
             candidates: int = CANDIDATES, trees: dict | None = None) -> Spectrum:
-    ev_names = [c.name for c in design.study.load_cases]
+    names = [c.name for c in design.study.load_cases]
     refs = nominal_stress(design)
     modulus = design.study.material.elastic.reference_modulus
     ps = places(design, solution, region, trees, gradient=settings.notch == "stress_gradient")
     scaled = [notch_scaled(p, settings, refs) for p in ps]
     sl = settings.method == "strain_life"
     work = [Place(p.name, p.xy, p.s, v, p.radius, p.free_edge, p.plane_deg) for p, (v, _, _) in zip(ps, scaled)]
-    names = ev_names
     tensile = True
     if settings.blocks:
         fa = np.stack([b.start.vector(names) for b in settings.blocks], axis=1)  # (m, nb)
