@@ -1056,7 +1056,14 @@ class FatigueResult(CheckResult):
                            "damage_per_unit": "fails at once" if b.damage_per_unit is None and b.name and
                            b.cycles_to_failure is None and b.mean_mpa is not None else b.damage_per_unit}
                           for b in self.blocks))
-        tables = tuple(t for t in (inputs_table, spec, blk) if t is not None)
+        hot_row = {"where": h.opening, "x": h.x_mm, "y": h.y_mm,
+                   "r": "straight" if h.radius_mm is None else h.radius_mm, "kt": h.kt, "q": h.q, "kf": h.kf,
+                   "case": h.load_case, "life": "infinite" if self.life is None else self.life,
+                   "reserve": self.reserve_factor}
+        hot_table = Table((("where", "hot spot"), ("x", "x (mm)"), ("y", "y (mm)"), ("r", "radius (mm)"),
+                           ("kt", "Kt"), ("q", "q"), ("kf", "Kf"), ("case", "load case of Kt"),
+                           ("life", f"life ({s.unit}s)"), ("reserve", "fatigue reserve factor")), (hot_row,))
+        tables = tuple(t for t in (inputs_table, spec, hot_table, blk) if t is not None)
         return Section("Fatigue", tuple(paras), tables, warn=warn,
                        images=(("best_fatigue.png", "the material curve with the hot spot's cycles, and the damage"
                                                     " round the outline"),))
