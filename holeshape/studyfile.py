@@ -7,7 +7,6 @@ what is allowed. Unknown keys are errors (with a "did you mean" hint), so a miss
 
 from __future__ import annotations
 
-import difflib
 import math
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
@@ -40,18 +39,15 @@ from holeshape.study import (
     StabilitySettings,
     Study,
 )
+from holeshape.tablefields import string_value, unknown_keys
 
 if TYPE_CHECKING:
     from holeshape.checks import Check
     from holeshape.geometry import Cutout
 
 
-def _unknown(table: dict, allowed: tuple[str, ...], where: str) -> None:
-    for key in table:
-        if key not in allowed:
-            hint = difflib.get_close_matches(key, allowed, n=1)
-            tip = f" (did you mean {hint[0]!r}?)" if hint else ""
-            raise StudyError(f"{where}{key} is not a known key{tip}; allowed: {', '.join(allowed)}")
+_unknown = unknown_keys  # the rules every table shares (holeshape.tablefields)
+_string = string_value
 
 
 def _number(table: dict, key: str, where: str, *, default: Any = ..., positive: bool = False,
@@ -89,20 +85,6 @@ def _range(v: dict, name: str, positive: bool) -> Range:
         raise StudyError(f"{name}.value must lie between min = {lo!r} and max = {hi!r}, got {value!r}")
     return Range(lo, hi, log, value)
 
-
-def _string(table: dict, key: str, where: str, choices: tuple[str, ...] | None = None, default: Any = ...) -> Any:
-    if key not in table:
-        if default is ...:
-            raise StudyError(f"{where}{key} is missing")
-        return default
-    v = table[key]
-    if not isinstance(v, str):
-        raise StudyError(f"{where}{key} must be a string, got {v!r}")
-    if choices is not None and v not in choices:
-        hint = difflib.get_close_matches(v, choices, n=1)
-        tip = f" (did you mean {hint[0]!r}?)" if hint else ""
-        raise StudyError(f"{where}{key} must be one of {', '.join(choices)}, got {v!r}{tip}")
-    return v
 
 
 def _table(doc: dict, key: str, required: bool = True) -> dict:

@@ -343,7 +343,7 @@ cycles = 1.0
     (('to = { "tension" = 1.0 }', 'to = { "tension" = "1.0" }'), 'fatigue.block[0].to."tension" must be a finite'),
     (('scatter_factor = 3.0', 'scatter_factor = 0.5'), "fatigue.scatter_factor must be >= 1"),
     (('unit = "flight"\n', ''), "fatigue.unit is missing"),
-    (('unit = "flight"', 'unit = "flight"\nlife = 3'), "unknown key fatigue.life"),
+    (('unit = "flight"', 'unit = "flight"\nlife = 3'), "fatigue.life is not a known key"),
     (('[fatigue.curve]', 'sequence = []\n[fatigue.curve]'), "fatigue.sequence must be a list"),
 ])
 def test_bad_fatigue_input_is_one_line_naming_the_field(tmp_path, capsys, change, words):

@@ -12,7 +12,7 @@ PACKAGE = Path(__file__).resolve().parents[1] / "holeshape"
 
 # lowest first, as in the DEVELOPERS.md layer table
 LAYERS = [
-    ("holeshape", "holeshape.errors", "holeshape.progress"),
+    ("holeshape", "holeshape.errors", "holeshape.progress", "holeshape.tablefields"),
     ("holeshape.geometry", "holeshape.elastic", "holeshape.fatigue"),
     ("holeshape.study", "holeshape.parameters", "holeshape.goals"),
     ("holeshape.mesh",),

@@ -63,6 +63,7 @@ from holeshape.fatigue import (
     strain_life_damage,
     support_factor,
 )
+from holeshape.tablefields import string_value, unknown_keys
 
 if TYPE_CHECKING:
     from holeshape.study import Study
@@ -172,20 +173,10 @@ def _value(v: Any, path: str) -> float:
 
 
 def _choice(t: dict, key: str, where: str, choices: tuple[str, ...], default: str) -> str:
-    v = t.get(key, default)
-    if not isinstance(v, str) or v not in choices:
-        raise StudyError(f"{where}{key} must be one of {', '.join(choices)}, got {v!r}")
-    return v
+    return str(string_value(t, key, where, choices, default))
 
 
-def _unknown(t: dict, allowed: tuple[str, ...], where: str) -> None:
-    import difflib
-
-    for k in t:
-        if k not in allowed:
-            hint = difflib.get_close_matches(k, allowed, n=1)
-            tip = f" (did you mean {hint[0]!r}?)" if hint else ""
-            raise StudyError(f"unknown key {where}{k}{tip}; allowed: {', '.join(allowed)}")
+_unknown = unknown_keys
 
 
 def _unused(t: dict, keys: tuple[str, ...], where: str, why: str) -> None:
