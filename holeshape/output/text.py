@@ -248,14 +248,16 @@ def no_design_summary(rec: RunRecord) -> str:
         lines += ["", "  refused designs by the requirement they missed (draft level):"]
         for g in rec.trial_reasons[:8]:
             if "failure" in g:
-                lines.append(f"    {g['trials']:>5} trials failed in the numerics ({g['failure']})")
+                lines.append(f"    {g['trials']:>5} {'trial' if g['trials'] == 1 else 'trials'} failed in the numerics"
+                             f" ({g['failure']})")
                 continue
             rng = ""
             if "lowest" in g:
                 lo, hi = stored_value(g, g["lowest"]), stored_value(g, g["highest"])
                 rng = f": {lo}" if lo == hi else f": {lo} to {hi}"
                 rng += f" (required {g['relation']} {stored_value(g, g['limit'], limit=True)})"
-            lines.append(f"    {g['trials']:>5} trials  {g['requirement']}{rng}")
+            word = "trial " if g["trials"] == 1 else "trials"
+            lines.append(f"    {g['trials']:>5} {word}  {g['requirement']}{rng}")
     if rec.nearest_misses:
         lines += ["", "  nearest misses:"]
         for m in rec.nearest_misses[:6]:
