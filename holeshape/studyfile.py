@@ -39,7 +39,7 @@ from holeshape.study import (
     StabilitySettings,
     Study,
 )
-from holeshape.tablefields import string_value, unknown_keys
+from holeshape.tablefields import string_value, table_list, unknown_keys
 
 if TYPE_CHECKING:
     from holeshape.checks import Check
@@ -139,10 +139,7 @@ def parse_study(doc: dict, source: str = "") -> Study:
     cases = doc.get("load_case")
     if cases is None:
         raise StudyError("[[load_case]] is missing: give at least one load case (sigma_x, sigma_y, tau_xy in MPa)")
-    if isinstance(cases, dict):
-        cases = [cases]
-    if not isinstance(cases, list) or not cases or not all(isinstance(c, dict) for c in cases):
-        raise StudyError(f"load_case must be one or more [[load_case]] tables, got {cases!r}")
+    cases = table_list(cases, "load_case")
     load_cases = []
     for i, c in enumerate(cases):
         where = f"load_case[{i}]."

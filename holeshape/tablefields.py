@@ -35,3 +35,13 @@ def string_value(table: dict, key: str, where: str, choices: tuple[str, ...] | N
         tip = f" (did you mean {hint[0]!r}?)" if hint else ""
         raise StudyError(f"{where}{key} must be one of {', '.join(choices)}, got {v!r}{tip}")
     return v
+
+
+def table_list(value: Any, name: str) -> list[dict]:
+    """An array of tables ``[[name]]`` (one ``[name]`` table is taken as a list of one), refused with one line when
+    it is anything else or empty."""
+    if isinstance(value, dict):
+        value = [value]
+    if not isinstance(value, list) or not value or not all(isinstance(t, dict) for t in value):
+        raise StudyError(f"{name} must be one or more [[{name}]] tables, got {value!r}")
+    return value

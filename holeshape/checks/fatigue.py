@@ -63,7 +63,7 @@ from holeshape.fatigue import (
     strain_life_damage,
     support_factor,
 )
-from holeshape.tablefields import string_value, unknown_keys
+from holeshape.tablefields import string_value, table_list, unknown_keys
 
 if TYPE_CHECKING:
     from holeshape.study import Study
@@ -367,11 +367,7 @@ def parse_fatigue(t: dict, parts: dict) -> FatigueSettings:
                          " hardening_exponent (n') of the cyclic stress-strain curve")
     blocks: tuple[Block, ...] = ()
     if "block" in t:
-        bl = t["block"]
-        if isinstance(bl, dict):
-            bl = [bl]
-        if not isinstance(bl, list) or not bl or not all(isinstance(b, dict) for b in bl):
-            raise StudyError(f"{w}block must be [[fatigue.block]] tables, got {bl!r}")
+        bl = table_list(t["block"], f"{w}block")
         out = []
         for i, b in enumerate(bl):
             wb = f"{w}block[{i}]."
